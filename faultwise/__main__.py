@@ -1,0 +1,5 @@
+"""Allow ``python -m faultwise``."""
+
+from faultwise.cli import main
+
+raise SystemExit(main())
