@@ -1,0 +1,208 @@
+"""What the walk and conclusion screens share: an open case, its walk, and saving.
+
+Every change goes to the walk first, then to disk (``OpenCase.record``) before the screen
+shows the next prompt. A save that fails opens :class:`SaveFailedScreen`; the change stays
+in memory until a retry succeeds.
+"""
+
+from __future__ import annotations
+
+from typing import Callable
+
+from textual.binding import Binding
+from textual.screen import Screen
+
+from faultwise.tui.context import Bench
+
+
+def open_walk(bench: Bench, case_id: str):
+    """(OpenCase, Walk) for an open case: takes the lock and replays its events.
+
+    FaultwiseError (locked, damaged, events that no longer fit the knowledge) leaves the
+    case unlocked.
+    """
+    from faultwise.walk import walk_from_case
+
+    case = bench.store.open(case_id)
+    try:
+        walk = walk_from_case(bench.knowledge, case.data, clock=bench.clock)
+    except BaseException:
+        case.close()
+        raise
+    return case, walk
+
+
+class CaseScreen(Screen):
+    """Base for screens that change an open case. Subclasses implement ``show_prompt``."""
+
+    BINDINGS = [
+        Binding("ctrl+z", "undo", "Undo", priority=True),
+        Binding("f3", "note", "Note", priority=True),
+        Binding("f6", "readings", "Readings", priority=True),
+        Binding("f7", "cautions", "Cautions", priority=True, show=False),
+        Binding("escape", "leave", "Back", priority=True),
+    ]
+
+    def __init__(self, bench: Bench, case, walk, *, id: str) -> None:
+        super().__init__(id=id)
+        self.bench = bench
+        self.case = case
+        self.walk = walk
+        self._asking_cautions = False
+
+    # ------------------------------------------------------------------ saving
+
+    def _try_save(self) -> str | None:
+        """Save the walk into the case; None on success, else the error sentence."""
+        from faultwise.errors import FaultwiseError
+
+        try:
+            self.case.record(self.walk)
+        except FaultwiseError as exc:
+            return str(exc)
+        except OSError as exc:   # the store maps these; kept as a last guard
+            return f"the case could not be saved ({exc.strerror or exc})."
+        return None
+
+    def commit(self, then: Callable[[], None]) -> None:
+        """Save now; run ``then`` once the case is on disk (after retries if needed)."""
+        problem = self._try_save()
+        if problem is None:
+            then()
+            return
+        from faultwise.tui.screens.save_failed import SaveFailedScreen
+
+        def done(result: str | None) -> None:
+            if result == "saved":
+                then()
+            else:
+                self.leave_case(saved=False)
+
+        self.app.push_screen(SaveFailedScreen(problem, self._try_save), done)
+
+    def change(self, action: Callable[[], object], then: Callable[[], None] | None = None
+               ) -> bool:
+        """Apply ``action`` to the walk; on a domain error toast it (nothing recorded).
+
+        Returns True when the walk changed (and the save was started).
+        """
+        from faultwise.errors import FaultwiseError
+
+        try:
+            action()
+        except FaultwiseError as exc:
+            self.notify(str(exc), severity="error", markup=False, timeout=6)
+            return False
+        self.commit(then or self.show_prompt)
+        return True
+
+    # ------------------------------------------------------------------ prompts
+
+    def show_prompt(self) -> None:  # pragma: no cover - each screen draws its own
+        raise NotImplementedError
+
+    def next_screen(self) -> bool:
+        """Switch to the screen the walk's phase belongs on; True when switched."""
+        prompt = self.walk.prompt()
+        if prompt is None:
+            outcome = self.walk.to_case_fields().get("outcome")
+            self.notify(f"Case {self.case.id} closed ({outcome}).", markup=False)
+            self.leave_case(saved=True)
+            return True
+        wants_conclusion = prompt.kind in ("repair", "close") or prompt.phase in (
+            "repair", "verify", "closing")
+        if wants_conclusion and self.id != "conclusion":
+            from faultwise.tui.screens.conclusion import ConclusionScreen
+
+            self.app.switch_screen(ConclusionScreen(self.bench, self.case, self.walk))
+            return True
+        if not wants_conclusion and self.id != "walk":
+            from faultwise.tui.screens.walk import WalkScreen
+
+            self.app.switch_screen(WalkScreen(self.bench, self.case, self.walk))
+            return True
+        return False
+
+    def ask_cautions(self, prompt) -> bool:
+        """Show the prompt's unacknowledged cautions first; True when a modal was opened."""
+        if not prompt.unacknowledged or self._asking_cautions:
+            return False
+        from faultwise.tui.screens.caution import CautionScreen
+
+        pending = [c for c in prompt.cautions if c.id in prompt.unacknowledged]
+        self._asking_cautions = True
+
+        def done(ok: bool | None) -> None:
+            self._asking_cautions = False
+            if not ok:
+                self.leave_case(saved=True)
+                return
+
+            def acknowledge_all() -> None:
+                for caution in pending:
+                    self.walk.acknowledge(caution.id)
+
+            self.change(acknowledge_all)
+
+        self.app.push_screen(CautionScreen(pending), done)
+        return True
+
+    # ------------------------------------------------------------------ leaving
+
+    def leave_case(self, *, saved: bool) -> None:
+        """Release the lock and go back to the start screen."""
+        if not saved:
+            self.notify("The last step was not saved; the case file keeps the step before it.",
+                        severity="warning", timeout=8)
+        self.case.close()
+        while len(self.app.screen_stack) > 1:
+            self.app.pop_screen()
+
+    # ------------------------------------------------------------------ shared actions
+
+    def action_leave(self) -> None:
+        self.leave_case(saved=True)
+
+    def action_undo(self) -> None:
+        self.change(self.walk.undo, self._after_undo)
+
+    def _after_undo(self) -> None:
+        self.notify("Undone.", timeout=2)
+        if not self.next_screen():
+            self.show_prompt()
+
+    def action_note(self) -> None:
+        from faultwise.tui.screens.text_prompt import TextPromptScreen
+
+        def done(text: str | None) -> None:
+            if text:
+                self.change(lambda: self.walk.note(text),
+                            lambda: (self.notify("Note saved.", timeout=2), self.show_prompt()))
+
+        self.app.push_screen(TextPromptScreen(
+            "Note", "Anything worth keeping with the case (it is saved at once).",
+            placeholder="e.g. previous repair: cap replaced with wrong value",
+            prompt_id="note-prompt"), done)
+
+    def action_readings(self) -> None:
+        from faultwise.tui.screens.readings import ReadingsScreen
+
+        self.app.push_screen(ReadingsScreen(self.walk.profile.label, self.walk.expectations))
+
+    def action_cautions(self) -> None:
+        prompt = self.walk.prompt()
+        if prompt is None or not prompt.cautions:
+            self.notify("No cautions for this step.", timeout=2)
+            return
+        from faultwise.tui.screens.caution import CautionScreen
+
+        self.app.push_screen(CautionScreen(prompt.cautions, reminder=True))
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if action == "undo":
+            return any(e.get("type") in ("answer", "skip", "parts", "off-graph", "resume",
+                                         "to-closing") for e in self.walk.events)
+        if action == "cautions":
+            prompt = self.walk.prompt()
+            return bool(prompt and prompt.cautions)
+        return True

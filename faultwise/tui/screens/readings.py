@@ -1,0 +1,88 @@
+"""The readings sheet: every expectation for the set, grouped by stage, basis on selection."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.content import Content
+from textual.screen import Screen
+from textual.widgets import DataTable, Footer, Header, Static
+
+from faultwise.tui.widgets.check_panel import reading_text
+
+STAGE_ORDER = ("supply", "audio", "detector", "if", "oscillator", "antenna")
+STAGE_TITLES = {"supply": "Supply", "audio": "Audio", "detector": "Detector", "if": "IF",
+                "oscillator": "Oscillator and mixer", "antenna": "Antenna and tuning"}
+
+
+def grouped(expectations: dict) -> list[tuple[str, list]]:
+    """[(stage, [Expected, ...]), ...] in signal-chain order, names sorted within a stage."""
+    by_stage: dict[str, list] = {}
+    for exp in expectations.values():
+        by_stage.setdefault(exp.stage, []).append(exp)
+    order = list(STAGE_ORDER) + sorted(s for s in by_stage if s not in STAGE_ORDER)
+    return [(s, sorted(by_stage[s], key=lambda e: e.name)) for s in order if s in by_stage]
+
+
+class ReadingsScreen(Screen):
+    """Expected readings of one set (a DataTable addressed by expectation name)."""
+
+    BINDINGS = [Binding("escape,f6", "back", "Back", priority=True)]
+
+    def __init__(self, label: str, expectations: dict) -> None:
+        super().__init__(id="readings")
+        self.label = label
+        self.expectations = dict(expectations)
+
+    def compose(self) -> ComposeResult:
+        yield Header()
+        yield Static(Content.from_markup("[b]Readings sheet[/b]  $label   [dim]≈ rests on "
+                                         "typical values[/dim]", label=self.label),
+                     id="readings-caption")
+        yield DataTable(id="readings-table", cursor_type="row", zebra_stripes=True)
+        yield Static("", id="readings-basis")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        from rich.text import Text
+
+        table = self.query_one(DataTable)
+        table.add_column("Reading", key="title")
+        table.add_column("Low", key="low")
+        table.add_column("Nominal", key="nominal")
+        table.add_column("High", key="high")
+        table.add_column("", key="typical", width=1)
+        for stage, items in grouped(self.expectations):
+            table.add_row(Text(STAGE_TITLES.get(stage, stage).upper(), style="bold"), "", "",
+                          "", "", key=f"stage:{stage}")
+            for e in items:
+                table.add_row(Text("  " + (e.title or e.name)), reading_text(e.low, e.unit),
+                              reading_text(e.nominal, e.unit), reading_text(e.high, e.unit),
+                              "≈" if e.typical else "", key=e.name)
+        table.focus()
+        if len(self.expectations):
+            table.move_cursor(row=1)
+        else:
+            self.query_one("#readings-basis", Static).update(
+                "No expectations could be computed for this set.")
+
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        key = event.row_key.value if event.row_key is not None else None
+        exp = self.expectations.get(key)
+        box = self.query_one("#readings-basis", Static)
+        if exp is None:
+            box.update(Content(f"Stage {key.split(':', 1)[-1]}" if key else ""))
+            return
+        typical = ("\n≈ rests on typical values the profile did not give"
+                   if exp.typical else "")
+        box.update(Content.from_markup("[b]$name[/b]  ($unit)\n$basis$typical", name=exp.name,
+                                       unit=exp.unit or "-", basis=exp.basis or "-",
+                                       typical=typical))
+
+    def selected_name(self) -> str | None:
+        table = self.query_one(DataTable)
+        key = table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value
+        return key if key in self.expectations else None
+
+    def action_back(self) -> None:
+        self.app.pop_screen()

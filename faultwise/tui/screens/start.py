@@ -1,0 +1,221 @@
+"""The first screen: the safety statement, the cases at this bench, and a new case.
+
+It paints before the knowledge is loaded; the case listing is read in a worker.
+"""
+
+from __future__ import annotations
+
+from textual import work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Vertical
+from textual.screen import Screen
+from textual.widgets import DataTable, Footer, Header, Static
+
+from faultwise.tui.context import Bench
+from faultwise.tui.messages import KnowledgeReady
+from faultwise.tui.screens.safety import SAFETY_SHORT
+
+RECENT_CLOSED = 30
+
+
+def _when(iso: str | None) -> str:
+    """``2026-12-01T09:30:00+00:00`` -> ``2026-12-01 09:30``."""
+    return (iso or "")[:16].replace("T", " ")
+
+
+class StartScreen(Screen):
+    """Open cases to resume, recent closed cases, damaged files, and a new case."""
+
+    BINDINGS = [
+        Binding("n", "new_case", "New case"),
+        Binding("enter", "open_selected", "Open", show=True),
+        Binding("v", "view_selected", "View"),
+        Binding("r", "review", "Review"),
+        Binding("f9", "safety", "Safety"),
+        Binding("f5", "refresh", "Refresh"),
+    ]
+
+    def __init__(self, bench: Bench) -> None:
+        super().__init__(id="start")
+        self.bench = bench
+        self.listing = None
+        self._rows: dict[str, tuple[str, object]] = {}   # row key -> (kind, item)
+
+    def compose(self) -> ComposeResult:
+        yield Header()
+        with Vertical(id="start-body"):
+            yield Static(f"[b]Safety[/b]  {SAFETY_SHORT}  [dim](F9: the full notice)[/dim]",
+                         id="safety-strip")
+            yield Static("Reading the cases folder...", id="cases-caption", markup=False)
+            table = DataTable(id="cases", cursor_type="row", zebra_stripes=True)
+            table.add_columns("Case", "State", "Set", "Symptom", "Updated")
+            yield table
+            yield Static("", id="case-detail", markup=False)
+        yield Footer()
+
+    def on_mount(self) -> None:
+        self.query_one(DataTable).focus()
+        self.call_after_refresh(self.refresh_cases)
+
+    # listing --------------------------------------------------------------------------
+
+    def refresh_cases(self) -> None:
+        self._list_cases()
+
+    @work(thread=True, exit_on_error=False, group="listing", exclusive=True)
+    def _list_cases(self) -> None:
+        try:
+            listing = self.bench.store.list()
+        except Exception as exc:  # a folder we cannot read: say so, keep running
+            self.app.call_from_thread(self._show_listing_error, exc)
+            return
+        self.app.call_from_thread(self._show_listing, listing)
+
+    def _show_listing_error(self, exc: Exception) -> None:
+        self.query_one("#cases-caption", Static).update(
+            f"The cases folder cannot be read: {exc}")
+
+    def _show_listing(self, listing) -> None:
+        self.listing = listing
+        table = self.query_one(DataTable)
+        table.clear()
+        self._rows.clear()
+        closed = sorted(listing.closed, key=lambda s: s.updated or "", reverse=True)
+        for s in sorted(listing.open, key=lambda s: s.updated or "", reverse=True):
+            state = "open" if s.locked_by is None else f"open (in use at {s.locked_by.bench})"
+            self._add(table, "open", s, (s.id, state, s.set_label, s.symptom, _when(s.updated)))
+        for d in listing.damaged:
+            self._add(table, "damaged", d, (d.path.name, "DAMAGED", d.reason, "", ""))
+        for s in closed[:RECENT_CLOSED]:
+            state = f"closed: {s.outcome or '-'}"
+            self._add(table, "closed", s, (s.id, state, s.set_label, s.symptom, _when(s.updated)))
+        n_open, n_closed, n_bad = len(listing.open), len(listing.closed), len(listing.damaged)
+        caption = (f"Bench {self.bench.workspace.bench}: {n_open} open, {n_closed} closed"
+                   + (f", {n_bad} damaged" if n_bad else "")
+                   + f"   in {self.bench.workspace.cases_dir}")
+        if not self._rows:
+            caption += "\nNo cases yet. Press n to start one."
+        self.query_one("#cases-caption", Static).update(caption)
+        self._describe_selected()
+        self.refresh_bindings()
+
+    def _add(self, table: DataTable, kind: str, item, cells) -> None:
+        key = f"{kind}:{getattr(item, 'id', None) or item.path}"
+        self._rows[key] = (kind, item)
+        from rich.text import Text
+
+        table.add_row(*(Text(str(c or "")) for c in cells), key=key)
+
+    def selected(self) -> tuple[str, object] | None:
+        table = self.query_one(DataTable)
+        if not self._rows or table.row_count == 0:
+            return None
+        try:
+            key = table.coordinate_to_cell_key(table.cursor_coordinate).row_key
+        except Exception:
+            return None
+        return self._rows.get(key.value)
+
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        self._describe_selected()
+        self.refresh_bindings()
+
+    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
+        event.stop()
+        self.action_open_selected()
+
+    def _describe_selected(self) -> None:
+        chosen = self.selected()
+        detail = self.query_one("#case-detail", Static)
+        if chosen is None:
+            detail.update("")
+            return
+        kind, item = chosen
+        if kind == "damaged":
+            detail.update(f"{item.path}: damaged ({item.reason}). It is left untouched and "
+                          "cannot be opened for writing.")
+        elif kind == "open":
+            who = f" Customer: {item.customer}." if item.customer else ""
+            detail.update(f"Open since {_when(item.opened)}.{who} Enter resumes the walk.")
+        else:
+            fault = item.fault_title or item.fault or "no conclusion"
+            detail.update(f"{fault}; {item.minutes or 0} min. Enter shows the case read-only.")
+
+    # actions --------------------------------------------------------------------------
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        chosen = self.selected()
+        if action == "open_selected":
+            return chosen is not None
+        if action == "view_selected":
+            return chosen is not None and chosen[0] != "damaged"
+        if action == "review":
+            from faultwise.tui.app import review_available
+
+            return review_available()
+        return True
+
+    def action_safety(self) -> None:
+        self.app.show_safety(first_run=False)
+
+    def action_refresh(self) -> None:
+        self.refresh_cases()
+
+    def action_new_case(self) -> None:
+        from faultwise.tui.screens.new_case import NewCaseScreen
+
+        self.app.with_knowledge(lambda: self.app.push_screen(NewCaseScreen(self.bench)))
+
+    def action_open_selected(self) -> None:
+        chosen = self.selected()
+        if chosen is None:
+            return
+        kind, item = chosen
+        if kind == "damaged":
+            self.notify(f"{item.path.name} is damaged ({item.reason}); it cannot be opened for "
+                        "writing. Repair or move the file by hand.", severity="error",
+                        markup=False)
+        elif kind == "open":
+            self.app.with_knowledge(lambda: self.resume(item.id))
+        else:
+            self.action_view_selected()
+
+    def action_view_selected(self) -> None:
+        chosen = self.selected()
+        if chosen is None or chosen[0] == "damaged":
+            return
+        from faultwise.tui.screens.viewer import CaseViewerScreen
+
+        item = chosen[1]
+        self.app.with_knowledge(lambda: self.app.push_screen(CaseViewerScreen(self.bench, item.id)))
+
+    def action_review(self) -> None:
+        from faultwise.tui.screens.review import ReviewScreen
+
+        self.app.push_screen(ReviewScreen(self.bench))
+
+    def resume(self, case_id: str) -> None:
+        """Open the case for writing (takes the lock) and continue its walk."""
+        from faultwise.errors import FaultwiseError
+        from faultwise.tui.screens.walk import WalkScreen, open_walk
+
+        try:
+            case, walk = open_walk(self.bench, case_id)
+        except FaultwiseError as exc:
+            self.notify(str(exc), severity="error", markup=False, timeout=8)
+            self.refresh_cases()
+            return
+        self.app.push_screen(WalkScreen(self.bench, case, walk))
+
+    def on_screen_resume(self) -> None:
+        self.refresh_cases()
+
+    def on_knowledge_ready(self, message: KnowledgeReady) -> None:
+        self.refresh_bindings()
+
+    def palette_commands(self):
+        from textual.app import SystemCommand
+
+        yield SystemCommand("Refresh the case list", "Read the cases folder again",
+                            self.refresh_cases)

@@ -1,0 +1,198 @@
+"""The walk: one check at a time from the complaint to a conclusion.
+
+Layout: the stage map; the current check (title, instruction, expected band and basis,
+choices, the answer field and its refusal line); the guidance pane (how and why) beside
+it; the history of steps below. Every binding works while the answer field has focus.
+"""
+
+from __future__ import annotations
+
+from textual import on
+from textual.app import ComposeResult, SystemCommand
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.content import Content
+from textual.widgets import Footer, Header, Static
+
+from faultwise.tui.screens.case_screen import CaseScreen, open_walk
+from faultwise.tui.widgets.check_panel import CheckPanel
+from faultwise.tui.widgets.history import History
+from faultwise.tui.widgets.stage_map import StageMap, StepView, stage_states
+
+__all__ = ["WalkScreen", "open_walk", "guidance_for", "map_states"]
+
+
+def guidance_for(prompt, knowledge) -> Content:
+    """How and why of the current step, and its cautions, as safe Content."""
+    node = prompt.node
+    parts: list[Content] = []
+    if node is None:
+        parts.append(Content("Every suspect for this complaint was cleared. Record what you "
+                             "found with F5, or note it with F3."))
+    elif prompt.kind == "escalate":
+        parts.append(Content.from_markup("[b]Where the graph ends[/b]\n$a",
+                                         a=getattr(node, "advice", "") or "-"))
+    else:
+        how = getattr(node, "how", "") or "-"
+        why = getattr(node, "why", "") or "-"
+        parts.append(Content.from_markup("[b]How[/b]\n$how", how=how))
+        parts.append(Content.from_markup("[b]Why[/b]\n$why", why=why))
+    for frame in prompt.context:
+        parts.append(Content.from_markup("[b]Suspects[/b] $t\n[dim]now:[/dim] $c", t=frame.title,
+                                         c=frame.current_label or "-"))
+    for caution in prompt.cautions:
+        parts.append(Content.from_markup("[b]⚠ $t[/b]\n$x", t=caution.title, x=caution.text))
+    return Content("\n\n").join(parts)
+
+
+def map_states(walk) -> dict[str, str]:
+    """Stage states for the map from the walk's steps and its conclusion."""
+    nodes = walk.knowledge.nodes
+    views = [StepView(stage=getattr(nodes.get(s.node), "stage", ""), outcome=s.outcome,
+                      normal=s.normal, phase=s.phase) for s in walk.steps]
+    fault = walk.conclusion
+    return stage_states(views, fault.stage if fault is not None else None)
+
+
+class WalkScreen(CaseScreen):
+    """Diagnosis: checks, skips, notes, off-graph findings, undo, why-this-check."""
+
+    BINDINGS = [
+        Binding("f1", "guidance", "Guidance", priority=True),
+        Binding("f2", "why", "Why this?", priority=True),
+        Binding("f4", "skip", "Skip", priority=True),
+        Binding("f5", "off_graph", "Found it", priority=True),
+    ]
+
+    def __init__(self, bench, case, walk) -> None:
+        super().__init__(bench, case, walk, id="walk")
+        self.guidance_open = bool(case.data.get("apprentice"))
+
+    def compose(self) -> ComposeResult:
+        yield Header()
+        yield StageMap(id="stage-map")
+        with Horizontal(id="walk-body"):
+            with Vertical(id="walk-left"):
+                yield Static("", id="walk-context")
+                yield CheckPanel(id="check")
+                yield Static("", id="escalate")
+                yield History(id="history")
+            with VerticalScroll(id="guidance"):
+                yield Static("", id="guidance-text")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        self.sub_title = f"case {self.case.id}"
+        self.query_one("#guidance").display = self.guidance_open
+        self.show_prompt()
+
+    # ------------------------------------------------------------------ drawing
+
+    def show_prompt(self) -> None:
+        if self.next_screen():
+            return
+        prompt = self.walk.prompt()
+        panel = self.query_one(CheckPanel)
+        escalate = self.query_one("#escalate", Static)
+        self.query_one(StageMap).show(map_states(self.walk), prompt.stage)
+        self.query_one(History).show(self.walk.events, self.walk.steps)
+        self.query_one("#guidance-text", Static).update(guidance_for(prompt, self.walk.knowledge))
+        context = " › ".join(f.current_label or f.title for f in prompt.context)
+        self.query_one("#walk-context", Static).update(
+            Content.from_markup("[dim]Following:[/dim] $c", c=context) if context else
+            Content.from_markup("[dim]Complaint:[/dim] $c", c=self.case.data.get("complaint")
+                                or self.walk.symptom))
+        if prompt.kind == "check":
+            panel.display = True
+            escalate.display = False
+            if self.ask_cautions(prompt):
+                panel.display = False
+                escalate.display = True
+                escalate.update("Read and acknowledge the caution before this check.")
+                return
+            panel.show(prompt)
+            panel.input.focus()
+        else:
+            panel.display = False
+            escalate.display = True
+            node = prompt.node
+            title = getattr(node, "title", None) or "No suspect is left"
+            escalate.update(Content.from_markup(
+                "[b]$t[/b]\n$w\nThe graph has nothing more to check here. Press F5 to record "
+                "what you found (an off-graph finding), F3 for a note, ctrl+z to undo.",
+                t=title, w=prompt.warning or getattr(node, "advice", "") or ""))
+            self.set_focus(None)
+        self.refresh_bindings()
+
+    # ------------------------------------------------------------------ answering
+
+    @on(CheckPanel.Answered)
+    def answered(self, event: CheckPanel.Answered) -> None:
+        from faultwise.errors import FaultwiseError
+
+        panel = self.query_one(CheckPanel)
+        try:
+            self.walk.answer(event.text)
+        except FaultwiseError as exc:
+            panel.show_error(str(exc))      # nothing was recorded
+            return
+        self.commit(self.show_prompt)
+
+    # ------------------------------------------------------------------ actions
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        prompt = self.walk.prompt()
+        asking = prompt is not None and prompt.kind == "check"
+        if action == "skip":
+            return asking and prompt.phase != "closing"
+        if action == "why":
+            return prompt is not None and prompt.phase == "diagnose" and asking
+        if action == "off_graph":
+            return self.walk.phase == "diagnose"
+        return super().check_action(action, parameters)
+
+    def action_guidance(self) -> None:
+        self.guidance_open = not self.guidance_open
+        self.query_one("#guidance").display = self.guidance_open
+
+    def action_why(self) -> None:
+        explanation = self.walk.explain()
+        if explanation is None:
+            self.notify("No ranking applies to this step.", timeout=3)
+            return
+        from faultwise.tui.screens.explain import ExplainScreen
+
+        self.app.push_screen(ExplainScreen(explanation, self.walk.knowledge))
+
+    def action_skip(self) -> None:
+        from faultwise.tui.screens.text_prompt import TextPromptScreen
+
+        def done(reason: str | None) -> None:
+            if reason:
+                self.change(lambda: self.walk.skip(reason))
+
+        self.app.push_screen(TextPromptScreen(
+            "Skip this check", "Why can it not be made? The walk goes on without it.",
+            placeholder="e.g. no ESR meter at this bench", prompt_id="skip-prompt"), done)
+
+    def action_off_graph(self) -> None:
+        from faultwise.tui.screens.text_prompt import TextPromptScreen
+
+        def done(finding: str | None) -> None:
+            if finding:
+                self.change(lambda: self.walk.off_graph(finding))
+
+        self.app.push_screen(TextPromptScreen(
+            "Record what you found", "A fault the graph does not know. Diagnosis ends here "
+            "and the repair starts.", placeholder="e.g. cracked solder joint at the IF can",
+            prompt_id="off-graph-prompt"), done)
+
+    def action_to_closing(self) -> None:
+        self.change(self.walk.to_closing)
+
+    def palette_commands(self):
+        yield SystemCommand("Return the set unrepaired",
+                            "Skip to the closing checks (the leakage check) and close",
+                            self.action_to_closing)
+        yield SystemCommand("Show the cautions of this check", "See the cautions again",
+                            self.action_cautions)

@@ -1,0 +1,119 @@
+"""The receiver as a row of stage boxes, signal path left to right, the supply beside it.
+
+Each box shows its stage's state as a symbol AND a word (never colour alone) and is
+coloured by state; the stage of the current check has a heavy border.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Iterable
+
+from textual.app import ComposeResult
+from textual.containers import Horizontal
+from textual.widgets import Static
+
+UNTESTED, SUSPECT, CLEARED, FAULTY = "untested", "suspect", "cleared", "faulty"
+
+# (box id, label, domain stage): the speaker belongs to the audio stage in the graph.
+BOXES = (
+    ("antenna", "ANTENNA", "antenna"),
+    ("oscillator", "OSC+MIX", "oscillator"),
+    ("if", "IF", "if"),
+    ("detector", "DETECT", "detector"),
+    ("audio", "AUDIO", "audio"),
+    ("speaker", "SPEAKER", "audio"),
+    ("supply", "SUPPLY", "supply"),
+)
+
+STATE_TEXT = {
+    UNTESTED: "· to test",
+    SUSPECT: "? suspect",
+    CLEARED: "✓ cleared",
+    FAULTY: "✗ FAULTY",
+}
+
+
+@dataclass(frozen=True)
+class StepView:
+    """What the map needs of one recorded step."""
+
+    stage: str
+    outcome: str
+    normal: bool
+    phase: str = "diagnose"
+
+
+def stage_states(steps: Iterable[StepView], fault_stage: str | None) -> dict[str, str]:
+    """Stage -> state: any abnormal diagnose answer makes a stage suspect, answers that
+    were all normal clear it, a skipped check changes nothing, the conclusion is faulty."""
+    states: dict[str, str] = {}
+    for step in steps:
+        if step.phase != "diagnose" or step.outcome == "skipped":
+            continue
+        if not step.normal:
+            states[step.stage] = SUSPECT
+        elif states.get(step.stage) != SUSPECT:
+            states[step.stage] = CLEARED
+    if fault_stage:
+        states[fault_stage] = FAULTY
+    return states
+
+
+class StageBox(Static):
+    """One stage: label in the border, state below it."""
+
+    def __init__(self, box_id: str, label: str, stage: str) -> None:
+        super().__init__(STATE_TEXT[UNTESTED], id=f"stage-{box_id}", classes="stage-box",
+                         markup=False)
+        self.stage = stage
+        self.border_title = label
+        self.state = UNTESTED
+
+    def show(self, state: str, current: bool) -> None:
+        self.state = state
+        self.update(STATE_TEXT[state])
+        for name in STATE_TEXT:
+            self.set_class(name == state, f"-{name}")
+        self.set_class(current, "-current")
+
+
+class StageMap(Horizontal):
+    """The row of stage boxes. ``show(states, current_stage)`` repaints them."""
+
+    DEFAULT_CSS = """
+    StageMap {
+        height: 3;
+        width: 1fr;
+    }
+    StageMap .stage-box {
+        width: 1fr;
+        min-width: 10;
+        height: 3;
+        border: round $panel-lighten-2;
+        border-title-align: left;
+        content-align: center middle;
+        color: $text-muted;
+    }
+    StageMap #stage-supply {
+        margin-left: 1;
+        border: round $secondary 60%;
+    }
+    StageMap .stage-box.-suspect { color: $warning; border: round $warning; }
+    StageMap .stage-box.-cleared { color: $success; border: round $success 70%; }
+    StageMap .stage-box.-faulty { color: $error; text-style: bold; border: round $error; }
+    StageMap .stage-box.-current {
+        border: heavy $accent;
+        border-title-color: $accent;
+        border-title-style: bold reverse;
+        background: $accent 15%;
+    }
+    """
+
+    def compose(self) -> ComposeResult:
+        for box_id, label, stage in BOXES:
+            yield StageBox(box_id, label, stage)
+
+    def show(self, states: dict[str, str], current_stage: str | None) -> None:
+        for box in self.query(StageBox):
+            box.show(states.get(box.stage, UNTESTED), box.stage == current_stage)

@@ -1,0 +1,88 @@
+"""Helpers for the tests that use ngspice (Debian package) as an independent circuit oracle.
+
+Each test writes a netlist of the SAME circuit our model solves, runs ``ngspice -b`` and
+reads back ``.meas`` results. Tests skip with a reason when ngspice is not installed.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+import shutil
+import subprocess
+from pathlib import Path
+
+import pytest
+
+from faultwise.calc.rectifier import Diode, RectifierCircuit
+
+_MEAS = re.compile(r"^\s*(\w+)\s*=\s*([-+0-9.eE]+)", re.MULTILINE)
+
+
+def need_ngspice() -> str:
+    """Path of ngspice, or skip the calling test."""
+    path = shutil.which("ngspice")
+    if path is None:
+        pytest.skip("ngspice is not installed (apt-get install ngspice); the oracle checks need it")
+    return path
+
+
+def run_ngspice(netlist: str, workdir: Path) -> dict[str, float]:
+    """Run a batch netlist; return every ``name = value`` line ngspice printed (lower-case names)."""
+    exe = need_ngspice()
+    path = workdir / "circuit.cir"
+    path.write_text(netlist, encoding="ascii")
+    proc = subprocess.run([exe, "-b", str(path)], capture_output=True, text=True, timeout=60,
+                          cwd=workdir)
+    out = proc.stdout + proc.stderr
+    if proc.returncode != 0:
+        raise AssertionError(f"ngspice failed ({proc.returncode}):\n{out[-2000:]}")
+    return {m.group(1).lower(): float(m.group(2)) for m in _MEAS.finditer(out)}
+
+
+def _diode_element(name: str, anode: str, cathode: str, d: Diode) -> list[str]:
+    """A vacuum diode as a behavioural current source, a junction as a D model."""
+    if d.kind == "child":
+        return [f"B{name} {anode} {cathode} I = {d.child_k:.9g} * pow(max(V({anode},{cathode}),0),1.5)"]
+    return [f"D{name} {anode} {cathode} DM{name}",
+            f".model DM{name} D(IS={d.is_a:.9g} N={d.n:.9g} RS={d.rs_ohm:.9g})"]
+
+
+def rectifier_netlist(c: RectifierCircuit, cycles: int = 30, step_us: float = 10.0) -> str:
+    """The rectifier-filter circuit of faultwise.calc.rectifier, with last-cycle measurements."""
+    vpk = math.sqrt(2.0) * c.source_rms_v
+    f = c.freq_hz
+    i2 = c.filter_load_ma / 1000.0
+    i1 = c.load_ma / 1000.0 - i2
+    ic1 = 0.8 * vpk  # a neutral start; the run settles for many time constants
+    ic2 = ic1 - c.filter_ohm * i2
+    lines = [f"* faultwise rectifier oracle: {c.circuit}"]
+    if c.circuit == "half-wave":
+        lines += [f"VS src 0 SIN(0 {vpk:.9g} {f:g})", f"RS src a {c.surge_ohm:.9g}"]
+        lines += _diode_element("1", "a", "k", c.diode)
+    elif c.circuit == "full-wave":
+        lines += [f"VSA srca 0 SIN(0 {vpk:.9g} {f:g})", f"VSB srcb 0 SIN(0 {-vpk:.9g} {f:g})",
+                  f"RSA srca a {c.surge_ohm:.9g}", f"RSB srcb b {c.surge_ohm:.9g}"]
+        lines += _diode_element("1", "a", "k", c.diode) + _diode_element("2", "b", "k", c.diode)
+    else:  # bridge: a floating winding, four rectifiers
+        lines += [f"VS src n SIN(0 {vpk:.9g} {f:g})", f"RS src a {c.surge_ohm:.9g}",
+                  "RLEAKA a 0 1e9", "RLEAKN n 0 1e9"]
+        lines += (_diode_element("1", "a", "k", c.diode) + _diode_element("2", "n", "k", c.diode)
+                  + _diode_element("3", "0", "a", c.diode) + _diode_element("4", "0", "n", c.diode))
+    t_end = cycles / f
+    t_from = (cycles - 1) / f
+    lines += [
+        f"C1 k 0 {c.first_cap_uf:.9g}u IC={ic1:.9g}",
+        f"I1 k 0 DC {i1:.9g}",
+        f"RF k flt {c.filter_ohm:.9g}",
+        f"C2 flt 0 {c.second_cap_uf:.9g}u IC={ic2:.9g}",
+        f"I2 flt 0 DC {i2:.9g}",
+        f".tran {step_us:g}u {t_end:.9g} {t_from - 1 / f:.9g} {step_us:g}u uic",
+        f".meas tran v1avg AVG v(k) from={t_from:.9g} to={t_end:.9g}",
+        f".meas tran v1max MAX v(k) from={t_from:.9g} to={t_end:.9g}",
+        f".meas tran v1min MIN v(k) from={t_from:.9g} to={t_end:.9g}",
+        f".meas tran v1prev AVG v(k) from={t_from - 1 / f:.9g} to={t_from:.9g}",
+        f".meas tran v2avg AVG v(flt) from={t_from:.9g} to={t_end:.9g}",
+        ".end",
+    ]
+    return "\n".join(lines) + "\n"

@@ -1,0 +1,53 @@
+"""The domain never imports Textual or Rich (DESIGN section 2, STYLE "The domain stays pure").
+
+A fresh interpreter imports every domain module (everything in the package except the
+TUI, the CLI and its commands) and reports which UI packages ended up in sys.modules.
+"""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+
+import faultwise
+
+UI_PACKAGES = ("textual", "rich")
+NOT_DOMAIN = ("faultwise.tui", "faultwise.commands", "faultwise.cli", "faultwise.__main__")
+
+PROBE = r"""
+import importlib, json, pkgutil, sys
+import faultwise
+skip = tuple(sys.argv[1].split(","))
+names = []
+for info in pkgutil.walk_packages(faultwise.__path__, "faultwise."):
+    if info.name.startswith(skip):
+        continue
+    importlib.import_module(info.name)
+    names.append(info.name)
+ui = sorted(m for m in sys.modules if m.split(".")[0] in ("textual", "rich"))
+print(json.dumps({"modules": names, "ui": ui}))
+"""
+
+
+def _probe() -> dict:
+    out = subprocess.run([sys.executable, "-c", PROBE, ",".join(NOT_DOMAIN)],
+                         capture_output=True, text=True, check=True, timeout=120)
+    return json.loads(out.stdout)
+
+
+def test_domain_modules_do_not_import_textual_or_rich():
+    result = _probe()
+    # The probe must have imported the domain, or it proves nothing.
+    assert "faultwise.profile" in result["modules"]
+    assert "faultwise.nodes" in result["modules"]
+    assert not any(m.startswith("faultwise.tui") for m in result["modules"])
+    assert result["ui"] == [], f"domain imports pulled in {result['ui'][:5]}"
+
+
+def test_probe_detects_a_ui_import():
+    """The probe would see Textual if a domain module imported it (guards the check itself)."""
+    out = subprocess.run([sys.executable, "-c", "import faultwise.tui.app, sys, json;"
+                          "print(json.dumps('textual' in sys.modules))"],
+                         capture_output=True, text=True, check=True, timeout=120)
+    assert json.loads(out.stdout) is True
