@@ -108,6 +108,14 @@ def _damage(file, reason: str) -> DamagedCaseError:
     return err
 
 
+def _ends_early(text: str, exc: json.JSONDecodeError) -> bool:
+    """The parser failed on the last line of a document that starts like JSON: cut short."""
+    stripped = text.rstrip()
+    if stripped[:1] not in "{[" or exc.msg.startswith("Extra data"):
+        return False
+    return exc.pos >= len(stripped) or "\n" not in stripped[exc.pos:]
+
+
 def read_case_bytes(raw: bytes, file="case") -> dict:
     """Bytes of a case file -> migrated case data; DamagedCaseError with ``reason`` otherwise."""
     if not raw.strip():
@@ -121,8 +129,7 @@ def read_case_bytes(raw: bytes, file="case") -> dict:
     try:
         data = json.loads(text)
     except json.JSONDecodeError as exc:
-        stripped = text.rstrip()
-        if stripped[:1] in "{[" and exc.pos >= len(stripped):
+        if _ends_early(text, exc):
             raise _damage(file, "truncated") from None
         raise _damage(file, "not JSON") from None
     except RecursionError:
@@ -219,6 +226,15 @@ def _now_text(clock: Callable[[], datetime]) -> str:
 
 def _utc_now() -> datetime:
     return datetime.now(timezone.utc).astimezone()
+
+
+def case_path(folder, case_id: str) -> Path:
+    """``<folder>/<id>.json``; CaseError unless the id is letters, digits, '-' and '_'."""
+    if not isinstance(case_id, str) or not _ID_RE.match(case_id):
+        raise CaseError(f"'{case_id}' is not a case id", key="case",
+                        hint="a case id holds only letters, digits, '-' and '_', "
+                             "such as 20261201-B1-001")
+    return Path(folder) / f"{case_id}.json"
 
 
 # --------------------------------------------------------------------------- open case
@@ -325,11 +341,7 @@ class CaseStore:
 
     def path_for(self, case_id: str) -> Path:
         """The case file of an id; CaseError unless the id is letters, digits, '-' and '_'."""
-        if not isinstance(case_id, str) or not _ID_RE.match(case_id):
-            raise CaseError(f"'{case_id}' is not a case id", key="case",
-                            hint="a case id holds only letters, digits, '-' and '_', "
-                                 "such as 20261201-B1-001")
-        return self.folder / f"{case_id}.json"
+        return case_path(self.folder, case_id)
 
     def _lock_path(self, case_id: str) -> Path:
         return self.folder / f"{case_id}.lock"

@@ -7,9 +7,9 @@ summary built here, so an unchanged case is never parsed twice. Case format: DEV
 
 from __future__ import annotations
 
-from datetime import datetime
+from datetime import datetime, timezone
 
-SUMMARY_VERSION = 1          # bump when summarise() changes: the index is then rebuilt
+SUMMARY_VERSION = 2          # bump when summarise() changes: the index is then rebuilt
 
 
 def parse_time(text) -> datetime | None:
@@ -17,19 +17,8 @@ def parse_time(text) -> datetime | None:
     if not isinstance(text, str) or not text:
         return None
     try:
-        return datetime.fromisoformat(text.replace("Z", "+00:00"))
+        return datetime.fromisoformat(text)   # Python 3.11 reads "Z" too
     except ValueError:
-        return None
-
-
-def _minutes_between(start, end) -> float | None:
-    """(end - start) in minutes, None when either time is missing or they do not compare."""
-    a, b = parse_time(start), parse_time(end)
-    if a is None or b is None:
-        return None
-    try:
-        return max(0.0, (b - a).total_seconds() / 60.0)
-    except TypeError:  # one naive, one aware
         return None
 
 
@@ -54,35 +43,57 @@ def _number(value) -> float | None:
     return None
 
 
+def _str(value) -> str:
+    return value if type(value) is str else _text(value)
+
+
+def norm_text(text: str) -> str:
+    """Lower case, runs of white space as one space: for matching customers and sets."""
+    return " ".join(str(text).lower().split())
+
+
 def summarise(case: dict, file: str) -> dict:
     """What the review needs of one case: plain JSON-ready data (see DEVELOPERS, review).
 
     ``checks``: [node, outcome] of each diagnose-phase answer in order; ``skips``: [node,
     reason]; ``off_graph``: findings; ``to_fault_min``: minutes from ``opened`` to the last
-    diagnose-phase event (the one that reached the conclusion), as recorded.
+    diagnose-phase event (the one that reached the conclusion), as recorded; ``t_open`` and
+    ``t_close``: POSIX seconds; ``day``/``month``: the close's date as recorded; ``who``:
+    customer and set, normalised, for spotting a set that comes back ("" with no customer).
     """
     checks, skips, findings = [], [], []
-    last_diag_at = None
+    last_at = None
     events = case.get("events")
-    for ev in events if isinstance(events, list) else ():
-        if not isinstance(ev, dict):
+    for ev in events if type(events) is list else ():
+        if type(ev) is not dict:
             continue
         kind = ev.get("type")
-        phase = ev.get("phase", "diagnose")
-        if kind == "answer" and phase == "diagnose":
-            checks.append([_text(ev.get("node")), _text(ev.get("outcome"))])
-            last_diag_at = ev.get("at")
+        if kind == "answer":
+            if ev.get("phase", "diagnose") == "diagnose":
+                checks.append([_str(ev.get("node")), _str(ev.get("outcome"))])
+                last_at = ev.get("at")
         elif kind == "skip":
-            skips.append([_text(ev.get("node")), _text(ev.get("reason"))])
-            if phase == "diagnose":
-                last_diag_at = ev.get("at")
+            skips.append([_str(ev.get("node")), _str(ev.get("reason"))])
+            if ev.get("phase", "diagnose") == "diagnose":
+                last_at = ev.get("at")
         elif kind == "off-graph" and ev.get("finding"):
-            findings.append(_text(ev.get("finding")))
+            findings.append(_str(ev.get("finding")))
     off = case.get("off_graph")
     if not findings and off:
         findings.append(_text(off.get("finding") if isinstance(off, dict) else off))
     conclusion = case.get("conclusion")
-    conclusion = conclusion if isinstance(conclusion, dict) else {}
+    conclusion = conclusion if type(conclusion) is dict else {}
+    opened, closed = parse_time(case.get("opened")), parse_time(case.get("closed"))
+    at_fault = parse_time(last_at)
+    to_fault = None
+    if opened is not None and at_fault is not None:
+        try:
+            to_fault = max(0.0, (at_fault - opened).total_seconds() / 60.0)
+        except TypeError:  # one time with a zone, one without
+            to_fault = None
+    customer = _text(case.get("customer"))
+    set_name = _set_name(case)
+    day = (closed or opened).date().isoformat() if (closed or opened) else ""
     return {
         "id": _text(case.get("id")) or file.removesuffix(".json"),
         "file": file,
@@ -90,17 +101,30 @@ def summarise(case: dict, file: str) -> dict:
         "bench": _text(case.get("bench")),
         "opened": _text(case.get("opened")),
         "closed": _text(case.get("closed")),
-        "customer": _text(case.get("customer")),
-        "set": _set_name(case),
+        "t_open": _stamp(opened),
+        "t_close": _stamp(closed),
+        "day": day,
+        "month": closed.strftime("%Y-%m") if closed else "",
+        "customer": customer,
+        "set": set_name,
+        "who": (norm_text(customer) + " | " + norm_text(set_name)) if customer.strip() else "",
         "symptom": _text(case.get("symptom")),
         "family": _text(case.get("family")),
         "outcome": _text(case.get("outcome")),
         "minutes": _number(case.get("minutes")),
         "fault": _text(conclusion.get("fault")),
-        "fault_title": _text(conclusion.get("title")),
         "reopened_from": _text(case.get("reopened_from")),
         "checks": checks,
         "skips": skips,
         "off_graph": findings,
-        "to_fault_min": _minutes_between(case.get("opened"), last_diag_at),
+        "to_fault_min": to_fault,
     }
+
+
+def _stamp(t: datetime | None) -> float | None:
+    """POSIX seconds of an aware time (a naive one is taken as UTC), None for None."""
+    if t is None:
+        return None
+    if t.tzinfo is None:
+        t = t.replace(tzinfo=timezone.utc)
+    return t.timestamp()

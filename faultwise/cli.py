@@ -25,10 +25,17 @@ class _Parser(argparse.ArgumentParser):
         self.exit(1, f"faultwise: {message}. Run '{self.prog} --help' for the options.\n")
 
 
-def add_workspace_options(p: argparse.ArgumentParser) -> None:
-    """The options every command that reads the workspace takes."""
-    p.add_argument("--knowledge", metavar="DIR", help="knowledge folder (default: the bundled one)")
-    p.add_argument("--cases", metavar="DIR", help="cases folder (default: ./cases)")
+def add_workspace_options(p: argparse.ArgumentParser, *, top: bool = False) -> None:
+    """The options every command that reads the workspace takes.
+
+    On a subcommand the options default to "not given" (SUPPRESS), so that
+    ``faultwise --knowledge X lint`` and ``faultwise lint --knowledge X`` mean the same.
+    """
+    default = None if top else argparse.SUPPRESS
+    p.add_argument("--knowledge", metavar="DIR", default=default,
+                   help="knowledge folder (default: the bundled one)")
+    p.add_argument("--cases", metavar="DIR", default=default,
+                   help="cases folder (default: ./cases)")
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -37,7 +44,7 @@ def build_parser() -> argparse.ArgumentParser:
     from faultwise import __version__
 
     parser.add_argument("--version", action="version", version=f"faultwise {__version__}")
-    add_workspace_options(parser)
+    add_workspace_options(parser, top=True)
     parser.add_argument("--bench", metavar="NAME", help="this bench's name (default: B1)")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     for name in COMMANDS:

@@ -110,7 +110,7 @@ def expect(profile, *, tube_table=None) -> dict[str, Expected]:
     _tuning(ctx)
     _antenna(ctx)
     order = {s: i for i, s in enumerate(STAGES)}
-    items = sorted(ctx.out.items(), key=lambda kv: (order[kv[1].stage], kv[0]))
+    items = sorted(ctx.out.items(), key=lambda kv: order[kv[1].stage])  # stable: build order
     return dict(items)
 
 
@@ -328,11 +328,11 @@ memory) or 60 V at 125 mA (5Y3GT-class full-wave, tube data in REFERENCES)."""
 
 
 @dataclass(frozen=True)
-class _RectifierCorners:
-    nominal: object
-    low: object      # the corner giving the lowest DC (and the most ripple)
-    high: object     # the corner giving the highest DC (and the least ripple)
-    circuits: tuple  # (nominal, low, high) RectifierCircuit
+class _Supply:
+    """The simulated supply: nominal result, worst-case bands, and what to say about them."""
+
+    nominal: object               # RectifierResult at nominal values
+    bands: dict                   # output name -> SupplyBand
     diode_label: str
     diode_typical: bool
     source_text: str
@@ -358,8 +358,8 @@ def _rectifier_diode(ctx: _Context, circuit: str, source_rms_v: float):
     return r.tube_diode(drop, at, f"{name}, typical drop (not in the tube table)"), True
 
 
-def _rectifier_corners(ctx: _Context) -> _RectifierCorners | None:
-    """Simulate the supply at nominal and at the two corners that bound DC and ripple."""
+def _supply(ctx: _Context) -> _Supply | None:
+    """Simulate the supply at nominal and at the corners that bound each output."""
     if ctx._rect is not None:
         return ctx._rect
     from faultwise.calc import rectifier as r
@@ -367,8 +367,8 @@ def _rectifier_corners(ctx: _Context) -> _RectifierCorners | None:
     from faultwise.errors import ProfileError
 
     p, s = ctx.p, ctx.p.supply
-    need = (s.circuit, s.surge_ohm, s.first_cap_uf, s.filter_ohm, s.second_cap_uf, s.load_ma,
-            s.filter_load_ma, p.mains_v, p.mains_hz)
+    need = (s.circuit, s.rectifier, s.surge_ohm, s.first_cap_uf, s.filter_ohm, s.second_cap_uf,
+            s.load_ma, s.filter_load_ma, p.mains_v, p.mains_hz)
     if any(v is None for v in need) or (p.family == "transformer" and s.secondary_v is None):
         return None
     line = ctx.line()
@@ -383,34 +383,30 @@ def _rectifier_corners(ctx: _Context) -> _RectifierCorners | None:
         each = "each half of the winding" if s.circuit == "full-wave" else "the winding"
         src_text = f"secondary {_n(src_nom)} V RMS ({each}), following the line"
     diode, diode_typ = _rectifier_diode(ctx, s.circuit, src_nom)
-    sp = {"src": line, "rs": resistor_ohm(s.surge_ohm), "c1": electrolytic_uf(s.first_cap_uf),
+    sp = {"line": line, "rs": resistor_ohm(s.surge_ohm), "c1": electrolytic_uf(s.first_cap_uf),
           "load": load_ma(1.0), "rf": resistor_ohm(s.filter_ohm),
           "c2": electrolytic_uf(s.second_cap_uf)}
 
-    def circuit(end: str) -> r.RectifierCircuit:
-        pick = {"nominal": lambda x, lower_v: x.nominal,
-                "low": lambda x, lower_v: x.low if lower_v else x.high,
-                "high": lambda x, lower_v: x.high if lower_v else x.low}[end]
-        scale = pick(sp["load"], False)
+    def make(v: dict) -> r.RectifierCircuit:
         return r.RectifierCircuit(
-            circuit=s.circuit, source_rms_v=src_nom * pick(sp["src"], True) / line.nominal,
-            freq_hz=p.mains_hz, surge_ohm=pick(sp["rs"], False), diode=diode,
-            first_cap_uf=pick(sp["c1"], True), load_ma=s.load_ma * scale,
-            filter_ohm=pick(sp["rf"], False), second_cap_uf=pick(sp["c2"], True),
-            filter_load_ma=s.filter_load_ma * scale)
+            circuit=s.circuit, source_rms_v=src_nom * v["line"] / line.nominal,
+            freq_hz=p.mains_hz, surge_ohm=v["rs"], diode=diode, first_cap_uf=v["c1"],
+            load_ma=s.load_ma * v["load"], filter_ohm=v["rf"], second_cap_uf=v["c2"],
+            filter_load_ma=s.filter_load_ma * v["load"])
 
-    cs = (circuit("nominal"), circuit("low"), circuit("high"))
-    res = tuple(r.simulate(c) for c in cs)
-    if res[1].rectifier_out_v <= 0.1 * r.peak_v(cs[1].source_rms_v):
+    nominal = r.simulate(make({k: x.nominal for k, x in sp.items()}))
+    if nominal.rectifier_out_v <= 0.2 * r.peak_v(src_nom) or \
+            nominal.filtered_v <= 0.1 * r.peak_v(src_nom):
         raise ProfileError(f"the supply cannot deliver {_n(s.load_ma)} mA through "
-                           f"{_n(s.surge_ohm)} ohm from {_n(src_nom)} V", file=p.source,
-                           key="supply.load_ma", hint="check load_ma, surge_ohm and the capacitors")
-    band_text = (f"{line.rule}, {sp['rs'].rule}, {sp['c1'].rule}, {sp['load'].rule}; "
-                 "the DC falls with lower line, more surge resistance, less capacitance and more "
-                 "load, so the two corners (all low, all high) bound it")
-    keys = ("supply", "mains")
-    ctx._rect = _RectifierCorners(res[0], res[1], res[2], cs, diode.label, diode_typ, src_text,
-                                  band_text, keys)
+                           f"{_n(s.surge_ohm)} ohm and {_n(s.filter_ohm)} ohm from "
+                           f"{_n(src_nom)} V", file=p.source, key="supply.load_ma",
+                           hint="check load_ma, filter_load_ma, surge_ohm and filter_ohm")
+    bands = r.supply_bands(make, sp)
+    band_text = (f"worst case over {line.rule}, {sp['rs'].rule}, {sp['c1'].rule}, "
+                 f"{sp['load'].rule}, each output at the corner that moves it furthest (signs "
+                 "from one simulation per input)")
+    ctx._rect = _Supply(nominal, bands, diode.label, diode_typ, src_text, band_text,
+                        ("supply", "mains"))
     return ctx._rect
 
 
@@ -418,31 +414,33 @@ def _rectifier(ctx: _Context) -> None:
     from faultwise.calc.rectifier import ripple_bound_vpp
     from faultwise.calc.tolerance import load_ma, resistor_ohm, worst_case
 
-    rc = _rectifier_corners(ctx)
-    if rc is None:
+    sup = _supply(ctx)
+    if sup is None:
         return
     s, p = ctx.p.supply, ctx.p
-    nom, lo, hi = rc.nominal, rc.low, rc.high
-    typ = ctx.typical(*rc.keys) or rc.diode_typical
-    model = (f"{s.circuit} {s.rectifier} rectifier {rc.source_text}, {_n(s.surge_ohm)} ohm surge, "
-             f"{rc.diode_label}, {_n(s.first_cap_uf)} uF, {_n(s.load_ma)} mA load "
+    nom, bands = sup.nominal, sup.bands
+    typ = ctx.typical(*sup.keys) or sup.diode_typical
+    model = (f"{s.circuit} {s.rectifier} rectifier {sup.source_text}, {_n(s.surge_ohm)} ohm surge, "
+             f"{sup.diode_label}, {_n(s.first_cap_uf)} uF, {_n(s.load_ma)} mA load "
              f"(constant-current sinks), {_n(s.filter_ohm)} ohm filter with {_n(s.filter_load_ma)} "
              f"mA, {_n(s.second_cap_uf)} uF: simulated to steady state")
+    b1 = bands["rectifier_out_v"]
     ctx.add("supply.rectifier_out_v", "DC at the first filter capacitor (B+)", "supply",
-            nom.rectifier_out_v, lo.rectifier_out_v, hi.rectifier_out_v, "V",
-            f"{model} = {_n(nom.rectifier_out_v)} V; band: {rc.band_text}", typical=typ)
+            b1.nominal, b1.low, b1.high, "V",
+            f"{model} = {_n(b1.nominal)} V; band: {sup.band_text}", typical=typ)
     bound = ripple_bound_vpp(s.load_ma, s.first_cap_uf, p.mains_hz, s.circuit)
-    ctx.add("supply.ripple_vpp", "Ripple at the first filter capacitor", "supply", nom.ripple_vpp,
-            hi.ripple_vpp, lo.ripple_vpp, "Vpp",
-            f"same simulation: {_n(nom.ripple_vpp)} Vpp (below the I/(f C) style bound "
-            f"{_n(bound)} Vpp); band: the same two corners (low capacitance with high load gives "
-            "the most ripple); a reading far above it means a dried-out first capacitor",
+    br = bands["ripple_vpp"]
+    ctx.add("supply.ripple_vpp", "Ripple at the first filter capacitor", "supply", br.nominal,
+            br.low, br.high, "Vpp",
+            f"same simulation: {_n(br.nominal)} Vpp (below the textbook bound I/(f C) or I/(2 f C), "
+            f"{_n(bound)} Vpp); band: {sup.band_text}; far above it: a dried-out first capacitor",
             typical=typ, absent=0.0)
-    ctx.add("supply.filtered_v", "DC at the second filter capacitor", "supply", nom.filtered_v,
-            lo.filtered_v, hi.filtered_v, "V",
+    b2 = bands["filtered_v"]
+    ctx.add("supply.filtered_v", "DC at the second filter capacitor", "supply", b2.nominal,
+            b2.low, b2.high, "V",
             f"{_n(nom.rectifier_out_v)} V - {_n(s.filter_ohm)} ohm x {_n(s.filter_load_ma)} mA = "
-            f"{_n(nom.filtered_v)} V (same simulation); band: as the first capacitor, with the "
-            "filter resistor +-10 % (trade)", typical=typ)
+            f"{_n(b2.nominal)} V (same simulation); band: {sup.band_text}, with the filter "
+            "resistor +-10 % and the second capacitor -20/+50 % (trade)", typical=typ)
     b = worst_case(lambda rf, f: rf * s.filter_load_ma * f / 1000.0,
                    {"rf": resistor_ohm(s.filter_ohm), "f": load_ma(1.0)})
     ctx.add("supply.filter_drop_v", "DC across the filter resistor", "supply", b.nominal, b.low,
@@ -487,7 +485,7 @@ def _output_tube(ctx: _Context) -> None:
                 "cathode current +-20 % tube to tube (trade), resistor +-10 % (trade); 0 V means "
                 "no cathode current (or a shorted resistor)", keys=keys)
     a = ctx.p.audio
-    rect = _rectifier_corners(ctx)
+    rect = _supply(ctx)
     if a.output_turns_ratio is None or a.speaker_ohm is None or ik is None:
         return
     zp = audio.reflected_ohm(a.output_turns_ratio, a.speaker_ohm)
@@ -507,12 +505,13 @@ def _output_tube(ctx: _Context) -> None:
     frac_text = (f"plate {_n(op.plate_ma)} of {_n(op.cathode_ma)} mA in the tube data"
                  if op is not None else f"plate about {_n(PLATE_FRACTION)} of the cathode current (trade)")
     drop = audio.primary_drop_v(t.cathode_ma * frac, rp.nominal)
-    nom = rect.nominal.rectifier_out_v - drop
-    low = rect.low.rectifier_out_v - audio.primary_drop_v(ik.high * frac, rp.high)
-    high = rect.high.rectifier_out_v - audio.primary_drop_v(ik.low * frac, rp.low)
+    bplus = rect.bands["rectifier_out_v"]
+    nom = bplus.nominal - drop
+    low = bplus.low - audio.primary_drop_v(ik.high * frac, rp.high)
+    high = bplus.high - audio.primary_drop_v(ik.low * frac, rp.low)
     ctx.add("output.plate_v", f"Output tube plate to chassis ({t.type})", "audio", nom, low, high,
             "V",
-            f"B+ {_n(rect.nominal.rectifier_out_v)} V - {_n(t.cathode_ma * frac)} mA x "
+            f"B+ {_n(bplus.nominal)} V - {_n(t.cathode_ma * frac)} mA x "
             f"{_n(rp.nominal)} ohm primary = {_n(nom)} V ({frac_text}); band: the B+ corners with "
             "the cathode current +-20 % (trade) and the primary 5-15 % of the reflected load",
             typical=ctx.typical(*rect.keys, "audio", *keys) or rect.diode_typical)
@@ -728,13 +727,13 @@ def _tuning(ctx: _Context) -> None:
                 keys=("band", "if_khz"), absent=0.0)
     cr = worst_case(tu.cap_ratio, {"low_khz": dial(lo_f), "high_khz": dial(hi_f)})
     c_max, c_min = p.gang_max_pf + p.gang_stray_pf, p.gang_min_pf + p.gang_stray_pf
+    covers = ("enough" if c_max / c_min >= cr.nominal else "NOT enough: check the gang figures")
     ctx.add("tuning.cap_ratio", "Capacitance ratio the antenna section must cover", "antenna",
             cr.nominal, cr.low, cr.high, "ratio",
             f"({_n(hi_f)}/{_n(lo_f)})^2 = {_n(cr.nominal)}; the gang with strays gives "
             f"({_n(p.gang_max_pf)}+{_n(p.gang_stray_pf)})/({_n(p.gang_min_pf)}+{_n(p.gang_stray_pf)}) "
-            f"= {_n(c_max / c_min)}" + (" (enough)" if c_max / c_min >= cr.nominal else
-                                         " (NOT enough: check the gang figures)")
-            + f"; band: dial +-{tu.DIAL_TOL * 100:g} % at both ends", keys=("band", "gang"))
+            f"= {_n(c_max / c_min)} ({covers}); band: dial +-{tu.DIAL_TOL * 100:g} % at both ends",
+            keys=("band", "gang"), absent=0.0)
     gang = {"f_khz": dial(lo_f), "gmax": relative(p.gang_max_pf, GANG_TOL),
             "stray": relative(p.gang_stray_pf, STRAY_TOL)}
     ant = worst_case(lambda f_khz, gmax, stray: tu.inductance_uh(f_khz, gmax + stray), gang)
@@ -751,7 +750,7 @@ def _tuning(ctx: _Context) -> None:
         ctx.add(f"tuning.align_{end}_khz", f"Alignment point for the oscillator {where}",
                 "oscillator", f, d.low, d.high, "kHz",
                 f"{_n(f)} kHz: about a tenth above the band's low end / an eighth below its top, "
-                f"to the nearest 50 kHz (common practice: 600 and 1400 kHz on 540-1600); band: "
+                f"rounded to a 50 kHz step on the broadcast band (common practice: 600 and 1400 kHz on 540-1600); band: "
                 f"dial +-{tu.DIAL_TOL * 100:g} %", keys=("band",), absent=0.0)
 
 

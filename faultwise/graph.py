@@ -42,7 +42,7 @@ KEYS = {
     "suspects": frozenset(_COMMON + ("why", "investigations", "exhausted")),
     "fault": frozenset(_COMMON + ("repair", "parts", "verify", "signature", "priors",
                                   "cautions", "notes")),
-    "escalate": frozenset(_COMMON + ("advice", "why", "cautions")),
+    "escalate": frozenset(_COMMON + ("advice",)),
 }
 INVESTIGATION_KEYS = frozenset(("target", "label", "minutes"))
 SIGNATURE_KEYS = frozenset(("readings", "observations"))
@@ -96,6 +96,19 @@ def _is_number(value) -> bool:
     return isinstance(value, (int, float)) and not isinstance(value, bool)
 
 
+def _kind_name(value) -> str:
+    """What a YAML value is, in words: 'a mapping', 'a list', 'a number', 'true/false'."""
+    if isinstance(value, dict):
+        return "a mapping"
+    if isinstance(value, list):
+        return "a list"
+    if isinstance(value, bool):
+        return "true/false"
+    if _is_number(value):
+        return "a number"
+    return "text" if isinstance(value, str) else "empty"
+
+
 def _key_text(key) -> str:
     """Why a mapping key is not text: YAML 1.1 reads yes/no/on/off as booleans."""
     if isinstance(key, bool):
@@ -128,8 +141,9 @@ class _Reader:
                          f"add '{key}:' with a short text")
             return default
         if isinstance(value, bool) or not isinstance(value, (str, int, float)):
-            self.bad(key, f"'{key}' must be text, not {type(value).__name__}",
-                     "write it as plain text (quote it if needed)")
+            self.bad(key, f"'{key}' must be text, not {_kind_name(value)}",
+                     "write it as plain text; quote it if it holds ': ' or starts with "
+                     "a special character")
             return default
         return str(value).strip()
 
@@ -138,15 +152,17 @@ class _Reader:
         if value is None:
             return ()
         if not isinstance(value, list):
-            self.bad(key, f"'{key}' must be a list, not {type(value).__name__}",
+            self.bad(key, f"'{key}' must be a list, not {_kind_name(value)}",
                      f"write '{key}: [first, second]' or one '- item' per line")
             return ()
         out = []
         for i, item in enumerate(value):
             if isinstance(item, bool) or not isinstance(item, (str, int, float)):
                 line = value.line_of(i) if hasattr(value, "line_of") else self.line(key)
+                hint = ("YAML read it as a mapping because it holds ': '; put the whole item in "
+                        "quotes" if isinstance(item, dict) else "write each item as plain text")
                 self.p.add(f"item {i + 1} of '{key}' must be text", file=self.file, line=line,
-                           node=self.node, key=key, hint="write each item as plain text")
+                           node=self.node, key=key, hint=hint)
                 continue
             out.append(str(item).strip())
         return tuple(out)
@@ -166,7 +182,7 @@ class _Reader:
         if value is None:
             return None
         if not isinstance(value, dict):
-            self.bad(key, f"'{key}' must be a mapping, not {type(value).__name__}",
+            self.bad(key, f"'{key}' must be a mapping, not {_kind_name(value)}",
                      f"write '{key}: {{name: value, ...}}'")
             return None
         return value

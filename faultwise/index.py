@@ -81,8 +81,10 @@ def _case_entries(cases_dir: Path) -> list[tuple[str, int, int, int]]:
     return out
 
 
-def read_one(path: Path, key: tuple[int, int, int]) -> tuple[dict | None, str | None, bool]:
+def read_one(path: str | Path, key: tuple[int, int, int]
+             ) -> tuple[dict | None, str | None, bool]:
     """Parse one case file -> (summary, damage reason, whether the result may be cached)."""
+    path = os.fspath(path)
     try:
         with open(path, "rb") as fh:
             raw = fh.read()
@@ -91,7 +93,7 @@ def read_one(path: Path, key: tuple[int, int, int]) -> tuple[dict | None, str | 
     except OSError as exc:
         return None, f"unreadable: {exc.strerror}", False
     try:
-        summary = summarise(read_case_bytes(raw, path), path.name)
+        summary = summarise(read_case_bytes(raw, path), os.path.basename(path))
     except DamagedCaseError as exc:
         try:
             st = os.stat(path)
@@ -227,7 +229,8 @@ def scan_cases(cases_dir: str | os.PathLike, *, use_index: bool = True,
     upserts: list[tuple] = []
     parsed = hits = 0
     total = len(entries)
-    dumps = json.dumps
+    dumps = json.JSONEncoder(separators=(",", ":"), ensure_ascii=False).encode
+    folder = os.fspath(cases_dir)
     for i, (name, size, mtime_ns, ino) in enumerate(entries):
         key = (size, mtime_ns, ino)
         row = rows.get(name)
@@ -237,12 +240,12 @@ def scan_cases(cases_dir: str | os.PathLike, *, use_index: bool = True,
             summary, reason = hit
         else:
             parsed += 1
-            summary, reason, cacheable = read_one(cases_dir / name, key)
+            summary, reason, cacheable = read_one(os.path.join(folder, name), key)
             if summary is None and reason is None:
                 continue                 # vanished
             if cacheable:
                 upserts.append((name, size, mtime_ns, ino,
-                                None if summary is None else dumps(summary, separators=(",", ":")),
+                                None if summary is None else dumps(summary),
                                 reason))
         if summary is not None:
             summaries.append(summary)

@@ -226,7 +226,8 @@ class _Reader:
 
     # errors and lines
     def error(self, message: str, key: str | None, line: int | None, hint: str) -> ProfileError:
-        return ProfileError(message, file=self.source, line=line, key=key or None, hint=hint)
+        return ProfileError(_printable(message), file=self.source, line=line,
+                            key=_printable(key) if key else None, hint=_printable(hint))
 
     @staticmethod
     def line(container, key=None) -> int | None:
@@ -332,7 +333,8 @@ class _Reader:
         low = text.lower()
         if low not in choices:
             near = _nearest(low, choices)
-            hint = (f"did you mean '{near}'; " if near else "") + "use one of " + ", ".join(choices)
+            hint = "use one of " + ", ".join(choices) + (f" (the nearest is '{near}')"
+                                                         if near else "")
             raise self.error(f"unknown {key} '{text}'", _join(path, key), self.line(data, key),
                              hint)
         return low
@@ -355,6 +357,12 @@ def _what(value) -> str:
     if isinstance(value, str):
         return f"the text '{value[:40]}'"
     return repr(value)[:40]
+
+
+def _printable(text: str) -> str:
+    """Text safe for a one-line message: control characters shown as escapes."""
+    return "".join(c if c.isprintable() else c.encode("unicode_escape").decode("ascii")
+                   for c in str(text))
 
 
 def _join(path: str, key: str) -> str:

@@ -232,6 +232,19 @@ def band_text(band: Mapping | None) -> str:
     return text.strip()
 
 
+def when_text(iso: str) -> str:
+    """``2026-12-01T09:30:00+00:00`` -> ``2026-12-01 09:30 +00:00``; other text as it is."""
+    from faultwise.casesummary import parse_time
+
+    t = parse_time(iso)
+    if t is None:
+        return iso
+    zone = t.strftime(" %z") if t.tzinfo else ""
+    if len(zone) == 6:
+        zone = zone[:4] + ":" + zone[4:]
+    return t.strftime("%Y-%m-%d %H:%M") + zone
+
+
 def reading_text(step: ReportStep) -> str:
     if step.value is not None and step.band and step.band.get("unit"):
         return number(step.value, str(step.band["unit"]))
@@ -264,8 +277,8 @@ def _step_table(steps: tuple[ReportStep, ...]) -> list[str]:
 def job_report_markdown(r: JobReport) -> str:
     """The job report as Markdown: every section, in the order a customer reads it."""
     out = [f"# Job report {r.case_id}", "",
-           f"**{r.shop}**, bench {_md(r.bench) or '-'}. Opened {_md(r.opened) or '-'}, "
-           f"closed {_md(r.closed) or 'not yet (' + _md(r.status) + ')'}.", "",
+           f"**{r.shop}**, bench {_md(r.bench) or '-'}. Opened {_md(when_text(r.opened)) or '-'}, "
+           f"closed {_md(when_text(r.closed)) or 'not yet (' + _md(r.status) + ')'}.", "",
            "## Set", "",
            f"- Set: {_md(r.set_label)}",
            f"- Family: {_md(r.family)}" + (" (line-connected)" if r.line_connected else ""),

@@ -10,7 +10,7 @@ from __future__ import annotations
 from html import escape
 
 from faultwise.report import (LEAKAGE_STATEMENT, NOT_LINE_CONNECTED, SAFETY_STATEMENT, JobReport,
-                              ReportStep, band_text, minutes_text, reading_text)
+                              ReportStep, band_text, minutes_text, reading_text, when_text)
 from faultwise.svg import bar_chart_svg, column_chart_svg, stage_map_svg
 
 CSS = """
@@ -61,10 +61,10 @@ def _steps_table(steps: tuple[ReportStep, ...]) -> str:
 
 def job_report_html(r: JobReport) -> str:
     """The job report as one printable page with the receiver's stage map."""
-    closed = _e(r.closed) if r.closed else f"not yet ({_e(r.status)})"
+    closed = _e(when_text(r.closed)) if r.closed else f"not yet ({_e(r.status)})"
     b = [f"<h1>Job report {_e(r.case_id)}</h1>",
          f"<div class=\"shop\">{_e(r.shop)}</div>",
-         f"<div class=\"meta\">Bench {_e(r.bench or '-')} &middot; opened {_e(r.opened or '-')}"
+         f"<div class=\"meta\">Bench {_e(r.bench or '-')} &middot; opened {_e(when_text(r.opened) or '-')}"
          f" &middot; closed {closed}</div>",
          "<h2>Set</h2><table>",
          f"<tr><th>Set</th><td>{_e(r.set_label)}</td></tr>",

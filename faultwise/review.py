@@ -28,10 +28,9 @@ from __future__ import annotations
 import os
 from collections import Counter, defaultdict
 from dataclasses import dataclass
-from datetime import date, timedelta
+from datetime import date
 from typing import Iterable, Mapping
 
-from faultwise.casesummary import parse_time
 from faultwise.errors import FaultwiseError, KnowledgeError
 
 REOPEN_DAYS = 30
@@ -174,11 +173,6 @@ def parse_since(text: str | None) -> date | None:
                              hint="write it as YYYY-MM-DD, e.g. 2026-01-31") from None
 
 
-def _closed_day(s: Mapping) -> date | None:
-    t = parse_time(s.get("closed")) or parse_time(s.get("opened"))
-    return t.date() if t else None
-
-
 def _mean(values: Iterable[float]) -> float | None:
     values = list(values)
     return sum(values) / len(values) if values else None
@@ -193,16 +187,9 @@ def _title(knowledge, node_id: str) -> str:
 
 def selected_cases(summaries: Iterable[Mapping], since: date | None = None) -> list[Mapping]:
     """The closed cases, closed on or after ``since`` when given."""
-    out = []
-    for s in summaries:
-        if s.get("status") != "closed":
-            continue
-        if since is not None:
-            day = _closed_day(s)
-            if day is None or day < since:
-                continue
-        out.append(s)
-    return out
+    first = since.isoformat() if since is not None else ""
+    return [s for s in summaries
+            if s.get("status") == "closed" and (not first or s.get("day", "") >= first)]
 
 
 def fault_counts(cases: Iterable[Mapping]) -> dict[tuple[str, str], Counter]:
@@ -357,45 +344,37 @@ def never_reached(knowledge, cases: Iterable[Mapping]) -> list[UnreachedFault]:
     return sorted(out, key=lambda f: f.fault)
 
 
-def _norm(text: str) -> str:
-    return " ".join(str(text).lower().split())
-
-
 def reopened_cases(summaries: Iterable[Mapping], since: date | None = None,
                    days: float = REOPEN_DAYS) -> list[Reopened]:
     """Cases back after a repair, by ``reopened_from`` or same customer and set in ``days``."""
     summaries = list(summaries)
     by_id = {s.get("id"): s for s in summaries}
-    repaired: dict[tuple[str, str], list[tuple]] = defaultdict(list)
+    repaired: dict[str, list[tuple[float, str]]] = defaultdict(list)
     for s in summaries:
-        closed = parse_time(s.get("closed"))
-        if s.get("status") == "closed" and s.get("outcome") == "repaired" and closed and \
-                _norm(s.get("customer", "")):
-            repaired[(_norm(s["customer"]), _norm(s.get("set", "")))].append((closed, s["id"]))
+        if s.get("who") and s.get("t_close") is not None and s.get("status") == "closed" \
+                and s.get("outcome") == "repaired":
+            repaired[s["who"]].append((s["t_close"], s["id"]))
+    first_day = since.isoformat() if since is not None else ""
+    window = days * 86400.0
     out = []
-    window = timedelta(days=days)
     for s in summaries:
-        opened = parse_time(s.get("opened"))
-        if since is not None and (opened is None or opened.date() < since):
+        opened = s.get("t_open")
+        if first_day and str(s.get("opened", ""))[:10] < first_day:
             continue
         before = s.get("reopened_from")
         if before:
             first = by_id.get(before)
-            gap = None
-            t0 = parse_time(first.get("closed")) if first else None
-            if t0 and opened:
-                gap = (opened - t0).total_seconds() / 86400.0
+            t0 = first.get("t_close") if first else None
+            gap = (opened - t0) / 86400.0 if t0 is not None and opened is not None else None
             out.append(Reopened(s["id"], before, "reopened_from", gap))
             continue
-        if opened is None:
+        if opened is None or not s.get("who") or s["who"] not in repaired:
             continue
-        key = (_norm(s.get("customer", "")), _norm(s.get("set", "")))
-        earlier = [(t, cid) for t, cid in repaired.get(key, ())
+        earlier = [(t, cid) for t, cid in repaired[s["who"]]
                    if cid != s["id"] and t <= opened <= t + window]
         if earlier:
             t0, cid = max(earlier)
-            out.append(Reopened(s["id"], cid, "same customer and set",
-                                (opened - t0).total_seconds() / 86400.0))
+            out.append(Reopened(s["id"], cid, "same customer and set", (opened - t0) / 86400.0))
     return sorted(out, key=lambda r: r.case)
 
 
@@ -403,9 +382,8 @@ def minutes_by_month(cases: Iterable[Mapping]) -> list[MonthMinutes]:
     """Closed jobs and their mean recorded minutes per month of the close."""
     minutes: dict[str, list[float]] = defaultdict(list)
     for s in cases:
-        closed = parse_time(s.get("closed"))
-        if closed is not None and s.get("minutes") is not None:
-            minutes[closed.strftime("%Y-%m")].append(float(s["minutes"]))
+        if s.get("month") and s.get("minutes") is not None:
+            minutes[s["month"]].append(float(s["minutes"]))
     return [MonthMinutes(m, len(v), sum(v) / len(v)) for m, v in sorted(minutes.items())]
 
 

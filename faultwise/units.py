@@ -243,7 +243,7 @@ def parse_reading(text: str, unit: str) -> float:
     shown = raw if raw.isprintable() else raw.encode("unicode_escape").decode("ascii")
     text = _decimal_comma(shown, _normalise(raw))
     if target.dimension == "ratio":
-        text = text.replace("x", "") if text.endswith("x") else text
+        text = text[:-1].rstrip() if text.endswith("x") else text     # "28x"
         m = _RATIO.match(text)
         if m:
             den = Decimal(m.group(2))

@@ -355,33 +355,38 @@ _VALUES = st.one_of(st.none(), st.booleans(), st.integers(-5, 5), st.text(max_si
                     st.dictionaries(st.text(max_size=4), st.text(max_size=4), max_size=2))
 
 
+_FILES = sorted(f"graph/{p.name}" for p in (KB / "graph").glob("*.yaml")) + [
+    "symptoms.yaml", "cautions.yaml"]
+
+
 @st.composite
 def mutated_file(draw):
-    """A graph file of kb_small changed by one random mutation."""
-    name = draw(st.sampled_from(sorted(p.name for p in (KB / "graph").glob("*.yaml"))))
-    text = (KB / "graph" / name).read_text()
+    """A file of kb_small (graph, symptoms or cautions) changed by one random mutation."""
+    name = draw(st.sampled_from(_FILES))
+    text = (KB / name).read_text()
     data = yaml.safe_load(text)
-    nodes = data["nodes"]
-    i = draw(st.integers(0, len(nodes) - 1))
+    list_key = {"symptoms.yaml": "symptoms", "cautions.yaml": "cautions"}.get(name, "nodes")
+    items = data[list_key]
+    i = draw(st.integers(0, len(items) - 1))
     how = draw(st.sampled_from(["delete", "retype", "target", "duplicate", "truncate", "top"]))
     if how == "truncate":
         return name, text[: draw(st.integers(0, len(text)))]
-    node = nodes[i]
-    key = draw(st.sampled_from(sorted(node)))
+    item = items[i]
+    key = draw(st.sampled_from(sorted(item)))
     if how == "delete":
-        del node[key]
+        del item[key]
     elif how == "retype":
-        node[key] = draw(_VALUES)
+        item[key] = draw(_VALUES)
     elif how == "target":
-        routes = node.get("outcomes") or {}
-        if routes:
+        routes = item.get("outcomes") or item.get("entry") or {}
+        if isinstance(routes, dict) and routes:
             routes[draw(st.sampled_from(sorted(routes)))] = draw(st.text(max_size=12))
         else:
-            node["exhausted"] = draw(st.text(max_size=12))
+            item["exhausted" if list_key == "nodes" else "entry"] = draw(st.text(max_size=12))
     elif how == "duplicate":
-        nodes.append(dict(node))
+        items.append(dict(item))
     else:
-        data[draw(st.sampled_from(["format", "stage", "families", "nodes"]))] = draw(_VALUES)
+        data[draw(st.sampled_from(sorted(data)))] = draw(_VALUES)
     return name, yaml.safe_dump(data, sort_keys=False)
 
 
@@ -389,9 +394,9 @@ def mutated_file(draw):
 @given(mutated_file())
 def test_mutations_never_crash(scratch, mutation):
     name, text = mutation
-    for p in (scratch / "graph").glob("*.yaml"):
-        shutil.copy(KB / "graph" / p.name, p)
-    (scratch / "graph" / name).write_text(text)
+    for rel in _FILES:
+        shutil.copy(KB / rel, scratch / rel)
+    (scratch / name).write_text(text)
     try:
         load_knowledge(scratch)
     except KnowledgeError as err:

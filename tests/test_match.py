@@ -9,6 +9,7 @@ rapidfuzz's documented behaviour: every ratio of two equal strings is 100.
 from __future__ import annotations
 
 import json
+import re
 import subprocess
 import sys
 from pathlib import Path
@@ -23,6 +24,11 @@ from faultwise.yamlload import load_yaml_file
 HERE = Path(__file__).parent
 KB = HERE / "fixtures" / "kb_small"
 HELD_OUT = load_yaml_file(HERE / "fixtures" / "match_phrasings.yaml")["phrasings"]
+
+
+def plain(text: str) -> str:
+    """Lower case, words only: enough to spot a copied phrasing (not match's folding)."""
+    return " ".join(re.findall(r"[a-z0-9]+", text.lower()))
 
 
 def top3_share(symptoms) -> tuple[float, list]:
@@ -42,8 +48,8 @@ def test_held_out_set_covers_every_symptom():
 
 
 def test_held_out_phrasings_are_not_in_the_fixture():
-    known = {normalise(p) for s in load_symptoms(KB).values() for p in (s.title,) + s.phrasings}
-    assert not [t for texts in HELD_OUT.values() for t in texts if normalise(t) in known]
+    known = {plain(p) for s in load_symptoms(KB).values() for p in (s.title,) + s.phrasings}
+    assert not [t for texts in HELD_OUT.values() for t in texts if plain(t) in known]
 
 
 def test_top_three_on_kb_small():
@@ -56,8 +62,8 @@ def test_top_three_on_the_shipped_knowledge():
     from faultwise.workspace import bundled_knowledge_dir
 
     shipped = load_symptoms(bundled_knowledge_dir())
-    known = {normalise(p) for s in shipped.values() for p in s.phrasings}
-    copied = [t for texts in HELD_OUT.values() for t in texts if normalise(t) in known]
+    known = {plain(p) for s in shipped.values() for p in (s.title,) + s.phrasings}
+    copied = [t for texts in HELD_OUT.values() for t in texts if plain(t) in known]
     assert not copied, f"held-out phrasings copied into symptoms.yaml: {copied}"
     share, misses = top3_share(shipped)
     assert share >= 0.90, misses

@@ -129,14 +129,17 @@ def max_tracking_error_khz(curve: tuple[TrackingPoint, ...]) -> float:
 
 
 def alignment_points_khz(band_low_khz: float, band_high_khz: float) -> tuple[float, float]:
-    """Padder and trimmer points: about a tenth above the low end, an eighth below the top, to 50 kHz.
+    """Padder and trimmer points: a tenth above the low end and an eighth below the top, rounded.
 
+    The step is 5 x 10^(n-2) for a top frequency of n digits (50 kHz for a broadcast band).
     The trade's rule of thumb: for 540-1600 kHz this gives 600 and 1400 kHz (common practice).
     """
-    def to50(x: float) -> float:
-        return 50.0 * math.floor(x / 50.0 + 0.5)
+    step = 5.0 * 10.0 ** (math.floor(math.log10(band_high_khz)) - 2)
 
-    return to50(band_low_khz * 1.1), to50(band_high_khz * 0.875)
+    def rounded(x: float) -> float:
+        return step * math.floor(x / step + 0.5)
+
+    return rounded(band_low_khz * 1.1), rounded(band_high_khz * 0.875)
 
 
 @dataclass(frozen=True)

@@ -19,7 +19,8 @@ def run_tui(args: argparse.Namespace) -> int:
         workspace.cases_dir.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
         raise FaultwiseError("the cases folder cannot be created", file=str(workspace.cases_dir),
-                             hint=f"{exc.strerror or exc}; pass --cases with a folder you can write") from None
+                             hint=f"{exc.strerror or exc}; pass --cases with a folder you can "
+                                  "write") from None
     app = build_app(workspace, settings=Settings.load(default_settings_path()))
     app.run()
     return app.return_code or 0

@@ -23,9 +23,11 @@ def default_settings_path() -> Path:
 class Settings:
     """Read once at start; ``acknowledge_safety`` writes through (best effort)."""
 
-    def __init__(self, path: Path | None = None, *, safety_acknowledged: str | None = None) -> None:
+    def __init__(self, path: Path | None = None, *, safety_acknowledged: str | None = None,
+                 cursor_blink: bool = True) -> None:
         self.path = path
         self.safety_acknowledged = safety_acknowledged
+        self.cursor_blink = cursor_blink          # off for deterministic screenshots
         self.write_error: str | None = None
 
     @classmethod

@@ -86,3 +86,42 @@ def rectifier_netlist(c: RectifierCircuit, cycles: int = 30, step_us: float = 10
         ".end",
     ]
     return "\n".join(lines) + "\n"
+
+
+# Transistor models for the bias oracle: an ideal Gummel-Poon transistor (ngspice defaults:
+# no Early effect, no high-injection roll-off), so its current gain is exactly BF and the
+# only device fact left is the saturation current, chosen so that Vbe at about 1 mA falls in
+# the material's textbook range (silicon 0.6-0.7 V, germanium 0.2-0.3 V).
+TRANSISTOR_IS_A = {"silicon": 1e-14, "germanium": 5e-8}
+
+
+def bias_netlist(polarity: str, material: str, beta: float, vcc_v: float, top_ohm: float,
+                 bottom_ohm: float, emitter_ohm: float, collector_ohm: float) -> str:
+    """Divider-biased stage, .op; prints vb, ve, vc (to common) and the collector current."""
+    sign = 1 if polarity == "npn" else -1
+    kind = "NPN" if polarity == "npn" else "PNP"
+    rc = f"RC vcc cm {collector_ohm:.9g}" if collector_ohm > 0 else "RC vcc cm 1e-6"
+    lines = [
+        f"* faultwise bias oracle: {material} {kind}",
+        f"VCC vcc 0 DC {sign * vcc_v:.9g}",
+        f"R1 vcc b {top_ohm:.9g}",
+        f"R2 b 0 {bottom_ohm:.9g}",
+        f"RE e 0 {emitter_ohm:.9g}",
+        rc,
+        # the meter source sits between the collector resistor and the collector; its current
+        # is positive for conventional current into an NPN collector / out of a PNP collector
+        "VMC cm c DC 0" if polarity == "npn" else "VMC c cm DC 0",
+        "Q1 c b e QM",
+        f".model QM {kind}(IS={TRANSISTOR_IS_A[material]:.9g} BF={beta:.9g})",
+        ".control",
+        "op",
+        "let vb = v(b)",
+        "let ve = v(e)",
+        "let vc = v(c)",
+        "let ic = i(vmc)",
+        "print vb ve vc ic",
+        "quit",
+        ".endc",
+        ".end",
+    ]
+    return "\n".join(lines) + "\n"

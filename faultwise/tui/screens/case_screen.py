@@ -35,13 +35,12 @@ def open_walk(bench: Bench, case_id: str):
 class CaseScreen(Screen):
     """Base for screens that change an open case. Subclasses implement ``show_prompt``."""
 
-    BINDINGS = [
-        Binding("ctrl+z", "undo", "Undo", priority=True),
-        Binding("f3", "note", "Note", priority=True),
-        Binding("f6", "readings", "Readings", priority=True),
-        Binding("f7", "cautions", "Cautions", priority=True, show=False),
-        Binding("escape", "leave", "Back", priority=True),
-    ]
+    # Subclasses list their own bindings around these, in the order the footer shows.
+    NOTE = Binding("f3", "note", "Note", priority=True)
+    READINGS = Binding("f6", "readings", "Sheet", tooltip="The readings sheet", priority=True)
+    CAUTIONS = Binding("f7", "cautions", "Cautions", priority=True, show=False)
+    UNDO = Binding("ctrl+z", "undo", "Undo", priority=True)
+    BACK = Binding("escape", "leave", "Back", priority=True)
 
     def __init__(self, bench: Bench, case, walk, *, id: str) -> None:
         super().__init__(id=id)

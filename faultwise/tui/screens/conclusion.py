@@ -12,6 +12,7 @@ from textual.content import Content
 from textual.widgets import Footer, Header, Input, Static
 
 from faultwise.tui.screens.case_screen import CaseScreen
+from faultwise.tui.widgets.bench_input import BenchInput
 from faultwise.tui.widgets.check_panel import CheckPanel
 from faultwise.tui.widgets.history import History
 from faultwise.tui.widgets.stage_map import StageMap
@@ -29,8 +30,14 @@ class ConclusionScreen(CaseScreen):
     """Repair, verify, closing checks and close."""
 
     BINDINGS = [
-        Binding("f8", "resume", "Not cured", priority=True),
-        Binding("f9", "to_closing", "Go back unrepaired", priority=True, show=False),
+        CaseScreen.NOTE,
+        CaseScreen.READINGS,
+        Binding("f8", "resume", "Not cured", tooltip="Resume the diagnosis", priority=True),
+        Binding("f9", "to_closing", "Unrepaired", tooltip="Return the set unrepaired",
+                priority=True),
+        CaseScreen.UNDO,
+        CaseScreen.CAUTIONS,
+        CaseScreen.BACK,
     ]
 
     def __init__(self, bench, case, walk) -> None:
@@ -47,7 +54,7 @@ class ConclusionScreen(CaseScreen):
                 yield Static("Parts replaced, separated by commas (leave empty if none); "
                              "Enter records them and starts the verify checks.",
                              classes="form-label")
-                yield Input(id="parts", compact=True)
+                yield BenchInput(id="parts", compact=True)
                 yield Static("", id="parts-error", classes="field-error")
             yield CheckPanel(id="check")
             with Vertical(id="close-form", classes="form-block"):
@@ -55,12 +62,13 @@ class ConclusionScreen(CaseScreen):
                 yield Static(Content("\n").join(
                     Content.from_markup("[b reverse] $n [/]  $label", n=str(i), label=label)
                     for i, (_, label) in enumerate(OUTCOME_CHOICES, 1)), id="close-choices")
-                yield Input(id="close-outcome", compact=True, placeholder="outcome: 1, 2 or 3")
-                yield Input(id="close-minutes", compact=True, placeholder="minutes spent",
-                            type="number")
+                yield BenchInput(id="close-outcome", compact=True,
+                                 placeholder="outcome: 1, 2 or 3")
+                yield BenchInput(id="close-minutes", compact=True, placeholder="minutes spent",
+                                 type="number")
                 yield Static("", id="close-error", classes="field-error")
             yield History(id="history")
-        yield Footer()
+        yield Footer(show_command_palette=False)
 
     def on_mount(self) -> None:
         self.sub_title = f"case {self.case.id}"

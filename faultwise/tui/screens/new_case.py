@@ -20,6 +20,7 @@ from textual.widgets import Checkbox, Footer, Header, Input, OptionList, Static
 from textual.widgets.option_list import Option
 
 from faultwise.tui.context import Bench
+from faultwise.tui.widgets.bench_input import BenchInput
 
 
 @dataclass(frozen=True)
@@ -96,19 +97,20 @@ class NewCaseScreen(Screen):
         with Vertical(id="new-body"):
             with Horizontal(classes="field-row"):
                 yield Static("Set", classes="field-name")
-                yield Input(id="set-search", compact=True,
-                            placeholder="search the set library (F2: fill a template instead)")
+                yield BenchInput(id="set-search", compact=True,
+                                 placeholder="search the set library (F2: fill a template instead)")
             yield OptionList(id="set-list", compact=True)
             yield Static("", id="set-chosen", classes="field-note")
             with Horizontal(classes="field-row"):
                 yield Static("Complaint", classes="field-name")
-                yield Input(id="complaint", compact=True,
-                            placeholder="what the customer says, e.g. hums loudly")
+                yield BenchInput(id="complaint", compact=True,
+                                 placeholder="what the customer says, e.g. hums loudly")
             yield OptionList(id="symptom-list", compact=True)
             yield Static("", id="symptom-chosen", classes="field-note")
             with Horizontal(classes="field-row"):
                 yield Static("Customer", classes="field-name")
-                yield Input(id="customer", compact=True, placeholder="ticket or name (optional)")
+                yield BenchInput(id="customer", compact=True,
+                                 placeholder="ticket or name (optional)")
             yield Checkbox("Apprentice mode: guidance open at every step (F8)", id="apprentice",
                            compact=True)
             yield Static("", id="new-error", classes="field-error")

@@ -85,7 +85,7 @@ class ReviewScreen(Screen):
         with VerticalScroll(id="review-body"):
             yield Static("Reading the cases folder...", id="review-status", markup=False)
             yield ProgressBar(id="review-progress", show_eta=False)
-            yield Static("Symptom and family (Enter or cursor: details)", classes="section")
+            yield Static("Symptom and family (cursor keys: details below)", classes="section")
             yield DataTable(id="review-pairs", cursor_type="row", zebra_stripes=True)
             yield Static("", id="review-shares", markup=False)
             yield DataTable(id="review-faults", cursor_type="row")
@@ -103,6 +103,7 @@ class ReviewScreen(Screen):
         yield Footer()
 
     def on_mount(self) -> None:
+        self.title = "Shop review"
         self.query_one("#review-pairs", DataTable).add_columns(
             "Symptom", "Family", "Cases", "Checks", "Minutes", "Now min", "Data min", "Saves")
         self.query_one("#review-faults", DataTable).add_columns(

@@ -40,8 +40,9 @@ class SafetyScreen(ModalScreen[bool]):
     def compose(self) -> ComposeResult:
         with Vertical(id="safety-box", classes="modal-box"):
             yield Static(SAFETY_TITLE, classes="modal-title")
-            for line in SAFETY_LINES:
-                yield Static(line, classes="safety-line", markup=False)
+            for i, line in enumerate(SAFETY_LINES):
+                yield Static(line, classes="safety-line" + (" -lead" if i == 0 else ""),
+                             markup=False)
             yield Button("I understand", id="safety-ok", variant="primary")
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:

@@ -5,6 +5,8 @@ It paints before the knowledge is loaded; the case listing is read in a worker.
 
 from __future__ import annotations
 
+from pathlib import Path
+
 from textual import work
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -17,6 +19,14 @@ from faultwise.tui.messages import KnowledgeReady
 from faultwise.tui.screens.safety import SAFETY_SHORT
 
 RECENT_CLOSED = 30
+
+
+def shown_path(path: Path) -> str:
+    """The path relative to the working folder when it lies inside it, else as it is."""
+    try:
+        return str(path.resolve().relative_to(Path.cwd().resolve())) or "."
+    except ValueError:
+        return str(path)
 
 
 def _when(iso: str | None) -> str:
@@ -93,7 +103,7 @@ class StartScreen(Screen):
         n_open, n_closed, n_bad = len(listing.open), len(listing.closed), len(listing.damaged)
         caption = (f"Bench {self.bench.workspace.bench}: {n_open} open, {n_closed} closed"
                    + (f", {n_bad} damaged" if n_bad else "")
-                   + f"   in {self.bench.workspace.cases_dir}")
+                   + f"   in {shown_path(self.bench.workspace.cases_dir)}")
         if not self._rows:
             caption += "\nNo cases yet. Press n to start one."
         self.query_one("#cases-caption", Static).update(caption)

@@ -19,6 +19,8 @@ from textual.content import Content
 from textual.screen import ModalScreen
 from textual.widgets import Input, Static
 
+from faultwise.tui.widgets.bench_input import BenchInput
+
 FAMILY_CHOICES = (("series-string", "series-string (AC/DC, no power transformer)"),
                   ("transformer", "transformer (tube set with a power transformer)"),
                   ("transistor", "transistor (battery portable)"))
@@ -74,8 +76,8 @@ def parse_lineup(text: str, family: str) -> list[dict]:
     for chunk in [c.strip() for c in text.replace(";", ",").split(",") if c.strip()]:
         role, sep, value = chunk.partition("=")
         if not sep or not role.strip() or not value.strip():
-            raise InputError(f"'{chunk}' is not role=value",
-                             hint=f"write e.g. converter={'germanium' if value_key == 'material' else '12BE6'}")
+            example = "germanium" if value_key == "material" else "12BE6"
+            raise InputError(f"'{chunk}' is not role=value", hint=f"write e.g. converter={example}")
         items.append({"role": role.strip(), value_key: value.strip()})
     return items
 
@@ -149,7 +151,7 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
             yield Static(Content("\n").join(
                 Content.from_markup("[b reverse] $n [/]  $l", n=str(i), l=label)
                 for i, (_, label) in enumerate(FAMILY_CHOICES, 1)), id="family-choices")
-            yield Input(id="tf-family", compact=True, placeholder="family: 1, 2 or 3")
+            yield BenchInput(id="tf-family", compact=True, placeholder="family: 1, 2 or 3")
             yield Static("", id="tf-family-error", classes="field-error")
             yield VerticalScroll(id="template-fields")
             yield Static("", id="tf-error", classes="field-error")
@@ -186,7 +188,7 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
             unit = "" if field.unit in (None, "lineup") else f" ({field.unit})"
             rows.append(Horizontal(
                 Static(field.label + unit, classes="field-name"),
-                Input(id=field_id(field.key), compact=True, placeholder=field.example),
+                BenchInput(id=field_id(field.key), compact=True, placeholder=field.example),
                 classes="field-row"))
             rows.append(Static("", id=field_id(field.key) + "-error", classes="field-error"))
         await box.mount_all(rows)

@@ -9,6 +9,8 @@ from textual.content import Content
 from textual.screen import ModalScreen
 from textual.widgets import Input, Static
 
+from faultwise.tui.widgets.bench_input import BenchInput
+
 
 class TextPromptScreen(ModalScreen[str | None]):
     """Returns the text typed (stripped, not empty), or None when cancelled with escape."""
@@ -27,7 +29,7 @@ class TextPromptScreen(ModalScreen[str | None]):
         with Vertical(classes="modal-box"):
             yield Static(self.title_text, classes="modal-title", markup=False)
             yield Static(self.explanation, markup=False)
-            yield Input(placeholder=self.placeholder, id="prompt-input")
+            yield BenchInput(placeholder=self.placeholder, id="prompt-input")
             yield Static("", id="prompt-error", classes="field-error")
             yield Static("[dim]Enter saves, Escape cancels[/dim]")
 

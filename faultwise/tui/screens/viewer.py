@@ -64,21 +64,22 @@ def event_cells(event: dict, knowledge) -> tuple[str, str, str, str]:
 
 def event_detail(event: dict, knowledge) -> Content:
     """Everything recorded for one event, as safe Content."""
+    kind = str(event.get("type"))
     lines = [Content.from_markup("[b]#$n $type[/b]  [dim]$at[/dim]", n=str(event.get("n", "")),
-                                 type=TYPE_WORDS.get(str(event.get("type")), str(event.get("type"))),
-                                 at=str(event.get("at", "")))]
+                                 type=TYPE_WORDS.get(kind, kind), at=str(event.get("at", "")))]
     if event.get("node"):
         lines.append(Content.from_markup("$t  [dim]($id)[/dim]",
                                          t=node_title(knowledge, event["node"]),
                                          id=str(event["node"])))
     band = event.get("band")
     if isinstance(band, dict):
+        def num(key: str) -> str:
+            value = band.get(key)
+            return f"{value:g}" if isinstance(value, (int, float)) else "?"
+
         lines.append(Content.from_markup(
-            "Band $low to $high $unit (nominal $nom)$typ\nBasis: $basis",
-            low=f"{band.get('low', '?'):g}" if isinstance(band.get("low"), (int, float)) else "?",
-            high=f"{band.get('high', '?'):g}" if isinstance(band.get("high"), (int, float)) else "?",
-            unit=str(band.get("unit", "")),
-            nom=f"{band.get('nominal'):g}" if isinstance(band.get("nominal"), (int, float)) else "?",
+            "Band $low to $high $unit (nominal $nom)$typ\nBasis: $basis", low=num("low"),
+            high=num("high"), unit=str(band.get("unit", "")), nom=num("nominal"),
             typ="  ≈ typical" if band.get("typical") else "", basis=str(band.get("basis", "-"))))
     for key, label in (("raw", "Typed"), ("value", "Value"), ("outcome", "Result"),
                        ("reason", "Reason"), ("text", "Note"), ("finding", "Finding")):

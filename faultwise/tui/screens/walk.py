@@ -58,10 +58,16 @@ class WalkScreen(CaseScreen):
     """Diagnosis: checks, skips, notes, off-graph findings, undo, why-this-check."""
 
     BINDINGS = [
-        Binding("f1", "guidance", "Guidance", priority=True),
-        Binding("f2", "why", "Why this?", priority=True),
+        Binding("f1", "guidance", "Guide", tooltip="Show or hide how and why", priority=True),
+        Binding("f2", "why", "Why", tooltip="Why this check now", priority=True),
+        CaseScreen.NOTE,
         Binding("f4", "skip", "Skip", priority=True),
-        Binding("f5", "off_graph", "Found it", priority=True),
+        Binding("f5", "off_graph", "Found", tooltip="Record an off-graph finding",
+                priority=True),
+        CaseScreen.READINGS,
+        CaseScreen.UNDO,
+        CaseScreen.CAUTIONS,
+        CaseScreen.BACK,
     ]
 
     def __init__(self, bench, case, walk) -> None:
@@ -79,7 +85,7 @@ class WalkScreen(CaseScreen):
                 yield History(id="history")
             with VerticalScroll(id="guidance"):
                 yield Static("", id="guidance-text")
-        yield Footer()
+        yield Footer(show_command_palette=False)
 
     def on_mount(self) -> None:
         self.sub_title = f"case {self.case.id}"

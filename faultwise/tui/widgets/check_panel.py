@@ -14,6 +14,8 @@ from textual.content import Content
 from textual.message import Message
 from textual.widgets import Input, Static
 
+from faultwise.tui.widgets.bench_input import BenchInput
+
 PHASE_TAGS = {"diagnose": "CHECK", "verify": "VERIFY", "closing": "BEFORE IT GOES BACK"}
 
 
@@ -51,7 +53,7 @@ class CheckPanel(Vertical):
     CheckPanel { height: auto; padding: 0 1; }
     CheckPanel #check-title { text-style: bold; color: $primary; }
     CheckPanel #check-choices { color: $text; }
-    CheckPanel #answer { margin-top: 1; background: $boost; }
+    CheckPanel #answer { margin-top: 1; background: $panel-lighten-1; }
     CheckPanel #answer-error { color: $error; height: auto; }
     CheckPanel #check-warning { color: $warning; height: auto; }
     """
@@ -73,7 +75,8 @@ class CheckPanel(Vertical):
         yield Static("", id="check-expected")
         yield Static("", id="check-choices")
         yield Static("", id="check-warning")
-        yield Input(id="answer", compact=True, placeholder="type the reading, Enter records it")
+        yield BenchInput(id="answer", compact=True,
+                         placeholder="type the reading, Enter records it")
         yield Static("", id="answer-error")
 
     @property
@@ -107,8 +110,12 @@ class CheckPanel(Vertical):
             expected_box.update("")
             choices_box.update(choice_lines(prompt.choices))
             self.input.placeholder = "number or name of the choice"
-        self.query_one("#check-warning", Static).update(
-            Content.from_markup("[b]![/b] $w", w=prompt.warning) if prompt.warning else "")
+        warning = self.query_one("#check-warning", Static)
+        warning.update(Content.from_markup("[b]![/b] $w", w=prompt.warning)
+                       if prompt.warning else "")
+        warning.display = bool(prompt.warning)
+        expected_box.display = prompt.is_measurement
+        choices_box.display = not prompt.is_measurement
         self.input.value = ""
         self.show_error(None)
 

@@ -8,7 +8,7 @@ MARKS = {True: "✓", False: "!"}
 
 
 def event_rows(events, steps) -> list[tuple[str, tuple[str, str, str, str]]]:
-    """(row key, (n, what, reading, result)) for each event worth showing, oldest first."""
+    """(row key, (n, result, reading, what)) for each event worth showing, oldest first."""
     by_n = {s.n: s for s in steps}
     rows = []
     for e in events:
@@ -23,21 +23,22 @@ def event_rows(events, steps) -> list[tuple[str, tuple[str, str, str, str]]]:
                 result = f"{MARKS[step.normal]} {step.outcome}"
                 reading = step.raw or "-"
             phase = "" if step.phase == "diagnose" else f"[{step.phase}] "
-            rows.append((str(n), (str(n), phase + step.title, reading, result)))
+            rows.append((str(n), (str(n), result, reading, phase + step.title)))
         elif kind == "note":
-            rows.append((str(n), (str(n), "note", str(e.get("text", "")), "")))
+            rows.append((str(n), (str(n), "note", "", str(e.get("text", "")))))
         elif kind == "off-graph":
-            rows.append((str(n), (str(n), "off-graph finding", str(e.get("finding", "")), "")))
+            rows.append((str(n), (str(n), "off-graph", "", str(e.get("finding", "")))))
         elif kind == "parts":
             parts = ", ".join(e.get("parts") or ()) or "none"
-            rows.append((str(n), (str(n), "parts replaced", parts, "")))
+            rows.append((str(n), (str(n), "parts", "", parts)))
         elif kind == "resume":
-            rows.append((str(n), (str(n), "diagnosis resumed", str(e.get("fault", "")), "")))
+            after = "diagnosis resumed after " + str(e.get("fault", ""))
+            rows.append((str(n), (str(n), "not cured", "", after)))
         elif kind == "to-closing":
-            rows.append((str(n), (str(n), "to the closing checks", "", "")))
+            rows.append((str(n), (str(n), "closing", "", "straight to the closing checks")))
         elif kind == "close":
-            rows.append((str(n), (str(n), "closed", str(e.get("outcome", "")),
-                                  f"{e.get('minutes', '-')} min")))
+            rows.append((str(n), (str(n), "closed", f"{e.get('minutes', '-')} min",
+                                  str(e.get("outcome", "")))))
     return rows
 
 
@@ -45,7 +46,7 @@ class History(DataTable):
     """Read-only table of the case's events; ``show(events, steps)`` refills it."""
 
     DEFAULT_CSS = """
-    History { height: 1fr; }
+    History { height: 1fr; overflow-x: hidden; }
     """
 
     def __init__(self, *, id: str | None = None) -> None:
@@ -53,16 +54,16 @@ class History(DataTable):
 
     def on_mount(self) -> None:
         self.add_column("#", key="n", width=3)
+        self.add_column("Result", key="result", width=10)
+        self.add_column("Input", key="reading", width=12)
         self.add_column("Step", key="what")
-        self.add_column("Reading", key="reading")
-        self.add_column("Result", key="result")
 
     def show(self, events, steps) -> None:
         from rich.text import Text
 
         self.clear()
-        for key, (n, what, reading, result) in event_rows(events, steps):
+        for key, (n, result, reading, what) in event_rows(events, steps):
             style = "bold" if result.startswith("!") else ""
-            self.add_row(n, Text(what), Text(reading), Text(result, style=style), key=key)
+            self.add_row(n, Text(result, style=style), Text(reading), Text(what), key=key)
         if self.row_count:
             self.move_cursor(row=self.row_count - 1)

@@ -11,6 +11,7 @@ from typing import Iterable
 
 from textual.app import ComposeResult
 from textual.containers import Horizontal
+from textual.content import Content
 from textual.widgets import Static
 
 UNTESTED, SUSPECT, CLEARED, FAULTY = "untested", "suspect", "cleared", "faulty"
@@ -18,9 +19,9 @@ UNTESTED, SUSPECT, CLEARED, FAULTY = "untested", "suspect", "cleared", "faulty"
 # (box id, label, domain stage): the speaker belongs to the audio stage in the graph.
 BOXES = (
     ("antenna", "ANTENNA", "antenna"),
-    ("oscillator", "OSC+MIX", "oscillator"),
+    ("oscillator", "OSC+MIXER", "oscillator"),
     ("if", "IF", "if"),
-    ("detector", "DETECT", "detector"),
+    ("detector", "DETECTOR", "detector"),
     ("audio", "AUDIO", "audio"),
     ("speaker", "SPEAKER", "audio"),
     ("supply", "SUPPLY", "supply"),
@@ -61,18 +62,22 @@ def stage_states(steps: Iterable[StepView], fault_stage: str | None) -> dict[str
 
 
 class StageBox(Static):
-    """One stage: label in the border, state below it."""
+    """One stage: its label, and its state as symbol and word below it."""
 
     def __init__(self, box_id: str, label: str, stage: str) -> None:
-        super().__init__(STATE_TEXT[UNTESTED], id=f"stage-{box_id}", classes="stage-box",
-                         markup=False)
+        super().__init__(id=f"stage-{box_id}", classes="stage-box")
         self.stage = stage
-        self.border_title = label
+        self.label = label
         self.state = UNTESTED
+        self.update(self._text(UNTESTED))
+
+    def _text(self, state: str) -> Content:
+        return Content.from_markup("[b]$label[/b]\n$state", label=self.label,
+                                   state=STATE_TEXT[state])
 
     def show(self, state: str, current: bool) -> None:
         self.state = state
-        self.update(STATE_TEXT[state])
+        self.update(self._text(state))
         for name in STATE_TEXT:
             self.set_class(name == state, f"-{name}")
         self.set_class(current, "-current")
@@ -83,16 +88,15 @@ class StageMap(Horizontal):
 
     DEFAULT_CSS = """
     StageMap {
-        height: 3;
+        height: 4;
         width: 1fr;
     }
     StageMap .stage-box {
         width: 1fr;
         min-width: 10;
-        height: 3;
+        height: 4;
         border: round $panel-lighten-2;
-        border-title-align: left;
-        content-align: center middle;
+        text-align: center;
         color: $text-muted;
     }
     StageMap #stage-supply {
@@ -104,9 +108,7 @@ class StageMap(Horizontal):
     StageMap .stage-box.-faulty { color: $error; text-style: bold; border: round $error; }
     StageMap .stage-box.-current {
         border: heavy $accent;
-        border-title-color: $accent;
-        border-title-style: bold reverse;
-        background: $accent 15%;
+        background: $accent 20%;
     }
     """
 

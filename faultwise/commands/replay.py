@@ -1,0 +1,75 @@
+"""``faultwise replay [CASES...] [--json]``: re-walk recorded cases against the current graph."""
+
+from __future__ import annotations
+
+import argparse
+import json
+from pathlib import Path
+
+
+def register(subparsers) -> None:
+    from faultwise.cli import add_workspace_options
+
+    p = subparsers.add_parser("replay", help="re-walk cases against the current knowledge",
+                              description="Give each recorded case's answers to the current "
+                              "graph and priors, and list every case whose path or conclusion "
+                              "would change. Case files are only read.")
+    p.add_argument("cases_given", nargs="*", metavar="CASES",
+                   help="case ids or case files (default: every case in the cases folder)")
+    add_workspace_options(p)
+    p.add_argument("--json", action="store_true", help="print one JSON document")
+    p.set_defaults(func=run)
+
+
+def _targets(given: list[str], folder: Path) -> list[Path]:
+    from faultwise.cases import case_path
+    from faultwise.errors import CaseError
+
+    out = []
+    for item in given:
+        path = Path(item)
+        if item.endswith(".json") or path.is_file():
+            if not path.is_file():
+                raise CaseError("there is no such case file", file=item,
+                                hint="give a case id or the path of a case file")
+            out.append(path)
+            continue
+        path = case_path(folder, item)
+        if not path.is_file():
+            raise CaseError(f"there is no case {item}", file=str(path),
+                            hint="check the id, or give the path of the case file")
+        out.append(path)
+    return out
+
+
+def run(args: argparse.Namespace) -> int:
+    from faultwise.graph import load_knowledge
+    from faultwise.replay import case_files, replay_files
+    from faultwise.workspace import resolve_workspace
+
+    ws = resolve_workspace(args.knowledge, getattr(args, "cases", None),
+                           getattr(args, "bench", None))
+    knowledge = load_knowledge(ws.knowledge_dir)
+    if args.cases_given:
+        paths = _targets(args.cases_given, ws.cases_dir)
+    else:
+        paths = case_files(ws.cases_dir)
+    report = replay_files(knowledge, paths)
+    if args.json:
+        print(json.dumps(report.to_json(), indent=2, ensure_ascii=False))
+        return 0
+    for r in report.results:
+        if r.same:
+            print(f"{r.case}  same  {r.now or 'no conclusion'}")
+        else:
+            print(f"{r.case}  changed at step {r.step}: was {r.check_was or '(end)'} -> "
+                  f"{r.was or 'no conclusion'}; now {r.check_now or '(end)'} -> "
+                  f"{r.now or 'no conclusion'}")
+    for file, reason in report.damaged:
+        print(f"{file}  damaged ({reason}), left as it is")
+    for case, reason in report.failed:
+        print(f"{case}  not replayed: {reason}")
+    print(f"replayed {report.replayed} case{'s' if report.replayed != 1 else ''}: "
+          f"{report.same} same, {len(report.changed)} changed, {len(report.damaged)} damaged"
+          + (f", {len(report.failed)} not replayable" if report.failed else "") + ".")
+    return 0

@@ -1,0 +1,156 @@
+"""``faultwise walk PROFILE --symptom ID --answers FILE [--json]``: a walk without a screen.
+
+The answers file (YAML) has ``readings`` keyed by expectation name (a number in the
+expectation's unit, a string with a unit such as "58 V", or one of absent/low/normal/high)
+and ``observations`` keyed by check id (a choice each). A measurement not given reads its
+nominal value; an observation not given takes the check's normal choice.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+from pathlib import Path
+
+ANSWER_KEYS = ("readings", "observations")
+
+
+def register(subparsers) -> None:
+    from faultwise.cli import add_workspace_options
+
+    p = subparsers.add_parser("walk", help="walk the graph with answers from a file",
+                              description="Walk from a complaint to a conclusion without a "
+                              "screen, answering each check from an answers file.")
+    p.add_argument("profile", metavar="PROFILE", help="set profile YAML (faultwise-set/1)")
+    p.add_argument("--symptom", required=True, metavar="ID", help="symptom id, e.g. dead-lights-on")
+    p.add_argument("--answers", required=True, metavar="FILE",
+                   help="YAML with 'readings' (by expectation name) and 'observations' (by check id)")
+    add_workspace_options(p)
+    p.add_argument("--json", action="store_true", help="print one JSON document")
+    p.set_defaults(func=run)
+
+
+def tube_dir(knowledge_dir: Path) -> Path | None:
+    """The knowledge folder when it has its own tubes.yaml, else None (the bundled table)."""
+    return knowledge_dir if (Path(knowledge_dir) / "tubes.yaml").is_file() else None
+
+
+def load_answers(path, knowledge, expectations) -> tuple[dict, dict]:
+    """Read and check an answers file; InputError names file, line and key of a problem."""
+    from faultwise.errors import FaultwiseError, InputError
+    from faultwise.nodes import MEASURE_OUTCOMES, Check
+    from faultwise.units import parse_reading
+    from faultwise.yamlload import line_of, load_yaml_file
+
+    file = str(path)
+    try:
+        data = load_yaml_file(Path(path))
+    except FaultwiseError as exc:
+        raise InputError(exc.message, file=exc.file or file, line=exc.line, key=exc.key,
+                         hint=exc.hint) from None
+    if data is None:
+        data = {}
+    if not isinstance(data, dict):
+        raise InputError("the answers file must be a mapping", file=file, line=1,
+                         hint="write 'readings:' and 'observations:' sections")
+    for key in data:
+        if key not in ANSWER_KEYS:
+            raise InputError(f"unknown key '{key}' in the answers file", file=file,
+                             line=line_of(data, key), key=str(key),
+                             hint="use only readings and observations")
+    readings: dict = {}
+    raw = data.get("readings") or {}
+    if not isinstance(raw, dict):
+        raise InputError("'readings' must be a mapping", file=file,
+                         line=line_of(data, "readings"), key="readings",
+                         hint="write 'expectation.name: value' lines under it")
+    for name, value in raw.items():
+        line = line_of(raw, name)
+        if name not in expectations:
+            raise InputError(f"unknown expectation name '{name}' for this set", file=file,
+                             line=line, key=str(name),
+                             hint="run 'faultwise expect PROFILE' to list the names")
+        unit = expectations[name].unit
+        if isinstance(value, bool) or value is None or isinstance(value, (list, dict)):
+            raise InputError(f"the reading for '{name}' must be a number or a value with a unit",
+                             file=file, line=line, key=str(name), hint=f"write e.g. '{name}: 12 {unit}'")
+        if isinstance(value, str) and value.strip() not in MEASURE_OUTCOMES:
+            try:
+                parse_reading(value, unit)
+            except InputError as exc:
+                raise InputError(exc.message, file=file, line=line, key=str(name),
+                                 hint=exc.hint) from None
+        readings[str(name)] = value.strip() if isinstance(value, str) else value
+    observations: dict = {}
+    raw = data.get("observations") or {}
+    if not isinstance(raw, dict):
+        raise InputError("'observations' must be a mapping", file=file,
+                         line=line_of(data, "observations"), key="observations",
+                         hint="write 'check-id: choice' lines under it")
+    for check_id, choice in raw.items():
+        line = line_of(raw, check_id)
+        node = knowledge.nodes.get(check_id)
+        if not isinstance(node, Check) or node.is_measurement:
+            raise InputError(f"'{check_id}' is not an observation check of the knowledge",
+                             file=file, line=line, key=str(check_id),
+                             hint="give measurements under readings by expectation name")
+        if isinstance(choice, bool):   # YAML reads yes/no as booleans
+            choice = "yes" if choice else "no"
+        if not isinstance(choice, str) or choice not in node.choices:
+            raise InputError(f"'{choice}' is not a choice of '{check_id}'", file=file, line=line,
+                             key=str(check_id), hint="use one of " + ", ".join(node.choices))
+        observations[str(check_id)] = choice
+    return readings, observations
+
+
+def _step_json(step) -> dict:
+    return {"n": step.n, "node": step.node, "title": step.title, "expect": step.expect,
+            "raw": step.raw, "value": step.value, "outcome": step.outcome,
+            "band": dict(step.band) if step.band else None, "minutes": step.minutes}
+
+
+def run(args: argparse.Namespace) -> int:
+    from faultwise.expect import expect
+    from faultwise.graph import load_knowledge
+    from faultwise.profile import load_profile
+    from faultwise.walk import auto_walk
+    from faultwise.workspace import resolve_workspace
+
+    ws = resolve_workspace(args.knowledge, getattr(args, "cases", None),
+                           getattr(args, "bench", None))
+    knowledge = load_knowledge(ws.knowledge_dir)
+    tubes = tube_dir(ws.knowledge_dir)
+    profile = load_profile(args.profile, knowledge_dir=tubes)
+    table = None
+    if tubes is not None:
+        from faultwise.tubes import load_tube_table
+
+        table = load_tube_table(tubes)
+    expectations = expect(profile, tube_table=table)
+    readings, observations = load_answers(args.answers, knowledge, expectations)
+    result = auto_walk(knowledge, profile, args.symptom, readings, observations,
+                       expectations=expectations)
+    steps = [s for s in result.steps if s.phase == "diagnose"]
+    fault = result.conclusion
+    if args.json:
+        doc = {"conclusion": fault.id if fault else None, "title": fault.title if fault else None,
+               "checks": result.checks, "minutes": result.minutes,
+               "steps": [_step_json(s) for s in steps], "escalate": result.escalate}
+        print(json.dumps(doc, indent=2, ensure_ascii=False))
+        return 0
+    for s in steps:
+        if s.band:
+            shown = f"{s.raw} -> {s.outcome} (band {s.band['low']:.4g}-{s.band['high']:.4g} " \
+                    f"{s.band['unit']})"
+        else:
+            shown = f"{s.raw} -> {s.outcome}"
+        print(f"{s.n:>3}. {s.node}  {s.title}: {shown}")
+    if fault:
+        print(f"Conclusion: {fault.id}  {fault.title}")
+    elif result.escalate and result.escalate in knowledge.nodes:
+        node = knowledge.nodes[result.escalate]
+        print(f"No conclusion: {node.id}  {node.title}. {node.advice}")
+    else:
+        print("No conclusion: every suspect was cleared.")
+    print(f"{result.checks} check{'s' if result.checks != 1 else ''}, {result.minutes:g} min.")
+    return 0

@@ -1,0 +1,80 @@
+"""Review of 10,000 closed cases: first run against plain json parsing, and a second run.
+
+Prints (DESIGN section 12 targets): the first review's time over the time to read and
+parse the same files with the standard json module (target at most 2x), and the second
+review's seconds with nothing changed (target under 0.5 s), in-process and as a command.
+
+    python tests/benchmarks/bench_review.py [N]
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+HERE = Path(__file__).resolve().parent
+sys.path.insert(0, str(HERE))
+
+from make_cases import make_cases  # noqa: E402
+
+
+def plain_parse_s(folder: Path) -> float:
+    """Read and json.loads every case file, as a reader without an index would."""
+    t0 = time.perf_counter()
+    for name in sorted(os.listdir(folder)):
+        if name.endswith(".json"):
+            with open(folder / name, "rb") as fh:
+                json.loads(fh.read().decode("utf-8"))
+    return time.perf_counter() - t0
+
+
+def knowledge_for_bench():
+    from faultwise.errors import FaultwiseError
+    from faultwise.graph import load_knowledge
+    from faultwise.workspace import bundled_knowledge_dir
+
+    try:
+        return load_knowledge(bundled_knowledge_dir())
+    except FaultwiseError:
+        return load_knowledge(HERE.parent / "fixtures" / "kb_review")
+
+
+def main(n: int) -> None:
+    from faultwise.index import INDEX_NAME
+    from faultwise.review import review_folder
+
+    knowledge = knowledge_for_bench()
+    with tempfile.TemporaryDirectory() as tmp:
+        folder = Path(tmp) / "cases"
+        make_cases(folder, n)
+        plain_parse_s(folder)                       # warm the page cache for both
+        base = min(plain_parse_s(folder) for _ in range(3))
+        t0 = time.perf_counter()
+        first = review_folder(folder, knowledge)
+        t_first = time.perf_counter() - t0
+        t0 = time.perf_counter()
+        second = review_folder(folder, knowledge)
+        t_second = time.perf_counter() - t0
+        assert second.parsed == 0 and second.cases == first.cases
+        cmd = [sys.executable, "-m", "faultwise", "review", "--cases", str(folder),
+               "--knowledge", str(knowledge.root), "--json"]
+        t0 = time.perf_counter()
+        subprocess.run(cmd, check=True, capture_output=True)
+        t_cli = time.perf_counter() - t0
+        size = (folder / INDEX_NAME).stat().st_size
+    print(f"cases: {n} ({first.cases} closed read), knowledge {knowledge.root.name}")
+    print(f"plain json parse: {base:.3f} s")
+    print(f"review, first run (index built): {t_first:.3f} s  ratio {t_first / base:.2f}x "
+          f"(target <= 2x)")
+    print(f"review, second run (index only): {t_second:.3f} s (target < 0.5 s)")
+    print(f"'faultwise review --json', second run, whole process: {t_cli:.3f} s")
+    print(f"index size: {size / 1e6:.1f} MB")
+
+
+if __name__ == "__main__":
+    main(int(sys.argv[1]) if len(sys.argv) > 1 else 10_000)

@@ -1,0 +1,55 @@
+"""Key-pressing helpers for the pilot tests: the keys a technician would press."""
+
+from __future__ import annotations
+
+from textual.pilot import Pilot
+
+CASE_ID = "20261201-B1-001"       # first case of the fixed clock's day at bench B1
+
+
+async def type_text(pilot: Pilot, text: str) -> None:
+    """Type ``text`` into whatever has focus, one key per character."""
+    await pilot.press(*["space" if ch == " " else ch for ch in text])
+
+
+async def ready(pilot: Pilot) -> None:
+    """Let the start-up workers (knowledge, case listing) finish."""
+    await pilot.pause()
+    await pilot.app.workers.wait_for_complete()
+    await pilot.pause()
+
+
+async def new_case(pilot: Pilot, *, search: str = "5 tube", complaint: str = "hums loudly",
+                   customer: str = "ticket 4411", apprentice: bool = False) -> None:
+    """From the start screen: n, search the library, complaint, symptom, customer, start."""
+    await ready(pilot)
+    await pilot.press("n")
+    await ready(pilot)
+    assert pilot.app.screen.id == "new-case"
+    await type_text(pilot, search)
+    await pilot.press("enter")                 # takes the best-ranked set
+    await type_text(pilot, complaint)
+    await pilot.press("enter")                 # takes the best-ranked symptom
+    await type_text(pilot, customer)
+    if apprentice:
+        await pilot.press("f8")
+    await pilot.press("enter")                 # starts the walk
+    await pilot.pause()
+
+
+async def answer(pilot: Pilot, text: str) -> None:
+    """Type into the focused answer field and press Enter."""
+    assert pilot.app.focused is not None and pilot.app.focused.id == "answer", pilot.app.focused
+    await type_text(pilot, text)
+    await pilot.press("enter")
+    await pilot.pause()
+
+
+async def acknowledge_cautions(pilot: Pilot) -> int:
+    """Acknowledge every caution modal on top; returns how many were shown."""
+    shown = 0
+    while pilot.app.screen.id == "caution":
+        shown += 1
+        await pilot.press("enter")
+        await pilot.pause()
+    return shown
