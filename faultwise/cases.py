@@ -138,7 +138,7 @@ def read_case_bytes(raw: bytes, file="case") -> dict:
         raise _damage(file, "not a mapping")
     fmt = data.get("format")
     if not isinstance(fmt, str) or not fmt.startswith(FORMAT_PREFIX):
-        raise _damage(file, "not a faultwise case")
+        raise _damage(file, "wrong format version")
     try:
         data = migrate(data)
     except ValueError:

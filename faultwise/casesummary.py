@@ -53,12 +53,13 @@ def norm_text(text: str) -> str:
 
 
 def summarise(case: dict, file: str) -> dict:
-    """What the review needs of one case: plain JSON-ready data (see DEVELOPERS, review).
+    """What the review needs of one case: plain JSON-ready data, compact (it is stored).
 
-    ``checks``: [node, outcome] of each diagnose-phase answer in order; ``skips``: [node,
-    reason]; ``off_graph``: findings; ``to_fault_min``: minutes from ``opened`` to the last
-    diagnose-phase event (the one that reached the conclusion), as recorded; ``t_open`` and
-    ``t_close``: POSIX seconds; ``day``/``month``: the close's date as recorded; ``who``:
+    ``checks``: node, outcome, node, outcome, ... of the diagnose-phase answers in order
+    (flat); ``skips``: node, reason, ... (flat); ``off_graph``: findings; ``to_fault_min``:
+    minutes from ``opened`` to the last diagnose-phase event (the one that reached the
+    conclusion), as recorded; ``t_open``/``t_close``: POSIX seconds; ``open_day``/``day``/
+    ``month``: the dates as recorded (``day`` is the close's, else the opening's); ``who``:
     customer and set, normalised, for spotting a set that comes back ("" with no customer).
     """
     checks, skips, findings = [], [], []
@@ -70,10 +71,10 @@ def summarise(case: dict, file: str) -> dict:
         kind = ev.get("type")
         if kind == "answer":
             if ev.get("phase", "diagnose") == "diagnose":
-                checks.append([_str(ev.get("node")), _str(ev.get("outcome"))])
+                checks += (_str(ev.get("node")), _str(ev.get("outcome")))
                 last_at = ev.get("at")
         elif kind == "skip":
-            skips.append([_str(ev.get("node")), _str(ev.get("reason"))])
+            skips += (_str(ev.get("node")), _str(ev.get("reason")))
             if ev.get("phase", "diagnose") == "diagnose":
                 last_at = ev.get("at")
         elif kind == "off-graph" and ev.get("finding"):
@@ -92,22 +93,10 @@ def summarise(case: dict, file: str) -> dict:
         except TypeError:  # one time with a zone, one without
             to_fault = None
     customer = _text(case.get("customer"))
-    set_name = _set_name(case)
-    day = (closed or opened).date().isoformat() if (closed or opened) else ""
+    when = closed or opened
     return {
         "id": _text(case.get("id")) or file.removesuffix(".json"),
-        "file": file,
         "status": _text(case.get("status")),
-        "bench": _text(case.get("bench")),
-        "opened": _text(case.get("opened")),
-        "closed": _text(case.get("closed")),
-        "t_open": _stamp(opened),
-        "t_close": _stamp(closed),
-        "day": day,
-        "month": closed.strftime("%Y-%m") if closed else "",
-        "customer": customer,
-        "set": set_name,
-        "who": (norm_text(customer) + " | " + norm_text(set_name)) if customer.strip() else "",
         "symptom": _text(case.get("symptom")),
         "family": _text(case.get("family")),
         "outcome": _text(case.get("outcome")),
@@ -118,7 +107,20 @@ def summarise(case: dict, file: str) -> dict:
         "skips": skips,
         "off_graph": findings,
         "to_fault_min": to_fault,
+        "t_open": _stamp(opened),
+        "t_close": _stamp(closed),
+        "open_day": opened.date().isoformat() if opened else "",
+        "day": when.date().isoformat() if when else "",
+        "month": closed.strftime("%Y-%m") if closed else "",
+        "who": (norm_text(customer) + " | " + norm_text(_set_name(case)))
+        if customer.strip() else "",
     }
+
+
+def pairs(flat: list) -> zip:
+    """(a, b) pairs of a flat [a, b, a, b, ...] list (summary ``checks`` and ``skips``)."""
+    it = iter(flat)
+    return zip(it, it)
 
 
 def _stamp(t: datetime | None) -> float | None:

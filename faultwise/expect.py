@@ -41,9 +41,11 @@ class Expected:
 
 STAGES = ("supply", "audio", "detector", "if", "oscillator", "antenna")
 
-_ROLE_STAGE = {"rf": "antenna", "converter": "oscillator", "mixer": "if", "oscillator": "oscillator",
-               "if": "if", "if2": "if", "if3": "if", "detector": "detector", "driver": "audio", "audio": "audio",
-               "output": "audio", "output2": "audio"}
+_ROLE_STAGE = {"rf": "antenna", "converter": "oscillator", "mixer": "if",
+               "oscillator": "oscillator", "if": "if", "if2": "if", "if3": "if",
+               "detector": "detector", "driver": "audio", "audio": "audio", "output": "audio",
+               "output2": "audio"}
+"""Stage of a transistor's bias readings, by its role."""
 _BIAS_FIELDS = {"vb_v": ("base", "V", "vb_v"), "ve_v": ("emitter", "V", "ve_v"),
                 "ic_ma": ("collector current", "mA", "ic_ma"), "vc_v": ("collector", "V", "vc_v")}
 
@@ -208,8 +210,14 @@ def _string_current_a(p) -> float:
 
 def _series_string(ctx: _Context) -> None:
     from faultwise.calc import heaters as h
-    from faultwise.calc.tolerance import (HEATER_TOL, RESISTOR_TOL, heater, relative, resistor_ohm,
-                                         worst_case)
+    from faultwise.calc.tolerance import (
+        HEATER_TOL,
+        RESISTOR_TOL,
+        heater,
+        relative,
+        resistor_ohm,
+        worst_case,
+    )
 
     p, line = ctx.p, ctx.line()
     tubes = p.tubes
@@ -311,7 +319,8 @@ def _heater_winding(ctx: _Context) -> None:
             keys=tuple(f"tubes.{t.role}.heater_a" for t in on) + ("mains",))
     for t in p.tubes:
         rated = wv if t in on else t.heater_v
-        vb = worst_case(lambda line_v: h.winding_v(line_v, line.nominal, rated), {"line_v": line})
+        vb = worst_case(lambda line_v, rated=rated: h.winding_v(line_v, line.nominal, rated),
+                        {"line_v": line})
         ctx.add(f"heater.{t.role}.v", f"Heater voltage, {t.role} ({t.type})", "supply", vb.nominal,
                 vb.low, vb.high, "V",
                 f"{_n(rated)} V winding x line / {_n(line.nominal)} V (parallel heaters); band: "
@@ -469,7 +478,12 @@ tube table gives no operating point: about 0.9, the screen taking the rest (trad
 
 def _output_tube(ctx: _Context) -> None:
     from faultwise.calc import audio
-    from faultwise.calc.tolerance import TUBE_CURRENT_TOL, relative, resistor_ohm, worst_case
+    from faultwise.calc.tolerance import (
+        TUBE_CURRENT_TOL,
+        relative,
+        resistor_ohm,
+        worst_case,
+    )
 
     t = ctx.p.tube("output")
     if t is None:
@@ -503,7 +517,8 @@ def _output_tube(ctx: _Context) -> None:
     op = getattr(data, "operation", None)
     frac = op.plate_ma / op.cathode_ma if op is not None and op.cathode_ma else PLATE_FRACTION
     frac_text = (f"plate {_n(op.plate_ma)} of {_n(op.cathode_ma)} mA in the tube data"
-                 if op is not None else f"plate about {_n(PLATE_FRACTION)} of the cathode current (trade)")
+                 if op is not None else
+                 f"plate about {_n(PLATE_FRACTION)} of the cathode current (trade)")
     drop = audio.primary_drop_v(t.cathode_ma * frac, rp.nominal)
     bplus = rect.bands["rectifier_out_v"]
     nom = bplus.nominal - drop
@@ -600,7 +615,8 @@ def _bias(ctx: _Context) -> None:
         stage = _ROLE_STAGE.get(tr.role, "audio")
         tails = {"vb_v": f"Vb = Ve + Vbe = {_n(nom.vb_v)} V",
                  "ve_v": f"Ve = (beta+1) Ib Re = {_n(nom.ve_v)} V",
-                 "ic_ma": f"Ic = beta Ib = {_n(tr.beta)} x {_n(nom.ib_ma * 1000)} uA = {_n(nom.ic_ma)} mA",
+                 "ic_ma": (f"Ic = beta Ib = {_n(tr.beta)} x {_n(nom.ib_ma * 1000)} uA = "
+                           f"{_n(nom.ic_ma)} mA"),
                  "vc_v": (f"Vc = Vcc - Ic Rc = {_n(p.battery_v)} - {_n(nom.ic_ma)} mA x "
                           f"{_n(b.collector_ohm)} ohm = {_n(nom.vc_v)} V")}
         for field, (what, unit, attr) in _BIAS_FIELDS.items():
@@ -609,7 +625,7 @@ def _bias(ctx: _Context) -> None:
                     f"{tr.role.capitalize()} {tr.material} {tr.polarity.upper()} {what}", stage,
                     bb.nominal, bb.low, bb.high, unit, f"{head}; {tails[field]}; {band}", keys=keys)
         # standby: per battery end, the sum of each stage's min/max over its own corners
-        draw = lambda d: d.ic_ma + d.divider_ma  # noqa: E731 - battery current of one stage
+        draw = lambda d: d.ic_ma + d.divider_ma
         standby_nom += draw(nom)
         for end in ("low", "high"):
             vcc = getattr(sp["vcc_v"], end)
@@ -711,9 +727,10 @@ def _tuning(ctx: _Context) -> None:
 
     p = ctx.p
     lo_f, hi_f, iff = p.band_low_khz, p.band_high_khz, p.if_khz
-    dial = lambda f: relative(f, tu.DIAL_TOL)  # noqa: E731
+    dial = lambda f: relative(f, tu.DIAL_TOL)
     ifs = relative(iff, IF_ALIGN_TOL)
-    tol_text = f"dial +-{tu.DIAL_TOL * 100:g} % (common practice, no source), IF +-{IF_ALIGN_TOL * 100:g} % (trade)"
+    tol_text = (f"dial +-{tu.DIAL_TOL * 100:g} % (common practice, no source), "
+                f"IF +-{IF_ALIGN_TOL * 100:g} % (trade)")
     for end, f in (("low", lo_f), ("high", hi_f)):
         b = worst_case(tu.lo_khz, {"signal_khz": dial(f), "if_khz": ifs})
         ctx.add(f"tuning.lo_{end}_khz", f"Local oscillator, dial at the {end} end", "oscillator",
@@ -747,11 +764,13 @@ def _tuning(ctx: _Context) -> None:
     for end, f in zip(("low", "high"), tu.alignment_points_khz(lo_f, hi_f)):
         d = dial(f)
         where = "padder" if end == "low" else "trimmer"
+        rule = ("about a tenth above the band's low end" if end == "low" else
+                "about an eighth below the band's top")
         ctx.add(f"tuning.align_{end}_khz", f"Alignment point for the oscillator {where}",
                 "oscillator", f, d.low, d.high, "kHz",
-                f"{_n(f)} kHz: about a tenth above the band's low end / an eighth below its top, "
-                f"rounded to a 50 kHz step on the broadcast band (common practice: 600 and 1400 kHz on 540-1600); band: "
-                f"dial +-{tu.DIAL_TOL * 100:g} %", keys=("band",), absent=0.0)
+                f"{_n(f)} kHz: {rule}, rounded (50 kHz steps on the broadcast band; common "
+                f"practice: 600 and 1400 kHz on 540-1600); band: dial +-{tu.DIAL_TOL * 100:g} %",
+                keys=("band",), absent=0.0)
 
 
 def _oscillator_coil(ctx: _Context, gang: dict, c_max: float) -> None:

@@ -217,7 +217,20 @@ def _cached(row: tuple, key: tuple) -> tuple[dict | None, str | None] | None:
 def scan_cases(cases_dir: str | os.PathLike, *, use_index: bool = True,
                progress: Progress | None = None) -> Scan:
     """Summaries of every case file in the folder, through the index where it is current."""
-    cases_dir = Path(cases_dir)
+    import gc
+
+    # A bulk load makes many objects that live on: the cycle collector would walk them
+    # again and again for nothing (parsed cases are freed by reference counting).
+    collecting = gc.isenabled()
+    gc.disable()
+    try:
+        return _scan(Path(cases_dir), use_index, progress)
+    finally:
+        if collecting:
+            gc.enable()
+
+
+def _scan(cases_dir: Path, use_index: bool, progress: Progress | None) -> Scan:
     entries = _case_entries(cases_dir)
     store = None
     rows: dict[str, tuple] = {}
@@ -243,7 +256,7 @@ def scan_cases(cases_dir: str | os.PathLike, *, use_index: bool = True,
             summary, reason, cacheable = read_one(os.path.join(folder, name), key)
             if summary is None and reason is None:
                 continue                 # vanished
-            if cacheable:
+            if cacheable and store is not None:
                 upserts.append((name, size, mtime_ns, ino,
                                 None if summary is None else dumps(summary),
                                 reason))

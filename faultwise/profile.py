@@ -10,7 +10,11 @@ The loader and validator (``load_profile``, ``profile_from_dict``) are below the
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
+from pathlib import Path
+
+from faultwise.errors import FaultwiseError, InputError, ProfileError
 
 FAMILIES = ("series-string", "transformer", "transistor")
 LINE_FAMILIES = ("series-string", "transformer")
@@ -111,11 +115,6 @@ class Profile:
 # in signal order), detector (a transistor detector; most sets use a diode), audio (first
 # audio, RC coupled), driver (transformer-coupled driver), output and output2 (the output
 # transistor, or the two halves of a push-pull pair).
-
-import math
-from pathlib import Path
-
-from faultwise.errors import FaultwiseError, InputError, ProfileError
 
 FORMAT = "faultwise-set/1"
 TRANSISTOR_ROLES = ("rf", "converter", "mixer", "oscillator", "if", "if2", "if3", "detector",

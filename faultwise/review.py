@@ -31,6 +31,7 @@ from dataclasses import dataclass
 from datetime import date
 from typing import Iterable, Mapping
 
+from faultwise.casesummary import pairs
 from faultwise.errors import FaultwiseError, KnowledgeError
 
 REOPEN_DAYS = 30
@@ -243,7 +244,7 @@ def _never_varied(knowledge, cases: list[Mapping], min_cases: int) -> list[Stead
     made: Counter = Counter()
     for s in cases:
         seen = set()
-        for node, outcome in s.get("checks", ()):
+        for node, outcome in pairs(s.get("checks", ())):
             outcomes[node].add(outcome)
             seen.add(node)
         made.update(seen)
@@ -280,7 +281,7 @@ def review_pair(knowledge, symptom: str, family: str, cases: list[Mapping],
     dat = sum(o.weight * o.data_minutes for o in orders) if orders else None
     return PairReview(
         symptom=symptom, family=family, cases=len(cases), concluded=n, faults=tuple(faults),
-        mean_checks=_mean(len(s.get("checks", ())) for s in concluded),
+        mean_checks=_mean(len(s.get("checks", ())) // 2 for s in concluded),
         mean_minutes=_mean(s["to_fault_min"] for s in concluded
                            if s.get("to_fault_min") is not None),
         orders=tuple(orders), current_minutes=cur, data_minutes=dat,
@@ -293,7 +294,7 @@ def skipped_checks(knowledge, cases: Iterable[Mapping]) -> list[SkippedCheck]:
     """Checks by how often they were skipped, with the reasons given."""
     reasons: dict[str, Counter] = defaultdict(Counter)
     for s in cases:
-        for node, reason in s.get("skips", ()):
+        for node, reason in pairs(s.get("skips", ())):
             reasons[node][reason.strip() or "(no reason given)"] += 1
     out = [SkippedCheck(node, _title(knowledge, node), sum(r.values()),
                         tuple(sorted(r.items(), key=lambda kv: (-kv[1], kv[0]))))
@@ -359,7 +360,7 @@ def reopened_cases(summaries: Iterable[Mapping], since: date | None = None,
     out = []
     for s in summaries:
         opened = s.get("t_open")
-        if first_day and str(s.get("opened", ""))[:10] < first_day:
+        if first_day and s.get("open_day", "") < first_day:
             continue
         before = s.get("reopened_from")
         if before:

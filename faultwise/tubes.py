@@ -155,6 +155,8 @@ def _text(entry, key: str, where: str, source: str, required: bool = True) -> st
     value = entry.get(key)
     if value is None and not required:
         return None
+    if isinstance(value, int) and not isinstance(value, bool):
+        value = str(value)           # the type 80 is a plain number in YAML
     if not isinstance(value, str) or not value.strip():
         raise _bad(f"{key} must be text", source, _line(entry, key) or getattr(entry, "line", None),
                    f"{where}.{key}", f"give {key} as text")
@@ -199,8 +201,6 @@ def _entry(entry, i: int, source: str) -> TubeType:
         raise _bad("each tube entry must be a mapping", source, None, where,
                    "write type, heater_v, heater_a, base, kind, roles and source")
     _unknown_keys(entry, _ENTRY_KEYS, where, source)
-    if isinstance(entry.get("type"), int) and not isinstance(entry.get("type"), bool):
-        entry = {**entry, "type": str(entry["type"])}   # the type 80 is a plain number in YAML
     name = _text(entry, "type", where, source)
     also = entry.get("also") or []
     roles = entry.get("roles")

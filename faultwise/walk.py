@@ -546,11 +546,22 @@ class Walk:
         return tuple(frames)
 
     def _verify_warning(self, st: _State) -> str | None:
-        if not st.verify_bad:
-            return None
-        names = ", ".join(st.verify_bad)
-        return (f"verify reading not normal ({names}): the repair may not have cured the fault; "
-                "resume the diagnosis to try the next suspect")
+        """What the tech must know now: a verify reading not normal, a closing check failed."""
+        notes = []
+        if st.verify_bad:
+            notes.append(f"verify reading not normal ({', '.join(st.verify_bad)}): the repair "
+                         "may not have cured the fault; resume the diagnosis to try the next "
+                         "suspect")
+        for cid, outcome in st.closing_answers.items():
+            check = self.knowledge.nodes.get(cid)
+            if check is None or outcome == check.normal:
+                continue
+            text = f"the closing check '{check.title}' read {outcome}: the set must not go back"
+            target = self.knowledge.nodes.get(check.outcomes.get(outcome, CLEARED))
+            if isinstance(target, Escalate):
+                text += f". {target.title}: {target.advice}"
+            notes.append(text)
+        return "; ".join(notes) or None
 
     def _closing_ids(self) -> list[str]:
         return [c.id for c in self.knowledge.closing_checks(self.family)]

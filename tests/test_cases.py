@@ -261,7 +261,7 @@ DAMAGED = {
     "20261201-B1-105.json": (b'{"format": "faultwise-case/9", "id": "x", "events": []}\n',
                              "unknown format version"),
     "20261201-B1-106.json": (b'{"format": "other-tool/1", "id": "x", "events": []}\n',
-                             "not a faultwise case"),
+                             "wrong format version"),
     "20261201-B1-107.json": (b"", "empty"),
     "20261201-B1-108.json": (b'{"format": "faultwise-case/1", "id": "x"}\n',
                              "missing or bad key 'events'"),

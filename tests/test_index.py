@@ -93,7 +93,7 @@ def test_replaced_file_with_same_size_and_mtime_is_picked_up(folder, parses):
     path = folder / f"{_cases()[2]['id']}.json"
     st = path.stat()
     text = path.read_text()
-    new = text.replace('"bench": "B1"', '"bench": "B3"')
+    new = text.replace('"minutes": 23', '"minutes": 87')
     assert len(new) == len(text)
     tmp = folder / ".replace.fwtmp"
     tmp.write_text(new)
@@ -102,7 +102,7 @@ def test_replaced_file_with_same_size_and_mtime_is_picked_up(folder, parses):
     parses.clear()
     scan = scan_cases(folder)
     assert parses == [path.name]
-    assert {s["id"]: s["bench"] for s in scan.summaries}[_cases()[2]["id"]] == "B3"
+    assert {s["id"]: s["minutes"] for s in scan.summaries}[_cases()[2]["id"]] == 87
 
 
 @pytest.mark.parametrize("damage", ["random bytes", "other schema", "other database"])

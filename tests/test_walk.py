@@ -291,6 +291,7 @@ def test_closing_check_required_for_line_family(kb, ex):
     assert w.can_close("repaired") is not None
     w.answer("0.9 V")                  # above the 0.75 V limit (ANSI C39.5 network)
     assert w.prompt().kind == "close"
+    assert "must not go back" in w.prompt().warning
     with pytest.raises(WalkError, match="not normal"):
         w.close("repaired", 30)
     w.undo()
@@ -424,3 +425,59 @@ def test_auto_walk_defaults_and_given_answers(kb, ex):
     with pytest.raises(InputError):
         auto_walk(kb, H.series_profile(), "dead-lights-on", {"supply.rectifier_out_v": "lots"},
                   expectations=ex)
+
+
+# ---------------------------------------------------------------- properties (hypothesis)
+
+from hypothesis import given, settings, strategies as st  # noqa: E402
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.floats(0.0, 50.0), st.floats(0.1, 200.0), st.floats(0.1, 200.0),
+       st.sampled_from(["absent", "low", "normal", "high"]))
+def test_representative_value_property(absent_below, gap, width, outcome):
+    from faultwise.expect import Expected
+
+    low = absent_below + gap           # a valid band: absent_below < low < high
+    e = Expected("x", "x", "supply", low + width / 2, low, low + width, "V", "prop",
+                 absent_below=absent_below)
+    if outcome == "absent" and absent_below == 0:
+        return                          # no absent class when absent_below is 0 (by design)
+    assert classify(representative_value(e, outcome), e) == outcome
+
+
+@settings(max_examples=40, deadline=None)
+@given(st.lists(st.integers(0, 10), min_size=1, max_size=12))
+def test_undo_is_the_inverse_of_every_move(picks):
+    """Random walks (answers, skips, parts, resume) undone one by one retrace the same states."""
+    kb, ex = H.knowledge(), H.expectations()
+    w = new_walk(kb, ex)
+    trail = [(w.phase, node_of(w), len(w.steps))]
+    pushed = []
+    for pick in picks:
+        p = w.prompt()
+        if p is None or p.kind in ("escalate", "close"):
+            break
+        before = len(w.events)
+        if p.kind == "repair":
+            w.record_parts(["part"]) if pick % 3 else w.to_closing()
+        elif p.kind == "check" and p.expected is not None:
+            if pick == 10 and p.phase != "closing":
+                w.skip("no meter")
+            else:
+                w.answer_value(representative_value(
+                    p.expected, ("absent", "low", "normal", "high")[pick % 4]))
+        elif p.kind == "check":
+            if pick == 10 and p.phase != "closing":
+                w.skip("cannot")
+            else:
+                w.answer(p.choices[pick % len(p.choices)][0])
+        if w.verify_failed and pick % 2:
+            w.resume_diagnosis()
+        pushed.append(len(w.events) - before)
+        trail.append((w.phase, node_of(w), len(w.steps)))
+    for state, k in zip(reversed(trail[:-1]), reversed(pushed)):
+        for _ in range(k):
+            w.undo()
+        assert (w.phase, node_of(w), len(w.steps)) == state
+    assert w.events == []

@@ -16,7 +16,7 @@ def carrier_limit_us(if_khz: float) -> float:
 
 
 def rc_limit_us(audio_hz: float, m: float) -> float:
-    """Upper limit against diagonal clipping: RC <= sqrt(1 - m^2) / (omega_m m) (communication textbooks)."""
+    """No diagonal clipping: RC <= sqrt(1 - m^2) / (omega_m m) (communication textbooks)."""
     return math.sqrt(1.0 - m * m) / (2.0 * math.pi * audio_hz * m) * 1e6
 
 

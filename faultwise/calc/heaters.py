@@ -26,7 +26,7 @@ def design_line_v(string_sum_v: float, dropper_ohm: float, string_a: float) -> f
 
 
 def string_current_a(line_v: float, hot_ohm_total: float, dropper_ohm: float) -> float:
-    """Current the line drives: I = V / (R_hot + R_drop), hot resistance taken as constant (Ohm's law)."""
+    """Current the line drives: I = V / (R_hot + R_drop), hot resistance constant (Ohm's law)."""
     return line_v / (hot_ohm_total + dropper_ohm)
 
 

@@ -153,7 +153,8 @@ class ThreePointDesign:
     osc_uh: float
 
 
-def _osc_mismatch(cp: float, ct: float, cs: tuple[float, ...], fos: tuple[float, ...]) -> tuple[float, float]:
+def _osc_mismatch(cp: float, ct: float, cs: tuple[float, ...],
+                  fos: tuple[float, ...]) -> tuple[float, float]:
     """Relative mismatch of L_osc implied at the outer points against the middle one."""
     ls = [1.0 / (series_pf(c + ct, cp) * f * f) for c, f in zip(cs, fos)]
     return ls[0] / ls[1] - 1.0, ls[2] / ls[1] - 1.0

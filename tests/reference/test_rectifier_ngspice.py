@@ -14,8 +14,14 @@ import math
 
 import pytest
 
-from faultwise.calc.rectifier import (RectifierCircuit, ripple_bound_vpp, selenium_stack,
-                                      silicon_diode, simulate, tube_diode)
+from faultwise.calc.rectifier import (
+    RectifierCircuit,
+    ripple_bound_vpp,
+    selenium_stack,
+    silicon_diode,
+    simulate,
+    tube_diode,
+)
 
 from .ngspice_util import rectifier_netlist, run_ngspice
 

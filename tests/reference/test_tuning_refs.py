@@ -78,7 +78,7 @@ def test_three_point_design_is_exact_at_its_three_points_and_better_inside():
         c = tu.capacitance_pf(f, three.antenna_uh)
         fo = tu.resonant_khz(three.osc_uh, tu.series_pf(c + three.trimmer_pf, three.padder_pf))
         assert fo - f - 455 == pytest.approx(0, abs=1e-3)
-    inner = lambda curve: max(abs(p.error_khz) for p in curve  # noqa: E731
+    inner = lambda curve: max(abs(p.error_khz) for p in curve
                               if three.points_khz[0] <= p.signal_khz <= three.points_khz[-1])
     c3 = tu.tracking_error_curve(three.antenna_uh, three.osc_uh, three.padder_pf, 455,
                                  two.c_min_pf, two.c_max_pf, three.trimmer_pf)

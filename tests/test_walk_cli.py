@@ -1,0 +1,118 @@
+"""`faultwise walk` and `faultwise replay` as a technician runs them (subprocesses).
+
+Expected paths follow the p/c order worked by hand in test_rank.py; the reading 58 V is
+far below any band a 120 V half-wave series-string supply gives for its first capacitor
+(trade: about 1.2-1.4 x line RMS, common practice, no source), so it classifies low.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+import helpers_walk_proc as H
+
+PY = "/work/.venv/bin/python" if Path("/work/.venv/bin/python").exists() else sys.executable
+ROOT = Path(__file__).resolve().parent.parent
+KB = str(H.KB)
+SET = str(H.KB / "sets" / "series.yaml")
+
+
+def fw(*args, cwd=None):
+    return subprocess.run([PY, "-m", "faultwise", *args], capture_output=True, text=True,
+                          timeout=120, cwd=cwd or ROOT)
+
+
+def answers(tmp_path, text: str) -> str:
+    path = tmp_path / "answers.yaml"
+    path.write_text(text)
+    return str(path)
+
+
+def test_walk_json_to_the_capacitor(tmp_path):
+    a = answers(tmp_path, "readings:\n  supply.rectifier_out_v: 58 V\n"
+                          "observations:\n  supply.first-cap-esr: high-esr\n")
+    out = fw("walk", SET, "--symptom", "dead-lights-on", "--answers", a, "--knowledge", KB, "--json")
+    assert out.returncode == 0, out.stderr
+    doc = json.loads(out.stdout)
+    assert doc["conclusion"] == "supply.dry-first-cap"
+    assert doc["title"] == "Dried-out first filter capacitor"
+    assert [(s["node"], s["outcome"]) for s in doc["steps"]] == [
+        ("supply.rect-out", "low"), ("supply.rectifier-test", "good"),
+        ("supply.first-cap-esr", "high-esr")]
+    assert doc["checks"] == 3 and doc["minutes"] == 2 + 2 + 4
+    assert doc["steps"][0]["value"] == 58.0
+
+
+def test_walk_text_defaults_to_nominal_and_escalates(tmp_path):
+    a = answers(tmp_path, "{}\n")
+    out = fw("walk", SET, "--symptom", "dead-lights-on", "--answers", a, "--knowledge", KB)
+    assert out.returncode == 0, out.stderr
+    assert "supply.rect-out" in out.stdout and "-> normal" in out.stdout
+    assert "No conclusion: audio.esc-dead" in out.stdout
+    assert "3 checks, 5 min." in out.stdout
+
+
+@pytest.mark.parametrize("text,needle", [
+    ("readings:\n  supply.nope_v: 3\n", "unknown expectation name 'supply.nope_v'"),
+    ("readings:\n  supply.rectifier_out_v: lots\n", ":2"),
+    ("observations:\n  supply.first-cap-esr: maybe\n", "not a choice"),
+    ("observations:\n  supply.rect-out: low\n", "not an observation check"),
+    ("answers:\n  x: 1\n", "unknown key 'answers'"),
+    ("readings: [1, 2]\n", "must be a mapping"),
+    ("readings:\n  supply.rectifier_out_v: 58 V\n   bad indent: [\n", "answers.yaml"),
+])
+def test_walk_bad_answers_file_is_located(tmp_path, text, needle):
+    a = answers(tmp_path, text)
+    out = fw("walk", SET, "--symptom", "dead-lights-on", "--answers", a, "--knowledge", KB)
+    assert out.returncode == 1
+    assert "Traceback" not in out.stderr and needle in out.stderr, out.stderr
+    assert out.stderr.count("\n") == 1
+
+
+def test_walk_unknown_symptom_and_missing_files(tmp_path):
+    a = answers(tmp_path, "{}\n")
+    for args in (["--symptom", "nope", "--answers", a],
+                 ["--symptom", "dead-lights-on", "--answers", str(tmp_path / "missing.yaml")]):
+        out = fw("walk", SET, *args, "--knowledge", KB)
+        assert out.returncode == 1 and "Traceback" not in out.stderr, out.stderr
+    out = fw("walk", str(tmp_path / "none.yaml"), "--symptom", "dead-lights-on", "--answers", a,
+             "--knowledge", KB)
+    assert out.returncode == 1 and "Traceback" not in out.stderr
+
+
+def test_replay_cli_json_text_and_damaged(tmp_path):
+    import test_replay as R
+
+    folder = tmp_path / "cases"
+    ids = R.record_cases(folder)
+    damaged = folder / "20261201-B1-999.json"
+    damaged.write_bytes(b'{"format": "faultwise-case/1", "id": ')
+    digest = hashlib.sha256(damaged.read_bytes()).hexdigest()
+    out = fw("replay", "--cases", str(folder), "--knowledge", KB, "--json")
+    assert out.returncode == 0, out.stderr
+    doc = json.loads(out.stdout)
+    assert doc["replayed"] == len(R.CASES) and doc["same"] == len(R.CASES)
+    assert doc["changed"] == []
+    assert doc["damaged"] == [{"file": str(damaged), "reason": "truncated"}]
+    assert hashlib.sha256(damaged.read_bytes()).hexdigest() == digest
+    out = fw("replay", ids["cap"], "--cases", str(folder), "--knowledge", KB)
+    assert out.returncode == 0, out.stderr
+    assert f"{ids['cap']}  same  supply.dry-first-cap" in out.stdout
+    assert "replayed 1 case: 1 same, 0 changed, 0 damaged." in out.stdout
+    changed = R.changed_kb(tmp_path, "    minutes: 4\n", "    minutes: 1\n")
+    out = fw("replay", "--cases", str(folder), "--knowledge", str(changed), "--json")
+    doc = json.loads(out.stdout)
+    assert {c["case"]: c["step"] for c in doc["changed"]}[ids["cap"]] == 2
+
+
+@pytest.mark.parametrize("bad", ["../x", "a/b", "20261201-B1-404"])
+def test_replay_bad_case_ids(tmp_path, bad):
+    (tmp_path / "cases").mkdir()
+    out = fw("replay", bad, "--cases", str(tmp_path / "cases"), "--knowledge", KB)
+    assert out.returncode == 1 and "Traceback" not in out.stderr, out.stderr
