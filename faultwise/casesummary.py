@@ -94,6 +94,7 @@ def summarise(case: dict, file: str) -> dict:
             to_fault = None
     customer = _text(case.get("customer"))
     when = closed or opened
+    day = when.date().isoformat() if when else ""
     return {
         "id": _text(case.get("id")) or file.removesuffix(".json"),
         "status": _text(case.get("status")),
@@ -110,8 +111,8 @@ def summarise(case: dict, file: str) -> dict:
         "t_open": _stamp(opened),
         "t_close": _stamp(closed),
         "open_day": opened.date().isoformat() if opened else "",
-        "day": when.date().isoformat() if when else "",
-        "month": closed.strftime("%Y-%m") if closed else "",
+        "day": day,
+        "month": day[:7] if closed else "",
         "who": (norm_text(customer) + " | " + norm_text(_set_name(case)))
         if customer.strip() else "",
     }

@@ -240,15 +240,16 @@ def list_orders(knowledge, symptom: str, family: str,
 
 
 def _never_varied(knowledge, cases: list[Mapping], min_cases: int) -> list[SteadyCheck]:
-    outcomes: dict[str, set] = defaultdict(set)
-    made: Counter = Counter()
+    made: Counter = Counter()          # check -> cases that made it
+    seen: Counter = Counter()          # (check, outcome) -> cases that had it
     for s in cases:
-        seen = set()
-        for node, outcome in pairs(s.get("checks", ())):
-            outcomes[node].add(outcome)
-            seen.add(node)
-        made.update(seen)
-    out = [SteadyCheck(node, _title(knowledge, node), next(iter(outcomes[node])), n)
+        flat = s.get("checks", ())
+        made.update(set(flat[::2]))
+        seen.update(set(zip(flat[::2], flat[1::2])))
+    outcomes: dict[str, list[str]] = defaultdict(list)
+    for node, outcome in seen:
+        outcomes[node].append(outcome)
+    out = [SteadyCheck(node, _title(knowledge, node), outcomes[node][0], n)
            for node, n in made.items() if n >= min_cases and len(outcomes[node]) == 1]
     return sorted(out, key=lambda c: (-c.cases, c.check))
 

@@ -292,6 +292,7 @@ def test_closing_check_required_for_line_family(kb, ex):
     w.answer("0.9 V")                  # above the 0.75 V limit (ANSI C39.5 network)
     assert w.prompt().kind == "close"
     assert "must not go back" in w.prompt().warning
+    assert "Find the leaking part" in w.prompt().warning     # the escalate's advice
     with pytest.raises(WalkError, match="not normal"):
         w.close("repaired", 30)
     w.undo()
