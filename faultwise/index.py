@@ -1,7 +1,7 @@
 """SQLite index beside the cases: one compact summary per case file, keyed by its stat.
 
-``<cases>/.faultwise-index.sqlite`` maps each ``*.json`` file name to (size, mtime in ns,
-inode) and the summary of :func:`faultwise.casesummary.summarise` (or the reason the file
+``<cases>/.faultwise-index.sqlite`` maps each ``*.json`` file name to (size, mtime in
+ns, inode) and the summary of :func:`faultwise.casesummary.summarise` (or the reason the file
 is damaged, from :func:`faultwise.cases.read_case_bytes`). A scan stats every file (``os.scandir``) and parses only those whose stat
 differs from the index, so a review of an unchanged folder reads the index alone.
 

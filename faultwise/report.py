@@ -125,10 +125,11 @@ def _step(ev: Mapping, knowledge) -> ReportStep:
     outcome = str(ev.get("outcome") or "")
     value = ev.get("value")
     band = ev.get("band") if isinstance(ev.get("band"), dict) else None
-    return ReportStep(int(ev.get("n") or 0), node, _title(knowledge, node), str(ev.get("raw") or ""),
-                      float(value) if isinstance(value, (int, float)) and
-                      not isinstance(value, bool) else None,
-                      band, outcome, _is_normal(knowledge, node, outcome))
+    number_value = float(value) if isinstance(value, (int, float)) and \
+        not isinstance(value, bool) else None
+    return ReportStep(int(ev.get("n") or 0), node, _title(knowledge, node),
+                      str(ev.get("raw") or ""), number_value, band, outcome,
+                      _is_normal(knowledge, node, outcome))
 
 
 def _stage_of(knowledge, node_id: str) -> str:

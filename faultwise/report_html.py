@@ -64,8 +64,8 @@ def job_report_html(r: JobReport) -> str:
     closed = _e(when_text(r.closed)) if r.closed else f"not yet ({_e(r.status)})"
     b = [f"<h1>Job report {_e(r.case_id)}</h1>",
          f"<div class=\"shop\">{_e(r.shop)}</div>",
-         f"<div class=\"meta\">Bench {_e(r.bench or '-')} &middot; opened {_e(when_text(r.opened) or '-')}"
-         f" &middot; closed {closed}</div>",
+         f"<div class=\"meta\">Bench {_e(r.bench or '-')} &middot; opened "
+         f"{_e(when_text(r.opened) or '-')} &middot; closed {closed}</div>",
          "<h2>Set</h2><table>",
          f"<tr><th>Set</th><td>{_e(r.set_label)}</td></tr>",
          f"<tr><th>Family</th><td>{_e(r.family)}"

@@ -22,7 +22,7 @@ from faultwise.review import review_folder
 from review_case_factory import make_case, write_case
 
 KB = Path(__file__).parent / "fixtures" / "kb_review"
-PY = "/work/.venv/bin/python" if Path("/work/.venv/bin/python").exists() else sys.executable
+PY = sys.executable
 EVIL = "<script>alert('x')</script> & [/b] | pipe"
 
 

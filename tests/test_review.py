@@ -23,9 +23,10 @@ from faultwise.review import (group_findings, reopened_cases, review_folder, rev
 from review_case_factory import make_case, write_case
 
 KB = Path(__file__).parent / "fixtures" / "kb_review"
-PY = "/work/.venv/bin/python" if Path("/work/.venv/bin/python").exists() else sys.executable
+PY = sys.executable
 HUM, DEAD = "hum-loud", "dead-lights-on"
-FIRST, SECOND, COUPLING = "supply.first-cap-esr", "supply.second-cap-esr", "audio.coupling-cap-check"
+FIRST, SECOND = "supply.first-cap-esr", "supply.second-cap-esr"
+COUPLING = "audio.coupling-cap-check"
 SKIP_NODE = "supply.rectifier-out"
 
 

@@ -15,7 +15,8 @@ def register(subparsers) -> None:
         "their recorded bands, fault, repair, parts, readings after the repair, leakage check, "
         "time, outcome and the safety statement.")
     add_workspace_options(p)
-    p.add_argument("case", metavar="CASE", help="a case id in the cases folder, or a case file path")
+    p.add_argument("case", metavar="CASE",
+                   help="a case id in the cases folder, or a case file path")
     p.add_argument("--html", metavar="FILE", help="write a printable HTML report to FILE instead")
     p.set_defaults(func=run)
 

@@ -17,7 +17,8 @@ def register(subparsers) -> None:
         "varied, skipped checks, off-graph findings, faults never reached, cases back after a "
         "repair. Damaged case files are named and left unchanged.")
     add_workspace_options(p)
-    p.add_argument("--since", metavar="DATE", help="only cases closed on or after DATE (YYYY-MM-DD)")
+    p.add_argument("--since", metavar="DATE",
+                   help="only cases closed on or after DATE (YYYY-MM-DD)")
     p.add_argument("--json", action="store_true", help="print one JSON document")
     p.add_argument("--html", metavar="FILE", help="also write a printable HTML review to FILE")
     p.add_argument("--learn", action="store_true",

@@ -1,0 +1,151 @@
+"""The walk's side panels and sheets: guidance, why-this-check, the readings sheet, the
+template form, and the stage map's states (word and colour class)."""
+
+from __future__ import annotations
+
+from conftest import read_case
+from tui_helpers import acknowledge_cautions, answer, new_case, ready, type_text
+
+from faultwise.errors import InputError
+from faultwise.expect import expect
+from faultwise.profile import load_profile
+from faultwise.units import parse_reading
+
+
+async def test_guidance_toggles_and_apprentice_opens_it(make_app, cases_dir):
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot, apprentice=True)
+        assert read_case(cases_dir)["apprentice"] is True
+        await acknowledge_cautions(pilot)
+        guidance = app.screen.query_one("#guidance")
+        assert guidance.display                                 # open by default
+        text = str(app.screen.query_one("#guidance-text").render())
+        assert "series lamp" in text                            # the check's "how"
+        assert "one open heater" in text                        # and its "why"
+        assert app.focused.id == "answer"
+        await pilot.press("f1")                                 # works while typing
+        assert not guidance.display
+        await pilot.press("f1")
+        assert guidance.display
+
+
+async def test_guidance_closed_by_default_without_apprentice(make_app):
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot)
+        await acknowledge_cautions(pilot)
+        assert not app.screen.query_one("#guidance").display
+
+
+async def test_why_this_check_lists_suspects_by_p_over_c(make_app, knowledge_dir):
+    from faultwise.graph import load_knowledge
+    from faultwise.rank import rank_investigations
+
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot)
+        await acknowledge_cautions(pilot)
+        await pilot.press("1")
+        await pilot.pause()
+        await acknowledge_cautions(pilot)
+        await answer(pilot, "20")                   # low B+ -> the suspects list
+        await pilot.press("f2")
+        await pilot.pause()
+        assert app.screen.id == "explain"
+        table = app.screen.query_one("#explain-table")
+        # Same order and numbers as the ranking the walk uses (p/c, Heckerman et al. 1995).
+        ranked = rank_investigations(load_knowledge(knowledge_dir), "supply.low-b-suspects",
+                                     "hum-loud", "series-string")
+        assert [table.get_row(r.target)[2] for r in ranked] == [f"{r.p:.2f}" for r in ranked]
+        assert table.get_row(ranked[0].target)[0] == "▶"
+        assert ranked[0].ratio >= ranked[1].ratio
+        await pilot.press("escape")
+        assert app.screen.id == "walk"
+
+
+async def test_readings_sheet_groups_by_stage_and_shows_basis(make_app, knowledge_dir):
+    expected = expect(load_profile(knowledge_dir / "sets" / "demo-5-tube-table.yaml"))
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot)
+        await acknowledge_cautions(pilot)
+        await pilot.press("f6")
+        await pilot.pause()
+        assert app.screen.id == "readings"
+        table = app.screen.query_one("#readings-table")
+        stages = {e.stage for e in expected.values()}
+        assert table.row_count == len(expected) + len(stages)     # a heading row per stage
+        for name, exp in expected.items():
+            row = table.get_row(name)
+            assert row[4] == ("≈" if exp.typical else "")          # typical marked
+        # Move to the rectifier output and read its basis.
+        keys = [row_key.value for row_key in table.rows]
+        await pilot.press(*["down"] * (keys.index("supply.rectifier_out_v") - 1))
+        await pilot.pause()
+        basis = str(app.screen.query_one("#readings-basis").render())
+        assert expected["supply.rectifier_out_v"].basis[:40] in basis
+        await pilot.press("escape")
+        assert app.screen.id == "walk"
+        assert app.focused.id == "answer"
+
+
+async def test_template_form_checks_each_field_like_the_cli(make_app):
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await ready(pilot)
+        await pilot.press("n")
+        await ready(pilot)
+        await pilot.press("f2")
+        await pilot.pause()
+        assert app.screen.id == "template-form"
+        await pilot.press("1")                             # series-string
+        await pilot.pause()
+        assert app.focused.id == "tf-label"
+        await pilot.press("enter")                         # label left empty for now
+        await pilot.press("enter", "enter", "enter", "enter")
+        assert app.focused.id == "tf-mains-volts-v"
+        await type_text(pilot, "12 furlongs")
+        await pilot.pause()
+        with_parser = None
+        try:
+            parse_reading("12 furlongs", "V")
+        except InputError as exc:
+            with_parser = str(exc)
+        shown = str(app.screen.query_one("#tf-mains-volts-v-error").render())
+        assert with_parser and shown == with_parser          # same parser, same message
+        await pilot.press("f10")
+        assert app.screen.id == "template-form"              # refused
+        app.focused.value = ""
+        await type_text(pilot, "117 V")
+        await pilot.press("f10")
+        await pilot.pause()
+        # profile_from_dict refuses the missing label; the message sits under the label.
+        label_error = str(app.screen.query_one("#tf-label-error").render())
+        assert "label" in label_error
+        assert app.focused.id == "tf-label"
+        await type_text(pilot, "Bench model")
+        await pilot.press("f10")
+        await pilot.pause()
+        assert app.screen.id == "new-case"
+        assert app.screen.chosen_set.profile.mains_v == 117.0
+        assert "Bench model" in str(app.screen.query_one("#set-chosen").render())
+
+
+async def test_stage_map_marks_states_with_words(make_app):
+    from faultwise.tui.widgets.stage_map import StageMap
+
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot)
+        await acknowledge_cautions(pilot)
+        supply = app.screen.query_one("#stage-supply")
+        assert supply.has_class("-current")
+        await pilot.press("1")                              # heaters glow: normal
+        await pilot.pause()
+        await acknowledge_cautions(pilot)
+        assert "cleared" in str(supply.render()) and supply.has_class("-cleared")
+        await answer(pilot, "20")                           # low: suspect
+        assert "suspect" in str(supply.render()) and supply.has_class("-suspect")
+        assert "to test" in str(app.screen.query_one("#stage-if").render())
+        assert len(app.screen.query_one(StageMap).children) == 7
