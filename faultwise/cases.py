@@ -16,10 +16,10 @@ import os
 import re
 import secrets
 import socket
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass
-from datetime import datetime, timezone
+from datetime import UTC, datetime
 from pathlib import Path
-from typing import Callable, Mapping
 
 from faultwise.errors import CaseError, CaseLockedError, DamagedCaseError
 
@@ -225,7 +225,7 @@ def _now_text(clock: Callable[[], datetime]) -> str:
 
 
 def _utc_now() -> datetime:
-    return datetime.now(timezone.utc).astimezone()
+    return datetime.now(UTC).astimezone()
 
 
 def case_path(folder, case_id: str) -> Path:
@@ -242,14 +242,14 @@ def case_path(folder, case_id: str) -> Path:
 class OpenCase:
     """A case held by this bench: its data, saved atomically after every change."""
 
-    def __init__(self, store: "CaseStore", case_id: str, data: dict, lock) -> None:
+    def __init__(self, store: CaseStore, case_id: str, data: dict, lock) -> None:
         self.store = store
         self.id = case_id
         self.path = store.path_for(case_id)
         self.data = ordered(data)
         self._lock = lock
 
-    def __enter__(self) -> "OpenCase":
+    def __enter__(self) -> OpenCase:
         return self
 
     def __exit__(self, *exc) -> None:
@@ -382,7 +382,7 @@ class CaseStore:
         since = info.get("since")
         if not since:
             try:
-                since = datetime.fromtimestamp(lock_path.stat().st_mtime, timezone.utc) \
+                since = datetime.fromtimestamp(lock_path.stat().st_mtime, UTC) \
                     .astimezone().isoformat(timespec="seconds")
             except OSError:
                 since = "?"

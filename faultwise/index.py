@@ -1,9 +1,10 @@
 """SQLite index beside the cases: one compact summary per case file, keyed by its stat.
 
 ``<cases>/.faultwise-index.sqlite`` maps each ``*.json`` file name to (size, mtime in
-ns, inode) and the summary of :func:`faultwise.casesummary.summarise` (or the reason the file
-is damaged, from :func:`faultwise.cases.read_case_bytes`). A scan stats every file (``os.scandir``) and parses only those whose stat
-differs from the index, so a review of an unchanged folder reads the index alone.
+ns, inode) and the summary of :func:`faultwise.casesummary.summarise` (or the reason the
+file is damaged, from :func:`faultwise.cases.read_case_bytes`). A scan stats every file
+(``os.scandir``) and parses only those whose stat differs from the index, so a review of
+an unchanged folder reads the index alone.
 
 The index is a cache and is never trusted: a file that is not a database, a database of
 another shape, or another schema or summary version is removed and rebuilt; a row that does
@@ -122,6 +123,10 @@ class _Store:
             self.con = self._connect()
             return self._rows()
         except self.sqlite3.Error as exc:   # not a database, other schema, malformed
+            if _busy(exc):                  # another review is writing it: not damaged
+                self.note = f"index not used ({exc})"
+                self.close()
+                return {}
             self.note = f"index rebuilt ({exc})"
         except _Stale as exc:
             self.note = f"index rebuilt ({exc})"
@@ -194,6 +199,12 @@ class _Store:
             except self.sqlite3.Error:
                 pass
             self.con = None
+
+
+def _busy(exc: Exception) -> bool:
+    """Whether an SQLite error means "in use by another connection" rather than damage."""
+    name = getattr(exc, "sqlite_errorname", "") or ""
+    return name.startswith(("SQLITE_BUSY", "SQLITE_LOCKED")) or "locked" in str(exc)
 
 
 class _Stale(Exception):

@@ -13,8 +13,8 @@ cases) and the shop's closed cases add their counts ``n_f``: ``p_f = (alpha_f + 
 from __future__ import annotations
 
 import math
+from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
-from typing import Iterable, Mapping
 
 from faultwise.errors import KnowledgeError
 from faultwise.nodes import Check, Investigation, Suspects

@@ -14,9 +14,9 @@ old and new conclusions. Case files are only read; a damaged one is named and sk
 from __future__ import annotations
 
 from collections import deque
+from collections.abc import Iterable, Mapping
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Iterable, Mapping
 
 from faultwise.errors import DamagedCaseError, FaultwiseError
 from faultwise.nodes import MEASURE_OUTCOMES

@@ -18,12 +18,21 @@ No UI imports; nothing here prints.
 from __future__ import annotations
 
 import copy
+import math
+from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, field
-from datetime import datetime, timezone
-from typing import Callable, Iterable, Mapping
+from datetime import UTC, datetime
 
 from faultwise.errors import InputError, KnowledgeError, WalkError
-from faultwise.nodes import CLEARED, MEASURE_OUTCOMES, Caution, Check, Escalate, Fault, Suspects
+from faultwise.nodes import (
+    CLEARED,
+    MEASURE_OUTCOMES,
+    Caution,
+    Check,
+    Escalate,
+    Fault,
+    Suspects,
+)
 
 PHASES = ("diagnose", "repair", "verify", "closing", "done")
 OUTCOMES = ("repaired", "returned-unrepaired", "waiting-parts")
@@ -107,7 +116,7 @@ class WalkResult:
     steps: tuple[Step, ...]
     checks: int
     minutes: float
-    walk: "Walk"
+    walk: Walk
 
 
 # -------------------------------------------------------------------------- classifying
@@ -149,7 +158,7 @@ def band_of(expected) -> dict:
 
 
 def _utc_now() -> datetime:
-    return datetime.now(timezone.utc).astimezone()
+    return datetime.now(UTC).astimezone()
 
 
 # ------------------------------------------------------------------------------- state
@@ -184,7 +193,7 @@ class _State:
     before_close: str | None = None
     close: dict | None = None
 
-    def copy(self) -> "_State":
+    def copy(self) -> _State:
         return copy.deepcopy(self)
 
 
@@ -222,7 +231,7 @@ class Walk:
 
     @classmethod
     def from_events(cls, knowledge, profile, symptom: str, events: Iterable[Mapping],
-                    **kwargs) -> "Walk":
+                    **kwargs) -> Walk:
         """Rebuild a walk by replaying recorded events; WalkError names an event that does not fit."""
         walk = cls(knowledge, profile, symptom, **kwargs)
         recorded = [dict(e) for e in events]
@@ -413,7 +422,7 @@ class Walk:
             raise WalkError(f"'{check.id}' does not take a number", node=check.id,
                             hint="answer with one of its choices")
         value = float(value)
-        if value != value or value in (float("inf"), float("-inf")):
+        if not math.isfinite(value):
             raise InputError("the reading must be a finite number", node=check.id)
         raw = f"{value:g} {expected.unit}" if raw is None else raw
         return self._push(self._event("answer", node=check.id, expect=check.expect,
@@ -489,7 +498,7 @@ class Walk:
                 minutes = float(minutes)
             except (TypeError, ValueError):
                 raise InputError(f"minutes must be a number, not {minutes!r}", key="minutes") from None
-            if minutes < 0 or minutes != minutes:
+            if minutes < 0 or math.isnan(minutes):
                 raise InputError("minutes must be zero or more", key="minutes")
             minutes = int(minutes) if minutes == int(minutes) else minutes
         return self._push(self._event("close", outcome=outcome, minutes=minutes))

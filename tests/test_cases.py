@@ -17,19 +17,19 @@ import signal
 import subprocess
 import sys
 import time
-from datetime import datetime, timezone
+from datetime import UTC, datetime
 from pathlib import Path
 
+import helpers_walk_proc as H
 import pytest
 
-import helpers_walk_proc as H
 from faultwise.cases import CASE_KEYS, CaseStore, read_case_bytes
 from faultwise.errors import CaseError, CaseLockedError, DamagedCaseError
 from faultwise.walk import Walk
 
 PY = sys.executable
 HELPER = str(Path(__file__).parent / "helpers_walk_proc.py")
-CLOCK = lambda: datetime(2026, 12, 1, 9, 30, tzinfo=timezone.utc)  # noqa: E731
+CLOCK = lambda: datetime(2026, 12, 1, 9, 30, tzinfo=UTC)
 
 
 def sha(path: Path) -> str:
@@ -163,7 +163,7 @@ def test_stale_temp_files_removed_on_start(tmp_path):
     folder.mkdir()
     first = CaseStore(folder, "B1", clock=CLOCK)
     host = first.host
-    dead = subprocess.run([PY, "-c", "import os; print(os.getpid())"], capture_output=True,
+    dead = subprocess.run([PY, "-c", "import os; print(os.getpid())"], capture_output=True, check=True,
                           text=True).stdout.strip()
     ours_dead = folder / f".20261201-B1-001.{host}.{dead}.abc123.fwtmp"
     ours_live = folder / f".20261201-B1-002.{host}.{os.getpid()}.abc123.fwtmp"
@@ -332,7 +332,7 @@ def test_sigkill_at_random_points_leaves_a_case_that_reopens(store):
     for kind, text in H.SCRIPT:
         {"answer": ref.answer, "note": ref.note, "parts": lambda t: ref.record_parts([t]),
          "close": lambda t: ref.close(t, 30)}[kind](text)
-    strip = lambda evs: [{k: v for k, v in e.items() if k != "at"} for e in evs]  # noqa: E731
+    strip = lambda evs: [{k: v for k, v in e.items() if k != "at"} for e in evs]
     full = strip(ref.events)
     for _ in range(5):
         case = make_case(store)
@@ -348,7 +348,7 @@ def test_sigkill_at_random_points_leaves_a_case_that_reopens(store):
         walk = Walk.from_events(kb, H.series_profile(), "dead-lights-on", events,
                                 expectations=ex)
         assert len(walk.steps) == sum(1 for e in events if e["type"] == "answer")
-        finish = subprocess.run([PY, HELPER, str(store.folder), case.id, "1"],
+        finish = subprocess.run([PY, HELPER, str(store.folder), case.id, "1"], check=False,
                                 capture_output=True, text=True, timeout=60)
         assert finish.returncode == 0, finish.stderr
         data = store.read(case.id)

@@ -229,3 +229,73 @@ def test_summary_is_compact_json(folder):
         data = json.loads(text)
         assert data["symptom"] == "hum-loud"
         assert text == json.dumps(data, separators=(",", ":"))     # no indentation or spaces
+
+
+def test_benches_writing_while_reviews_run(folder):
+    # Benches replace case files atomically (temp file + rename) while two reviews scan:
+    # every scan sees each case old or new, never damaged, and no scan fails. Bounded:
+    # 60 rewrites, then the writer stops.
+    import threading
+
+    stop = threading.Event()
+    errors: list[BaseException] = []
+
+    def bench() -> None:
+        try:
+            for i in range(60):
+                case = _cases()[i % 5]
+                case["minutes"] = 100 + i
+                tmp = folder / f".{case['id']}.w.{i}.fwtmp"
+                tmp.write_text(json.dumps(case, indent=2))
+                os.replace(tmp, folder / f"{case['id']}.json")
+        except BaseException as exc:  # pragma: no cover - reported below
+            errors.append(exc)
+        finally:
+            stop.set()
+
+    def review(results: list) -> None:
+        try:
+            while not stop.is_set():
+                results.append(scan_cases(folder))
+            results.append(scan_cases(folder))
+        except BaseException as exc:  # pragma: no cover - reported below
+            errors.append(exc)
+
+    results_a: list = []
+    results_b: list = []
+    threads = [threading.Thread(target=bench), threading.Thread(target=review, args=(results_a,)),
+               threading.Thread(target=review, args=(results_b,))]
+    for t in threads:
+        t.start()
+    for t in threads:
+        t.join(timeout=60)
+    assert not errors
+    for scan in results_a + results_b:
+        assert scan.damaged == () and len(scan.summaries) == 5
+    final = scan_cases(folder)
+    _same_as_plain_scan(folder, final)
+    assert max(s["minutes"] for s in final.summaries) == 159
+
+
+def test_index_locked_by_another_review_is_not_rebuilt(folder, monkeypatch):
+    # Another review holds the write lock for longer than the wait: this scan parses the
+    # files itself and leaves the index alone (a busy index is not a damaged one).
+    scan_cases(folder)
+    monkeypatch.setattr(index_mod._Store, "_connect", lambda self: self._locked())
+
+    def locked(self):
+        con = sqlite3.connect(str(self.path), timeout=0.05, isolation_level=None)
+        con.execute("PRAGMA journal_mode=DELETE")
+        return con
+
+    monkeypatch.setattr(index_mod._Store, "_locked", locked, raising=False)
+    holder = sqlite3.connect(folder / INDEX_NAME, isolation_level=None)
+    holder.execute("BEGIN EXCLUSIVE")
+    try:
+        scan = scan_cases(folder)
+    finally:
+        holder.execute("ROLLBACK")
+        holder.close()
+    assert not scan.rebuilt and "not used" in scan.index_note
+    _same_as_plain_scan(folder, scan)
+    assert scan_cases(folder).parsed == 0           # the index is still there and current

@@ -128,7 +128,14 @@ def _tie_knowledge(order):
     from types import MappingProxyType as M
 
     from faultwise.graph import Knowledge
-    from faultwise.nodes import Check, Fault, Investigation, Signature, Suspects, Symptom
+    from faultwise.nodes import (
+        Check,
+        Fault,
+        Investigation,
+        Signature,
+        Suspects,
+        Symptom,
+    )
 
     fams = ("series-string",)
     nodes = {"supply.list": Suspects("supply.list", "List", "supply", fams,

@@ -9,19 +9,19 @@ from __future__ import annotations
 
 import hashlib
 import shutil
-from datetime import datetime, timezone
+from datetime import UTC, datetime
 from pathlib import Path
 
+import helpers_walk_proc as H
 import pytest
 
-import helpers_walk_proc as H
 from faultwise.cases import CaseStore
 from faultwise.expect import expect
 from faultwise.graph import load_knowledge
 from faultwise.replay import case_files, replay_case, replay_files
 from faultwise.walk import Walk
 
-CLOCK = lambda: datetime(2026, 12, 1, 9, 30, tzinfo=timezone.utc)  # noqa: E731
+CLOCK = lambda: datetime(2026, 12, 1, 9, 30, tzinfo=UTC)
 
 # name -> actions; each action is (method, argument)
 CASES = {

@@ -257,6 +257,17 @@ def test_text_output_fits_100_columns(folder):
     assert any("saves 1.1 min per job" in line for line in lines)   # 16/14 = 1.14
 
 
+def test_html_option_writes_the_page(folder, tmp_path):
+    page = tmp_path / "review.html"
+    proc = subprocess.run([PY, "-m", "faultwise", "review", "--cases", str(folder),
+                           "--knowledge", str(KB), "--json", "--html", str(page)],
+                          capture_output=True, text=True, timeout=120)
+    assert proc.returncode == 0, proc.stderr
+    json.loads(proc.stdout)                                   # stdout stays one document
+    text = page.read_text()
+    assert text.startswith("<!DOCTYPE html>") and "<svg" in text
+
+
 def test_bad_since_is_one_sentence_exit_1(folder):
     proc = subprocess.run([PY, "-m", "faultwise", "review", "--cases", str(folder),
                            "--knowledge", str(KB), "--since", "yesterday"],

@@ -79,6 +79,18 @@ async def test_review_screen_shows_the_review(workspace):
         assert not isinstance(app.screen, ReviewScreen)
 
 
+async def test_review_screen_takes_the_bench_context(workspace):
+    # The start screen pushes ReviewScreen(bench): the context with .workspace.
+    from faultwise.tui.context import Bench
+
+    app = _Host(Bench(workspace=workspace))
+    async with app.run_test(size=(110, 50)) as pilot:
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        assert app.screen.query_one("#review-pairs", DataTable).row_count == 2
+
+
 async def test_review_screen_reports_a_bad_knowledge_folder(tmp_path):
     (tmp_path / "kb").mkdir()
     ws = Workspace(knowledge_dir=tmp_path / "kb", cases_dir=tmp_path, bench="B1")

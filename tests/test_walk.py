@@ -9,14 +9,20 @@ before it goes back (ANSI C39.5 network, REFERENCES.md); a transistor portable d
 from __future__ import annotations
 
 import json
+from datetime import UTC, datetime, timedelta
 from itertools import count
-from datetime import datetime, timedelta, timezone
-
-import pytest
 
 import helpers_walk_proc as H
+import pytest
+
 from faultwise.errors import InputError, WalkError
-from faultwise.walk import (Walk, auto_walk, classify, representative_value, resolve_choice)
+from faultwise.walk import (
+    Walk,
+    auto_walk,
+    classify,
+    representative_value,
+    resolve_choice,
+)
 
 
 @pytest.fixture(scope="module")
@@ -31,7 +37,7 @@ def ex():
 
 def fixed_clock():
     ticks = count()
-    start = datetime(2026, 12, 1, 9, 30, tzinfo=timezone.utc)
+    start = datetime(2026, 12, 1, 9, 30, tzinfo=UTC)
     return lambda: start + timedelta(seconds=next(ticks))
 
 
@@ -372,7 +378,7 @@ def _full_case(w):
 
 
 def test_determinism_same_answers_same_events(kb, ex):
-    a, b = new_walk(kb, ex), new_walk(kb, ex, clock=lambda: datetime(2030, 1, 1, tzinfo=timezone.utc))
+    a, b = new_walk(kb, ex), new_walk(kb, ex, clock=lambda: datetime(2030, 1, 1, tzinfo=UTC))
     _full_case(a)
     _full_case(b)
     strip = lambda evs: [{k: v for k, v in e.items() if k != "at"} for e in evs]
@@ -430,7 +436,8 @@ def test_auto_walk_defaults_and_given_answers(kb, ex):
 
 # ---------------------------------------------------------------- properties (hypothesis)
 
-from hypothesis import given, settings, strategies as st  # noqa: E402
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 
 @settings(max_examples=60, deadline=None)

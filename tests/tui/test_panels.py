@@ -127,6 +127,13 @@ async def test_template_form_checks_each_field_like_the_cli(make_app):
         await type_text(pilot, "Bench model")
         await pilot.press("f10")
         await pilot.pause()
+        # Next refusal: a series-string set needs its tube lineup.
+        assert app.focused.id == "tf-tubes"
+        assert "tube" in str(app.screen.query_one("#tf-tubes-error").render())
+        await type_text(pilot, "converter=12BE6,if=12BA6,detector=12AV6,output=50C5,"
+                               "rectifier=35W4")
+        await pilot.press("f10")
+        await pilot.pause()
         assert app.screen.id == "new-case"
         assert app.screen.chosen_set.profile.mains_v == 117.0
         assert "Bench model" in str(app.screen.query_one("#set-chosen").render())

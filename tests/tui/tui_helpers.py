@@ -53,3 +53,28 @@ async def acknowledge_cautions(pilot: Pilot) -> int:
         await pilot.press("enter")
         await pilot.pause()
     return shown
+
+
+def make_cases(workspace) -> None:
+    """Case files for the start screen: 001 closed (waiting-parts), 002 open, one damaged."""
+    from conftest import fixed_clock
+
+    from faultwise.cases import CaseStore
+    from faultwise.graph import load_knowledge
+    from faultwise.profile import load_profile
+    from faultwise.walk import Walk
+
+    knowledge = load_knowledge(workspace.knowledge_dir)
+    profile = load_profile(workspace.sets_dir / "demo-5-tube-table.yaml")
+    store = CaseStore(workspace.cases_dir, workspace.bench, fixed_clock)
+    for complaint, customer, close in (("hums badly", "ticket 4410", True),
+                                       ("loud hum", "ticket 4411", False)):
+        walk = Walk(knowledge, profile, "hum-loud", clock=fixed_clock)
+        with store.new_case(profile, "demo-5-tube-table.yaml", complaint, "hum-loud",
+                            customer=customer, knowledge_version=knowledge.version) as case:
+            walk.acknowledge("live-chassis")
+            walk.answer("1")
+            if close:
+                walk.close("waiting-parts", 30)
+            case.record(walk)
+    (workspace.cases_dir / "20261130-B1-007.json").write_text('{"format": "faultwise-ca')

@@ -39,7 +39,7 @@ class StartScreen(Screen):
 
     BINDINGS = [
         Binding("n", "new_case", "New case"),
-        Binding("enter", "open_selected", "Open", show=True),
+        Binding("enter", "open_selected", "Open", priority=True),
         Binding("v", "view_selected", "View"),
         Binding("r", "review", "Review"),
         Binding("f9", "safety", "Safety"),
@@ -58,14 +58,17 @@ class StartScreen(Screen):
             yield Static(f"[b]Safety[/b]  {SAFETY_SHORT}  [dim](F9: the full notice)[/dim]",
                          id="safety-strip")
             yield Static("Reading the cases folder...", id="cases-caption", markup=False)
-            table = DataTable(id="cases", cursor_type="row", zebra_stripes=True)
-            table.add_columns("Case", "State", "Set", "Symptom", "Updated")
-            yield table
+            yield DataTable(id="cases", cursor_type="row", zebra_stripes=True)
             yield Static("", id="case-detail", markup=False)
         yield Footer()
 
     def on_mount(self) -> None:
-        self.query_one(DataTable).focus()
+        table = self.query_one(DataTable)
+        table.add_column("Case", key="case", width=15)
+        table.add_column("State", key="state", width=20)
+        table.add_column("Set", key="set", width=24)
+        table.add_column("Symptom", key="symptom")
+        table.focus()
         self.call_after_refresh(self.refresh_cases)
 
     # listing --------------------------------------------------------------------------
@@ -94,12 +97,12 @@ class StartScreen(Screen):
         closed = sorted(listing.closed, key=lambda s: s.updated or "", reverse=True)
         for s in sorted(listing.open, key=lambda s: s.updated or "", reverse=True):
             state = "open" if s.locked_by is None else f"open (in use at {s.locked_by.bench})"
-            self._add(table, "open", s, (s.id, state, s.set_label, s.symptom, _when(s.updated)))
+            self._add(table, "open", s, (s.id, state, s.set_label, s.symptom))
         for d in listing.damaged:
-            self._add(table, "damaged", d, (d.path.name, "DAMAGED", d.reason, "", ""))
+            self._add(table, "damaged", d, (d.path.stem, "DAMAGED", d.reason, ""))
         for s in closed[:RECENT_CLOSED]:
             state = f"closed: {s.outcome or '-'}"
-            self._add(table, "closed", s, (s.id, state, s.set_label, s.symptom, _when(s.updated)))
+            self._add(table, "closed", s, (s.id, state, s.set_label, s.symptom))
         n_open, n_closed, n_bad = len(listing.open), len(listing.closed), len(listing.damaged)
         caption = (f"Bench {self.bench.workspace.bench}: {n_open} open, {n_closed} closed"
                    + (f", {n_bad} damaged" if n_bad else "")
@@ -147,10 +150,13 @@ class StartScreen(Screen):
                           "cannot be opened for writing.")
         elif kind == "open":
             who = f" Customer: {item.customer}." if item.customer else ""
-            detail.update(f"Open since {_when(item.opened)}.{who} Enter resumes the walk.")
+            detail.update(f"{item.set_label}. Open since {_when(item.opened)}, last step "
+                          f"{_when(item.updated)}.{who} Enter resumes the walk.")
         else:
             fault = item.fault_title or item.fault or "no conclusion"
-            detail.update(f"{fault}; {item.minutes or 0} min. Enter shows the case read-only.")
+            minutes = f"{item.minutes:g}" if item.minutes is not None else "-"
+            detail.update(f"{item.set_label}. Closed {_when(item.updated)}: {fault}; {minutes} "
+                          "min. Enter shows the case read-only.")
 
     # actions --------------------------------------------------------------------------
 
