@@ -31,8 +31,9 @@ CASE_KEYS = ("format", "id", "bench", "status", "opened", "updated", "closed", "
              "minutes", "reopened_from")
 EVENT_KEYS = ("n", "at", "type", "phase", "node", "expect", "band", "raw", "value", "outcome")
 TEMP_SUFFIX = ".fwtmp"
-_ID_RE = re.compile(r"^[A-Za-z0-9_-]+$")
-_BENCH_RE = re.compile(r"^[A-Za-z0-9_-]+$")
+# \Z, not "$" (which lets a final newline through); lengths keep names under NAME_MAX.
+_ID_RE = re.compile(r"^[A-Za-z0-9_-]{1,120}\Z")
+_BENCH_RE = re.compile(r"^[A-Za-z0-9_-]{1,40}\Z")
 _TEMP_RE = re.compile(r"^\.(?P<id>[A-Za-z0-9_-]+)\.(?P<host>[A-Za-z0-9_-]*)\.(?P<pid>\d+)\."
                       r"[0-9a-f]+" + re.escape(TEMP_SUFFIX) + "$")
 
@@ -132,7 +133,7 @@ def read_case_bytes(raw: bytes, file="case") -> dict:
         if _ends_early(text, exc):
             raise _damage(file, "truncated") from None
         raise _damage(file, "not JSON") from None
-    except RecursionError:
+    except (RecursionError, ValueError):   # too deep, or an int past CPython's digit limit
         raise _damage(file, "not JSON") from None
     if not isinstance(data, dict):
         raise _damage(file, "not a mapping")
@@ -232,7 +233,7 @@ def case_path(folder, case_id: str) -> Path:
     """``<folder>/<id>.json``; CaseError unless the id is letters, digits, '-' and '_'."""
     if not isinstance(case_id, str) or not _ID_RE.match(case_id):
         raise CaseError(f"'{case_id}' is not a case id", key="case",
-                        hint="a case id holds only letters, digits, '-' and '_', "
+                        hint="a case id holds only letters, digits, '-' and '_' (120 at most), "
                              "such as 20261201-B1-001")
     return Path(folder) / f"{case_id}.json"
 
@@ -331,7 +332,7 @@ class CaseStore:
         bench = str(bench)
         if not _BENCH_RE.match(bench):
             raise CaseError(f"the bench name '{bench}' may hold only letters, digits, '-' and '_'",
-                            key="bench", hint="use a short name such as B1")
+                            key="bench", hint="use a short name such as B1 (40 characters at most)")
         self.bench = bench
         self.clock = clock or _utc_now
         self.host = _safe_host()
@@ -434,6 +435,9 @@ class CaseStore:
     def read(self, case_id_or_path) -> dict:
         """Read a case without locking it; DamagedCaseError names the file and the reason."""
         path = self._resolve(case_id_or_path)
+        if path.exists() and not path.is_file():
+            raise CaseError(f"{path.name} is not a case file (not a regular file)",
+                            file=str(path), hint="move it out of the cases folder")
         try:
             raw = path.read_bytes()
         except FileNotFoundError:
@@ -455,8 +459,8 @@ class CaseStore:
         if not self.folder.is_dir():
             return Listing((), (), ())
         for path in sorted(self.folder.glob("*.json")):
-            if path.name.startswith("."):
-                continue
+            if path.name.startswith(".") or not path.is_file():
+                continue          # a folder or FIFO named like a case (reading a FIFO blocks)
             try:
                 data = read_case_bytes(path.read_bytes(), path)
             except DamagedCaseError as exc:

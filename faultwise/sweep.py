@@ -190,7 +190,9 @@ def entropy_bits(probabilities: Iterable[float]) -> float:
     total = sum(ps)
     if total <= 0:
         return 0.0
-    return -sum((p / total) * math.log2(p / total) for p in ps if p > 0)
+    qs = [p / total for p in ps]
+    h = -sum(q * math.log2(q) for q in qs if q > 0)
+    return h if h > 0 else 0.0           # one certain fault: 0 bits, not -0.0
 
 
 def renormalised(weights: Mapping[str, float], keep: Iterable[str]) -> dict[str, float]:

@@ -832,7 +832,7 @@ def walk_from_case(knowledge, data: Mapping, **kwargs) -> Walk:
 def auto_answer(walk: Walk, readings: Mapping | None = None,
                 observations: Mapping | None = None) -> dict:
     """Answer the asked check the way ``walk --answers`` does; returns the event."""
-    from faultwise.units import parse_reading
+    from faultwise.units import format_reading, parse_reading
 
     readings = readings or {}
     observations = observations or {}
@@ -843,8 +843,9 @@ def auto_answer(walk: Walk, readings: Mapping | None = None,
             word = spec if isinstance(spec, str) and spec in MEASURE_OUTCOMES else "normal"
             return walk.answer(word)
         if spec is None:
-            return walk.answer_value(representative_value(expected, "normal"),
-                                     raw=f"{expected.nominal:g} {expected.unit} (nominal)")
+            value = representative_value(expected, "normal")
+            return walk.answer_value(value, raw=f"{format_reading(value, expected.unit, 4)} "
+                                                "(nominal)")
         if isinstance(spec, bool):
             raise InputError(f"the reading for '{check.expect}' must be a number",
                              key=check.expect)
@@ -852,7 +853,8 @@ def auto_answer(walk: Walk, readings: Mapping | None = None,
             return walk.answer_value(float(spec), raw=f"{spec:g} {expected.unit}")
         if isinstance(spec, str) and spec.strip() in MEASURE_OUTCOMES:
             value = representative_value(expected, spec.strip())
-            return walk.answer_value(value, raw=f"{value:g} {expected.unit} ({spec.strip()})")
+            return walk.answer_value(value, raw=f"{format_reading(value, expected.unit, 4)} "
+                                                f"({spec.strip()})")
         try:
             value = parse_reading(str(spec), expected.unit)
         except InputError as exc:

@@ -10,7 +10,6 @@ import json
 import subprocess
 import sys
 
-import faultwise
 
 UI_PACKAGES = ("textual", "rich")
 NOT_DOMAIN = ("faultwise.tui", "faultwise.commands", "faultwise.cli", "faultwise.__main__")

@@ -115,3 +115,25 @@ def test_replay_bad_case_ids(tmp_path, bad):
     (tmp_path / "cases").mkdir()
     out = fw("replay", bad, "--cases", str(tmp_path / "cases"), "--knowledge", KB)
     assert out.returncode == 1 and "Traceback" not in out.stderr, out.stderr
+
+
+def test_walk_shipped_knowledge_end_to_end(tmp_path):
+    """The demo set and the bundled knowledge: a fault's own signature, written as an
+    answers file, walks to that fault (whatever the shipped content holds)."""
+    import yaml
+
+    from faultwise.graph import load_knowledge
+    from faultwise.workspace import bundled_knowledge_dir
+
+    kb = load_knowledge(bundled_knowledge_dir())
+    faults = sorted(kb.faults_for("dead-lights-on", "series-string"))
+    assert faults
+    fault = kb.node(faults[0])
+    a = tmp_path / "answers.yaml"
+    a.write_text(yaml.safe_dump({"readings": dict(fault.signature.readings),
+                                 "observations": dict(fault.signature.observations)}))
+    out = fw("walk", str(ROOT / "knowledge" / "sets" / "demo-5-tube-table.yaml"),
+             "--symptom", "dead-lights-on", "--answers", str(a), "--json")
+    assert out.returncode == 0, out.stderr
+    doc = json.loads(out.stdout)
+    assert doc["conclusion"] == fault.id and doc["checks"] == len(doc["steps"]) > 0

@@ -48,7 +48,7 @@ class FaultwiseApp(App[None]):
     CSS_PATH = "app.tcss"
     TITLE = "faultwise"
     SUB_TITLE = "bench"
-    BINDINGS = [Binding("ctrl+q", "quit", "Quit", priority=True, show=True)]
+    BINDINGS = [Binding("ctrl+q", "quit", "Quit", priority=True, show=False)]
 
     def __init__(self, bench: Bench) -> None:
         super().__init__()
@@ -124,6 +124,14 @@ class FaultwiseApp(App[None]):
             return
         self._waiting.append(callback)
         self.notify("Loading the knowledge...", timeout=2)
+
+    async def action_quit(self) -> None:
+        """Release any case held on screen, then leave."""
+        for screen in self.screen_stack:
+            case = getattr(screen, "case", None)
+            if case is not None:
+                case.close()
+        self.exit()
 
     # command palette ----------------------------------------------------------------
 

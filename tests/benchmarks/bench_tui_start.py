@@ -3,9 +3,9 @@
 Each app runs N times as a fresh subprocess (headless, so no terminal is needed); on its
 first paint an auto-pilot prints the wall-clock time and calls ``app.exit()``. The time
 measured runs from starting the interpreter to that print, so work done after the first
-paint (the knowledge loading in a worker) is not counted, as the target intends. The bare app shows a
-header, a label and a footer. Prints the medians and the ratio; the target is at most 1.5x
-(aim 1.2x). Run: python tests/benchmarks/bench_tui_start.py [N]
+paint (the knowledge loading in a worker) is not counted, as the target intends. The bare
+app shows a header, a label and a footer. Prints the medians and the ratio; the target is
+at most 1.5x (aim 1.2x). Run: python tests/benchmarks/bench_tui_start.py [N]
 """
 
 from __future__ import annotations

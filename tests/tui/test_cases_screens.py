@@ -7,7 +7,7 @@ import os
 from pathlib import Path
 
 from conftest import FIXED_NOW, fixed_clock, read_case
-from tui_helpers import CASE_ID, acknowledge_cautions, answer, new_case, ready
+from tui_helpers import acknowledge_cautions, answer, new_case, ready
 
 
 def open_case_on_disk(workspace, *answers: str) -> str:

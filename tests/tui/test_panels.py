@@ -124,19 +124,20 @@ async def test_template_form_checks_each_field_like_the_cli(make_app):
         label_error = str(app.screen.query_one("#tf-label-error").render())
         assert "label" in label_error
         assert app.focused.id == "tf-label"
-        await type_text(pilot, "Bench model")
+        await type_text(pilot, "Bench")
         await pilot.press("f10")
         await pilot.pause()
         # Next refusal: a series-string set needs its tube lineup.
         assert app.focused.id == "tf-tubes"
         assert "tube" in str(app.screen.query_one("#tf-tubes-error").render())
-        await type_text(pilot, "converter=12BE6,if=12BA6,detector=12AV6,output=50C5,"
-                               "rectifier=35W4")
+        # A long lineup is pasted rather than typed key by key.
+        app.focused.insert_text_at_cursor("converter=12BE6, if=12BA6, detector=12AV6, "
+                                          "output=50C5, rectifier=35W4")
         await pilot.press("f10")
         await pilot.pause()
         assert app.screen.id == "new-case"
         assert app.screen.chosen_set.profile.mains_v == 117.0
-        assert "Bench model" in str(app.screen.query_one("#set-chosen").render())
+        assert "Bench" in str(app.screen.query_one("#set-chosen").render())
 
 
 async def test_stage_map_marks_states_with_words(make_app):
@@ -156,3 +157,44 @@ async def test_stage_map_marks_states_with_words(make_app):
         assert "suspect" in str(supply.render()) and supply.has_class("-suspect")
         assert "to test" in str(app.screen.query_one("#stage-if").render())
         assert len(app.screen.query_one(StageMap).children) == 7
+
+
+async def test_bindings_follow_the_phase(make_app):
+    """check_action hides what does not apply: no skip/why at the conclusion, no 'not cured'
+    during the diagnosis; the palette offers the rare 'return unrepaired'."""
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot)
+        await acknowledge_cautions(pilot)
+        keys = app.screen.active_bindings
+        assert {"f1", "f2", "f3", "f4", "f5", "f6", "escape"} <= set(keys)
+        assert "f8" not in keys
+        assert "ctrl+z" not in keys                       # nothing to undo yet
+        titles = [c.title for c in app.get_system_commands(app.screen)]
+        assert "Return the set unrepaired" in titles and "Safety notice" in titles
+        await pilot.press("1")
+        await pilot.pause()
+        await acknowledge_cautions(pilot)
+        assert "ctrl+z" in app.screen.active_bindings
+        await pilot.press("f5")
+        await type_text(pilot, "burnt")
+        await pilot.press("enter")
+        await pilot.pause()
+        assert app.screen.id == "conclusion"
+        keys = app.screen.active_bindings
+        assert "f4" not in keys and "f2" not in keys and "f5" not in keys
+        assert "f8" not in keys                     # an off-graph finding has no suspect to clear
+        assert {"f3", "f6", "f9", "ctrl+z", "escape"} <= set(keys)
+
+
+async def test_review_key_opens_the_shop_review(make_app):
+    from faultwise.tui.app import review_available
+
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await ready(pilot)
+        assert ("r" in app.screen.active_bindings) == review_available()
+        if review_available():
+            await pilot.press("r")
+            await pilot.pause()
+            assert app.screen.id == "review"

@@ -19,8 +19,8 @@ async def ready(pilot: Pilot) -> None:
     await pilot.pause()
 
 
-async def new_case(pilot: Pilot, *, search: str = "5 tube", complaint: str = "hums loudly",
-                   customer: str = "ticket 4411", apprentice: bool = False) -> None:
+async def new_case(pilot: Pilot, *, search: str = "5 tube", complaint: str = "hums",
+                   customer: str = "T1", apprentice: bool = False) -> None:
     """From the start screen: n, search the library, complaint, symptom, customer, start."""
     await ready(pilot)
     await pilot.press("n")

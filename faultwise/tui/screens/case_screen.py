@@ -15,6 +15,12 @@ from textual.screen import Screen
 from faultwise.tui.context import Bench
 
 
+def internal_error(exc: BaseException) -> str:
+    """The sentence shown for an unexpected exception (never a traceback)."""
+    return (f"Internal error ({type(exc).__name__}: {exc}). Nothing saved was lost; the step "
+            "was not recorded. Please report it.")
+
+
 def open_walk(bench: Bench, case_id: str):
     """(OpenCase, Walk) for an open case: takes the lock and replays its events.
 
@@ -61,6 +67,8 @@ class CaseScreen(Screen):
             return str(exc)
         except OSError as exc:   # the store maps these; kept as a last guard
             return f"the case could not be saved ({exc.strerror or exc})."
+        except Exception as exc:
+            return internal_error(exc)
         return None
 
     def commit(self, then: Callable[[], None]) -> None:
@@ -92,8 +100,25 @@ class CaseScreen(Screen):
         except FaultwiseError as exc:
             self.notify(str(exc), severity="error", markup=False, timeout=6)
             return False
+        except Exception as exc:  # never a traceback on the bench screen
+            self.notify(internal_error(exc), severity="error", markup=False, timeout=10)
+            return False
         self.commit(then or self.show_prompt)
         return True
+
+    def answer_text(self, text: str, panel) -> None:
+        """Give typed text to the walk; a refusal goes under the field, nothing recorded."""
+        from faultwise.errors import FaultwiseError
+
+        try:
+            self.walk.answer(text)
+        except FaultwiseError as exc:
+            panel.show_error(str(exc))
+            return
+        except Exception as exc:
+            panel.show_error(internal_error(exc))
+            return
+        self.commit(self.show_prompt)
 
     # ------------------------------------------------------------------ prompts
 

@@ -156,14 +156,7 @@ class ConclusionScreen(CaseScreen):
 
     @on(CheckPanel.Answered)
     def answered(self, event: CheckPanel.Answered) -> None:
-        from faultwise.errors import FaultwiseError
-
-        try:
-            self.walk.answer(event.text)
-        except FaultwiseError as exc:
-            self.query_one(CheckPanel).show_error(str(exc))
-            return
-        self.commit(self.show_prompt)
+        self.answer_text(event.text, self.query_one(CheckPanel))
 
     @on(Input.Changed, "#close-outcome")
     def outcome_changed(self, event: Input.Changed) -> None:

@@ -127,7 +127,13 @@ class NewCaseScreen(Screen):
 
     @work(thread=True, exit_on_error=False, group="library")
     def _load_library(self) -> None:
-        library = read_library(self.bench)
+        try:
+            library = read_library(self.bench)
+        except Exception as exc:  # an unreadable folder: say so, the template still works
+            self.app.call_from_thread(self.query_one("#set-chosen", Static).update,
+                                      Content(f"The set library cannot be read ({exc}); "
+                                              "press F2 to fill a family template."))
+            return
         self.app.call_from_thread(self._library_ready, library)
 
     def _library_ready(self, library: list[LibrarySet]) -> None:
@@ -302,6 +308,11 @@ class NewCaseScreen(Screen):
                 knowledge_version=knowledge.version)
         except FaultwiseError as exc:
             self._error(str(exc))
+            return
+        except Exception as exc:  # never a traceback on the bench screen
+            from faultwise.tui.screens.case_screen import internal_error
+
+            self._error(internal_error(exc))
             return
         from faultwise.tui.screens.walk import WalkScreen
 

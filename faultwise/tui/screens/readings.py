@@ -10,18 +10,24 @@ from textual.widgets import DataTable, Footer, Header, Static
 
 from faultwise.tui.widgets.check_panel import reading_text
 
+NUMBER_WIDTH = 9
 STAGE_ORDER = ("supply", "audio", "detector", "if", "oscillator", "antenna")
 STAGE_TITLES = {"supply": "Supply", "audio": "Audio", "detector": "Detector", "if": "IF",
                 "oscillator": "Oscillator and mixer", "antenna": "Antenna and tuning"}
 
 
 def grouped(expectations: dict) -> list[tuple[str, list]]:
-    """[(stage, [Expected, ...]), ...] in signal-chain order, names sorted within a stage."""
+    """[(stage, [Expected, ...]), ...] by stage, in the order expect() gives within one."""
     by_stage: dict[str, list] = {}
     for exp in expectations.values():
         by_stage.setdefault(exp.stage, []).append(exp)
     order = list(STAGE_ORDER) + sorted(s for s in by_stage if s not in STAGE_ORDER)
-    return [(s, sorted(by_stage[s], key=lambda e: e.name)) for s in order if s in by_stage]
+    return [(s, by_stage[s]) for s in order if s in by_stage]
+
+
+def clip(text: str, width: int) -> str:
+    """``text`` cut to ``width`` cells with an ellipsis."""
+    return text if len(text) <= width else text[: max(1, width - 1)] + "…"
 
 
 class ReadingsScreen(Screen):
@@ -36,9 +42,8 @@ class ReadingsScreen(Screen):
 
     def compose(self) -> ComposeResult:
         yield Header()
-        yield Static(Content.from_markup("[b]Readings sheet[/b]  $label   [dim]≈ rests on "
-                                         "typical values[/dim]", label=self.label),
-                     id="readings-caption")
+        yield Static(Content.from_markup("[b]Readings sheet[/b]  $label  [dim](≈ typical)[/dim]",
+                                         label=self.label), id="readings-caption")
         yield DataTable(id="readings-table", cursor_type="row", zebra_stripes=True)
         yield Static("", id="readings-basis")
         yield Footer()
@@ -47,16 +52,18 @@ class ReadingsScreen(Screen):
         from rich.text import Text
 
         table = self.query_one(DataTable)
-        table.add_column("Reading", key="title")
-        table.add_column("Low", key="low")
-        table.add_column("Nominal", key="nominal")
-        table.add_column("High", key="high")
+        title_width = max(20, self.app.size.width - 3 * (NUMBER_WIDTH + 2) - 6)
+        table.add_column("Reading", key="title", width=title_width)
+        table.add_column("Low", key="low", width=NUMBER_WIDTH)
+        table.add_column("Nominal", key="nominal", width=NUMBER_WIDTH)
+        table.add_column("High", key="high", width=NUMBER_WIDTH)
         table.add_column("", key="typical", width=1)
         for stage, items in grouped(self.expectations):
             table.add_row(Text(STAGE_TITLES.get(stage, stage).upper(), style="bold"), "", "",
                           "", "", key=f"stage:{stage}")
             for e in items:
-                table.add_row(Text("  " + (e.title or e.name)), reading_text(e.low, e.unit),
+                title = clip("  " + (e.title or e.name), title_width)
+                table.add_row(Text(title), reading_text(e.low, e.unit),
                               reading_text(e.nominal, e.unit), reading_text(e.high, e.unit),
                               "≈" if e.typical else "", key=e.name)
         table.focus()
@@ -75,7 +82,8 @@ class ReadingsScreen(Screen):
             return
         typical = ("\n≈ rests on typical values the profile did not give"
                    if exp.typical else "")
-        box.update(Content.from_markup("[b]$name[/b]  ($unit)\n$basis$typical", name=exp.name,
+        box.update(Content.from_markup("[b]$title[/b]  [dim]$name ($unit)[/dim]\n$basis$typical",
+                                       title=exp.title or exp.name, name=exp.name,
                                        unit=exp.unit or "-", basis=exp.basis or "-",
                                        typical=typical))
 

@@ -44,6 +44,7 @@ class StartScreen(Screen):
         Binding("r", "review", "Review"),
         Binding("f9", "safety", "Safety"),
         Binding("f5", "refresh", "Refresh"),
+        Binding("ctrl+q", "app.quit", "Quit"),
     ]
 
     def __init__(self, bench: Bench) -> None:

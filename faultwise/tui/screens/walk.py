@@ -134,15 +134,7 @@ class WalkScreen(CaseScreen):
 
     @on(CheckPanel.Answered)
     def answered(self, event: CheckPanel.Answered) -> None:
-        from faultwise.errors import FaultwiseError
-
-        panel = self.query_one(CheckPanel)
-        try:
-            self.walk.answer(event.text)
-        except FaultwiseError as exc:
-            panel.show_error(str(exc))      # nothing was recorded
-            return
-        self.commit(self.show_prompt)
+        self.answer_text(event.text, self.query_one(CheckPanel))
 
     # ------------------------------------------------------------------ actions
 
