@@ -48,7 +48,10 @@ class FaultwiseApp(App[None]):
     CSS_PATH = "app.tcss"
     TITLE = "faultwise"
     SUB_TITLE = "bench"
-    BINDINGS = [Binding("ctrl+q", "quit", "Quit", priority=True, show=False)]
+    BINDINGS = [
+        Binding("ctrl+q", "quit", "Quit", priority=True, show=False),
+        Binding("f12", "bench_help", "Help", show=False),
+    ]
 
     def __init__(self, bench: Bench) -> None:
         super().__init__()
@@ -125,6 +128,11 @@ class FaultwiseApp(App[None]):
         self._waiting.append(callback)
         self.notify("Loading the knowledge...", timeout=2)
 
+    def action_bench_help(self) -> None:
+        from faultwise.tui.screens.help import HelpScreen
+
+        self.push_screen(HelpScreen())
+
     async def action_quit(self) -> None:
         """Release any case held on screen, then leave."""
         for screen in self.screen_stack:
@@ -139,6 +147,8 @@ class FaultwiseApp(App[None]):
         yield from super().get_system_commands(screen)
         yield SystemCommand("Safety notice", "Show the safety notice again",
                             lambda: self.show_safety(first_run=False))
+        yield SystemCommand("Bench help", "Keys and flow of the bench program",
+                            self.action_bench_help)
         yield from getattr(screen, "palette_commands", lambda: ())()
 
 

@@ -30,14 +30,6 @@ async def test_guidance_toggles_and_apprentice_opens_it(make_app, cases_dir):
         assert guidance.display
 
 
-async def test_guidance_closed_by_default_without_apprentice(make_app):
-    app = make_app()
-    async with app.run_test(size=(80, 24)) as pilot:
-        await new_case(pilot)
-        await acknowledge_cautions(pilot)
-        assert not app.screen.query_one("#guidance").display
-
-
 async def test_why_this_check_lists_suspects_by_p_over_c(make_app, knowledge_dir):
     from faultwise.graph import load_knowledge
     from faultwise.rank import rank_investigations
@@ -147,6 +139,7 @@ async def test_stage_map_marks_states_with_words(make_app):
     async with app.run_test(size=(80, 24)) as pilot:
         await new_case(pilot)
         await acknowledge_cautions(pilot)
+        assert not app.screen.query_one("#guidance").display     # closed without apprentice
         supply = app.screen.query_one("#stage-supply")
         assert supply.has_class("-current")
         await pilot.press("1")                              # heaters glow: normal
@@ -198,3 +191,17 @@ async def test_review_key_opens_the_shop_review(make_app):
             await pilot.press("r")
             await pilot.pause()
             assert app.screen.id == "review"
+
+
+async def test_help_page_opens_from_the_start_screen(make_app):
+    from faultwise.tui.screens.help import help_text
+
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await ready(pilot)
+        await pilot.press("question_mark")
+        await pilot.pause()
+        assert app.screen.id == "help"
+        assert "ctrl+z" in help_text() and "F5" in help_text()
+        await pilot.press("escape")
+        assert app.screen.id == "start"

@@ -43,6 +43,7 @@ class StartScreen(Screen):
         Binding("v", "view_selected", "View"),
         Binding("r", "review", "Review"),
         Binding("f9", "safety", "Safety"),
+        Binding("question_mark", "app.bench_help", "Help"),
         Binding("f5", "refresh", "Refresh"),
         Binding("ctrl+q", "app.quit", "Quit"),
     ]
