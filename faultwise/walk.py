@@ -204,8 +204,15 @@ class Walk:
 
     def __init__(self, knowledge, profile, symptom: str, *, expectations: Mapping | None = None,
                  counts: Mapping[str, int] | None = None,
-                 clock: Callable[[], datetime] | None = None) -> None:
+                 clock: Callable[[], datetime] | None = None,
+                 order: Callable | None = None) -> None:
+        """``order(ranked, suspects) -> ranked`` re-orders a suspects list (None: p/c order).
+
+        Only the sweep's baselines pass it (written order, speaker back, random), to measure
+        what the p/c ordering is worth.
+        """
         self.knowledge = knowledge
+        self.order = order
         self.profile = profile
         self.family = profile.family
         self.symptom = symptom
@@ -336,8 +343,7 @@ class Walk:
             return Explanation(st.node, None, None, (), (), came, text)
         frame = st.stack[-1]
         suspects = self.knowledge.node(frame.suspects)
-        ranked = tuple(rank.rank_investigations(self.knowledge, frame.suspects, self.symptom,
-                                                self.family, frame.cleared, self.counts))
+        ranked = tuple(self._ranked(frame))
         chosen = next((r for r in ranked if r.target == frame.current), None)
         if chosen is None:
             text = f"Every suspect in '{suspects.title}' is cleared."
@@ -782,13 +788,20 @@ class Walk:
                              f"{_MOVE_LIMIT} routes without asking anything",
                              node=st.node, hint="run 'faultwise lint' to find the loop")
 
-    def _next_in_frame(self, st: _State) -> str:
-        """The best not-cleared investigation of the top frame, or its exhausted route."""
+    def _ranked(self, frame) -> list:
+        """The frame's not-cleared investigations, best first (p/c, or the ``order`` hook)."""
         from faultwise.rank import rank_investigations
 
-        frame = st.stack[-1]
         ranked = rank_investigations(self.knowledge, frame.suspects, self.symptom, self.family,
                                      frame.cleared, self.counts)
+        if self.order is not None:
+            ranked = list(self.order(ranked, self.knowledge.node(frame.suspects)))
+        return ranked
+
+    def _next_in_frame(self, st: _State) -> str:
+        """The best not-cleared investigation of the top frame, or its exhausted route."""
+        frame = st.stack[-1]
+        ranked = self._ranked(frame)
         if ranked:
             frame.current = ranked[0].target
             return frame.current
@@ -870,10 +883,11 @@ def auto_answer(walk: Walk, readings: Mapping | None = None,
 def auto_walk(knowledge, profile, symptom: str, readings: Mapping | None = None,
               observations: Mapping | None = None, *, expectations: Mapping | None = None,
               counts: Mapping[str, int] | None = None, through: bool = False,
-              clock: Callable[[], datetime] | None = None) -> WalkResult:
+              clock: Callable[[], datetime] | None = None,
+              order: Callable | None = None) -> WalkResult:
     """Walk with readings by expectation name and observations by check id (missing: normal)."""
     walk = Walk(knowledge, profile, symptom, expectations=expectations, counts=counts,
-                clock=clock)
+                clock=clock, order=order)
     limit = 4 * len(knowledge.nodes) + 10
     for _ in range(limit):
         prompt = walk.prompt()
