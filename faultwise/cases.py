@@ -582,7 +582,14 @@ class CaseStore:
                 except FileExistsError:
                     return False
                 os.close(fd)
-                os.replace(tmp, path)
+                try:
+                    os.replace(tmp, path)
+                except OSError:
+                    try:
+                        path.unlink()       # give back the claimed (still empty) name
+                    except OSError:
+                        pass
+                    raise
                 tmp = None
             _fsync_dir(self.folder)
             return True

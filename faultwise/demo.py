@@ -242,7 +242,7 @@ def _one_case(store, knowledge, profiles, rng: random.Random, clock: _Clock, pla
         case.close()
 
 
-def generate(knowledge_dir: Path, cases_dir: Path, *, seed: int = 7, closed: int = 66,
+def generate(knowledge_dir: Path, cases_dir: Path, *, seed: int = 7, closed: int = 120,
              open_cases: int = 3, force: bool = False) -> DemoSummary:
     """Write the demo cases into ``cases_dir`` (refuses a folder holding cases unless ``force``)."""
     from faultwise.cases import CaseStore
