@@ -166,7 +166,8 @@ def test_every_write_point_failing_keeps_the_answer(tmp_path, monkeypatch, point
     boom = OSError(errno_code, os.strerror(errno_code))
     real_fdopen, real_open = os.fdopen, os.open
     if point == "write":
-        monkeypatch.setattr(os, "fdopen", lambda fd, *a, **k: _FailingFile(real_fdopen(fd, *a, **k), 100, errno_code))
+        monkeypatch.setattr(os, "fdopen", lambda fd, *a, **k:
+                            _FailingFile(real_fdopen(fd, *a, **k), 100, errno_code))
     elif point == "fsync":
         monkeypatch.setattr(os, "fsync", lambda fd: (_ for _ in ()).throw(boom))
     elif point == "replace":
