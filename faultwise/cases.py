@@ -16,6 +16,7 @@ import os
 import re
 import secrets
 import socket
+import time
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from datetime import UTC, datetime
@@ -401,6 +402,11 @@ class CaseStore:
             lock.acquire()
         except Timeout:
             info = self.lock_info(case_id)
+            for _ in range(20):        # the holder names itself just after it takes the lock
+                if info is None or info.bench != "another bench":
+                    break
+                time.sleep(0.025)
+                info = self.lock_info(case_id)
             who = f"bench {info.bench}" if info else "another bench"
             since = f" (since {info.since})" if info else ""
             where = f" on {info.host}" if info and info.host not in ("?", self.host) else ""

@@ -22,10 +22,10 @@ from __future__ import annotations
 import inspect
 import math
 import random
+from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 from datetime import datetime
 from pathlib import Path
-from typing import Callable, Iterable, Mapping, Sequence
 
 from faultwise.errors import FaultwiseError
 from faultwise.nodes import FAMILIES, MEASURE_OUTCOMES, Fault
@@ -451,7 +451,7 @@ def run_sweep(knowledge, sets: Mapping[str, Sequence[DemoSet]], *, family: str |
 
 def _opened_key(summary) -> tuple:
     try:
-        stamp = datetime.fromisoformat(str(summary.opened).replace("Z", "+00:00")).timestamp()
+        stamp = datetime.fromisoformat(str(summary.opened)).timestamp()
     except ValueError:
         stamp = math.inf
     return stamp, str(summary.opened), summary.id

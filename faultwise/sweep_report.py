@@ -2,7 +2,13 @@
 
 from __future__ import annotations
 
-from faultwise.sweep import BASELINES, LearningCheck, PairFigures, SweepReport, SweepWalk
+from faultwise.sweep import (
+    BASELINES,
+    LearningCheck,
+    PairFigures,
+    SweepReport,
+    SweepWalk,
+)
 
 
 def _r(x: float | None, digits: int = 3) -> float | None:
@@ -68,6 +74,8 @@ def sweep_to_dict(report: SweepReport) -> dict:
         "baselines": ({k: _r(v) for k, v in report.baselines.items()}
                       if report.baselines is not None else None),
         "random_seed": report.random_seed,
+        "baseline_isolated": {k: sum(1 for w in ws if w.isolated)
+                              for k, ws in report.baseline_walks.items()},
         "failures": [walk_to_dict(w) for w in report.failures],
         "pairs": [pair_to_dict(p) for p in report.pairs],
         "sets": {k: list(v) for k, v in report.sets.items()},

@@ -330,8 +330,6 @@ class Walk:
 
     def explain(self) -> Explanation | None:
         """Why this check now: the p/c ranking of the innermost suspects list, and the route here."""
-        from faultwise import rank
-
         st = self._state
         if st.phase != "diagnose":
             return None

@@ -58,12 +58,13 @@ class _Loader(_BaseLoader):
     def __init__(self, stream, source: str) -> None:
         super().__init__(stream)
         self._source = source
+        self._text = stream if isinstance(stream, str) else None
         self._depth = 0
 
     def construct_object(self, node, deep=False):
         if node in self.constructed_objects:
             raise FaultwiseError("YAML aliases (*name) are not accepted", file=self._source,
-                                 line=node.start_mark.line + 1,
+                                 line=self._first_alias_line() or node.start_mark.line + 1,
                                  hint="write the value out in full")
         self._depth += 1
         try:
@@ -73,6 +74,25 @@ class _Loader(_BaseLoader):
             return super().construct_object(node, deep=True)
         finally:
             self._depth -= 1
+
+    def _first_alias_line(self) -> int | None:
+        """Line of the first alias (*name) in the text, where a value is reused.
+
+        The composer (in C for CSafeLoader) hands back the anchored node itself for an
+        alias, so the node knows only the anchor's line; the parser's events carry the
+        alias's own. So the text is parsed again, only on this refusal, up to the first
+        AliasEvent. Construction runs in document order, so that is the reuse refused
+        (a merge key can construct a later one first; the line is still an alias's).
+        """
+        if self._text is None:
+            return None
+        try:
+            for event in yaml.parse(self._text, Loader=_BaseLoader):
+                if isinstance(event, yaml.AliasEvent):
+                    return event.start_mark.line + 1
+        except yaml.YAMLError:
+            return None
+        return None
 
     def construct_line_mapping(self, node):
         if not isinstance(node, yaml.MappingNode):  # pragma: no cover - guarded by the tag

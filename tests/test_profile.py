@@ -317,9 +317,9 @@ def test_typical_key_marks_given_values():
 
 HOSTILE = {
     "tag": ("label: !!python/object/apply:os.system ['echo hi']\nfamily: transistor\n", "tag", 1),
-    # yamlload names the line of the anchored value (&a), where the reuse starts
-    "alias": ("label: &a x\nfamily: transistor\nbattery: {volts_v: 9}\nx: *a\n", "alias", 1),
-    "laughs": ("a: &a [1, 1]\nb: &b [*a, *a]\nc: [*b, *b]\n", "alias", 1),
+    # yamlload names the line of the first alias (*a), where the value is reused
+    "alias": ("label: &a x\nfamily: transistor\nbattery: {volts_v: 9}\nx: *a\n", "alias", 4),
+    "laughs": ("a: &a [1, 1]\nb: &b [*a, *a]\nc: [*b, *b]\n", "alias", 2),
     "deep": ("label: " + "[" * 60 + "]" * 60 + "\n", "nesting", None),
     "syntax": ("label: x\nfamily: [transistor\n", "syntax", None),
     "duplicate": ("label: x\nlabel: y\nfamily: transistor\n", "twice", 2),

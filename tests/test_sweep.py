@@ -21,8 +21,14 @@ import pytest
 
 from faultwise.cases import dump_case
 from faultwise.graph import load_knowledge
-from faultwise.sweep import (RANDOM_SEED, SPEAKER_BACK, learning_check, load_demo_sets,
-                             run_sweep, walk_has_order_hook)
+from faultwise.sweep import (
+    RANDOM_SEED,
+    SPEAKER_BACK,
+    learning_check,
+    load_demo_sets,
+    run_sweep,
+    walk_has_order_hook,
+)
 from faultwise.sweep_report import failure_sentence, sweep_text, sweep_to_dict
 from faultwise.walk import auto_walk
 from faultwise.workspace import bundled_knowledge_dir
@@ -36,7 +42,7 @@ BATTERY, SPEAKER, IF_COIL, ROD, FILTER = ("supply.tr-flat-battery", "audio.tr-op
 
 def _cli(*args: str) -> subprocess.CompletedProcess:
     return subprocess.run([sys.executable, "-m", "faultwise", *args], capture_output=True,
-                          text=True, timeout=300)
+                          text=True, timeout=300, check=False)
 
 
 @pytest.fixture(scope="module")

@@ -34,9 +34,10 @@ def test_dates_stay_text():
     ("b: 1\na: !custom 3\n", "tag", 2),
     ("a: !!set {x, y}\n", "tag", 1),
     ("a: !!binary aGVsbG8=\n", "tag", 1),
-    ("a: &x [1, 2]\nb: *x\n", "alias", 1),
-    ("a: &a [1, 1]\nb: &b [*a, *a]\nc: &c [*b, *b]\nd: [*c, *c]\n", "alias", 1),
-    ("base: &b {x: 1}\nother:\n  <<: *b\n", "alias", 1),
+    # an alias is located where it is used (*name), not at its anchor (&name)
+    ("a: &x [1, 2]\nb: *x\n", "alias", 2),
+    ("a: &a [1, 1]\nb: &b [*a, *a]\nc: &c [*b, *b]\nd: [*c, *c]\n", "alias", 2),
+    ("base: &b {x: 1}\nother:\n  <<: *b\n", "alias", 3),
     ("a: 1\na: 2\n", "twice", 2),
     ("a: [1, 2\n", "syntax", None),
     ("a: b: c\n", "syntax", 1),

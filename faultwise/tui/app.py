@@ -49,7 +49,7 @@ class FaultwiseApp(App[None]):
     TITLE = "faultwise"
     SUB_TITLE = "bench"
     BINDINGS = [
-        Binding("ctrl+q", "quit", "Quit", priority=True, show=False),
+        Binding("ctrl+q", "quit", "Quit", priority=True),
         Binding("f12", "bench_help", "Help", show=False),
     ]
 

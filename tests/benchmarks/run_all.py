@@ -21,7 +21,7 @@ import subprocess
 import sys
 import time
 from dataclasses import dataclass
-from datetime import datetime, timezone
+from datetime import UTC, datetime
 from pathlib import Path
 
 HERE = Path(__file__).resolve().parent
@@ -80,7 +80,7 @@ def run_script(path: Path, quick: bool, timeout_s: float) -> tuple[int, str, flo
     t0 = time.perf_counter()
     try:
         out = subprocess.run([sys.executable, str(path), *args], capture_output=True, text=True,
-                             cwd=ROOT, timeout=timeout_s)
+                             cwd=ROOT, timeout=timeout_s, check=False)
         code, text = out.returncode, out.stdout + out.stderr
     except subprocess.TimeoutExpired as exc:
         code, text = 124, f"{exc.stdout or ''}timed out after {timeout_s:.0f} s"
@@ -89,7 +89,7 @@ def run_script(path: Path, quick: bool, timeout_s: float) -> tuple[int, str, flo
 
 def expect_worst_ratio(text: str) -> str | None:
     """bench_expect prints a ratio per set (expect ms / parse ms): the largest."""
-    ratios = [float(m.group(1)) for m in re.finditer(r"\s([0-9.]+)\s+\d+\s*$", text, re.M)]
+    ratios = [float(m.group(1)) for m in re.finditer(r"\s([0-9.]+)\s+\d+\s*$", text, re.MULTILINE)]
     return f"{max(ratios):.1f}" if ratios else None
 
 
@@ -97,7 +97,7 @@ def figures_of(name: str, code: int, text: str) -> list[Figure]:
     bench = name.removesuffix(".py")
     out: list[Figure] = []
     for measure, pattern, target in EXTRACT.get(name, []):
-        m = re.search(pattern, text, re.M)
+        m = re.search(pattern, text, re.MULTILINE)
         out.append(Figure(bench, measure, m.group(1) if m else "n/a", target))
     if name == "bench_expect.py":
         worst = expect_worst_ratio(text)
@@ -125,14 +125,14 @@ def table(figures: list[Figure]) -> list[str]:
 
 def results_markdown(command: str, figures: list[Figure], outputs: list[tuple[str, str]],
                      seconds: float) -> str:
-    when = datetime.now(timezone.utc).astimezone().isoformat(timespec="seconds")
+    when = datetime.now(UTC).astimezone().isoformat(timespec="seconds")
     cpu = platform.processor() or platform.machine()
     parts = ["# Benchmark results", "",
              "Written by `tests/benchmarks/run_all.py`; do not edit by hand.", "",
              f"- command: `{command}` (from the repository root)",
              f"- when: {when}; {seconds:.0f} s in all",
-             f"- machine: {platform.system()} {cpu}, Python {platform.python_version()}; "
-             "the machine is shared, so figures vary by some tens of per cent run to run", "",
+             (f"- machine: {platform.system()} {cpu}, Python {platform.python_version()}; "
+              "the machine is shared, so figures vary by some tens of per cent run to run"), "",
              *table(figures), "", "## Output of each script", ""]
     for name, text in outputs:
         parts += [f"### {name}", "", "```", text.rstrip(), "```", ""]

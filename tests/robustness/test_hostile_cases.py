@@ -272,3 +272,47 @@ def test_a_case_file_symlinked_outside_is_never_written_through(tmp_path):
         case.update(customer="changed at the bench")
     assert sha(outside) == before
     assert store.read("20261201-B1-001")["customer"] == "changed at the bench"
+
+
+# ------------------------------------------------------------------ the TUI
+
+async def test_tui_resume_of_a_hand_edited_case_reports_and_keeps_running(tmp_path):
+    """An open case whose event number was hand-edited to text: resuming it must give a
+    message and leave the case unlocked and unchanged, not end the program."""
+    from faultwise.cases import CaseStore
+    from faultwise.graph import load_knowledge
+    from faultwise.profile import load_profile
+    from faultwise.tui.app import build_app
+    from faultwise.tui.settings import Settings
+    from faultwise.walk import Walk
+    from faultwise.workspace import Workspace
+
+    from rb_helpers import TUI_KB, clock
+
+    kb = tmp_path / "knowledge"
+    shutil.copytree(TUI_KB, kb)
+    ws = Workspace(knowledge_dir=kb, cases_dir=tmp_path / "cases", bench="B1")
+    profile = load_profile(ws.sets_dir / "demo-5-tube-table.yaml")
+    walk = Walk(load_knowledge(kb), profile, "hum-loud", clock=clock)
+    walk.acknowledge("live-chassis")
+    walk.answer("1")
+    with CaseStore(ws.cases_dir, "B1", clock).new_case(profile, "demo-5-tube-table.yaml",
+                                                        "hums", "hum-loud") as case:
+        case.record(walk)
+        path = case.path
+    data = json.loads(path.read_bytes())
+    data["events"][-1]["n"] = "two"               # a hand edit in a text editor
+    path.write_text(json.dumps(data, indent=2), encoding="utf-8")
+    before = sha(path)
+    app = build_app(ws, clock=clock,
+                    settings=Settings(None, safety_acknowledged="2026-12-01T09:30:00+00:00"))
+    async with app.run_test(size=(100, 30)) as pilot:
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        await pilot.press("enter")
+        await pilot.pause()
+        assert app.is_running and app.return_code is None
+        assert app.screen.id == "start"
+    assert sha(path) == before
+    assert not (ws.cases_dir / f"{data['id']}.lock").exists()

@@ -266,3 +266,17 @@ async def test_first_run_notice_then_not_again(workspace, tmp_path):
     async with again.run_test(size=(80, 24)) as pilot:
         await ready(pilot)
         assert again.screen.id == "start"
+
+
+async def test_quit_during_a_walk_releases_the_case(make_app, workspace, cases_dir):
+    case_id = open_case_on_disk(workspace, "1")
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await ready(pilot)
+        await pilot.press("enter")
+        await pilot.pause()
+        assert (cases_dir / f"{case_id}.lock").exists()
+        await pilot.press("ctrl+q")                 # works while the answer field has focus
+        await pilot.pause()
+    assert not (cases_dir / f"{case_id}.lock").exists()
+    assert read_case(cases_dir, case_id)["status"] == "open"

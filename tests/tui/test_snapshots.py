@@ -37,7 +37,7 @@ def test_start_screen(snap_app, workspace, snap_compare):
     """Start screen: the safety strip at the top; the case table with one open case
     (20261201-B1-002, selected first), one DAMAGED file (truncated) and one closed case
     (20261201-B1-001, closed: waiting-parts); the detail line of the selected open case;
-    the footer with n New case, enter Open, v View, f9 Safety."""
+    the footer with ⏎ Open, n New case, v View, r Review, f9 Safety, ? Help, ^q Quit."""
     make_cases(workspace)
 
     async def run_before(pilot):

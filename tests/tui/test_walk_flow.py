@@ -228,3 +228,28 @@ async def test_close_refused_without_leakage_check(make_app, cases_dir):
         await pilot.press("enter")
         await pilot.pause()
         assert read_case(cases_dir)["outcome"] == "returned-unrepaired"
+
+
+async def test_where_the_graph_ends_the_finding_is_asked_for(make_app, cases_dir):
+    """'No heater glows' routes to an escalate node: advice shown, no check, F5 records."""
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot)
+        await acknowledge_cautions(pilot)
+        await pilot.press("2")
+        await pilot.pause()
+        assert app.screen.id == "walk"
+        assert not app.screen.query_one("#check").display
+        shown = str(app.screen.query_one("#escalate").render())
+        assert "Supply problem the graph does not cover" in shown
+        assert "Trace the heater string" in shown            # the node's advice
+        keys = app.screen.active_bindings
+        assert "f5" in keys and "f4" not in keys
+        await pilot.press("f5")
+        await type_text(pilot, "open string")
+        await pilot.press("enter")
+        await pilot.pause()
+        assert app.screen.id == "conclusion"
+        event = read_case(cases_dir)["events"][-1]
+        assert (event["type"], event["node"], event["finding"]) == \
+            ("off-graph", "supply.escalate-dark", "open string")

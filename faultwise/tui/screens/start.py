@@ -44,8 +44,7 @@ class StartScreen(Screen):
         Binding("r", "review", "Review"),
         Binding("f9", "safety", "Safety"),
         Binding("question_mark", "app.bench_help", "Help"),
-        Binding("f5", "refresh", "Refresh"),
-        Binding("ctrl+q", "app.quit", "Quit"),
+        Binding("f5", "refresh", "Refresh", show=False),
     ]
 
     def __init__(self, bench: Bench) -> None:

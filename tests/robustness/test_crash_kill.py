@@ -1,0 +1,271 @@
+"""Crashes and power loss: a bench process killed with SIGKILL, at every point of the
+store's write path and at random moments, through the walk API and in the real TUI.
+
+What must hold after every kill: the case file parses (never truncated); its events are a
+prefix of the walk that was being recorded (nothing answered earlier is lost or changed);
+the walk rebuilt from it (walk_from_case / Walk.from_events) stands at the last answered
+step; a half-written temp file is removed by the next CaseStore start; the dead process's
+lock is taken over and the case can be finished.
+
+Outside facts relied on: SIGKILL cannot be caught or ignored (POSIX.1-2017, signal.h), so
+what is on disk when it lands is all there is; rename(2) is atomic (POSIX.1-2017,
+rename()). The runs are seeded (random.Random) so a failure repeats; set
+FAULTWISE_KILL_RUNS=N for a longer random-moment run (default 4).
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import random
+import shutil
+import signal
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+import pytest
+
+from rb_helpers import PY, TUI_KB, H, clock, run_script
+
+from faultwise.cases import CaseStore, read_case_bytes
+from faultwise.walk import Walk, walk_from_case
+
+CHILD = str(Path(__file__).with_name("kill_child.py"))
+KILL_RUNS = int(os.environ.get("FAULTWISE_KILL_RUNS", "4"))
+SAVES = 1 + len(H.SCRIPT)               # the new case, then one save per scripted step
+
+
+def reference_events() -> list[dict]:
+    walk = Walk(H.knowledge(), H.series_profile(), "dead-lights-on",
+                expectations=H.expectations(), clock=clock)
+    return run_script(walk).events
+
+
+def check_survivor(folder: Path, full: list[dict], *, temp_expected: bool = False) -> int:
+    """The invariants after a kill; returns how many events the file kept."""
+    files = sorted(folder.glob("*.json"))
+    if not files:
+        return -1                                  # died before the first version landed
+    assert len(files) == 1, files
+    data = read_case_bytes(files[0].read_bytes(), files[0])      # parses, validates
+    events = data["events"]
+    assert events == full[: len(events)]                         # a prefix, exact
+    walk = walk_from_case(H.knowledge(), data, expectations=H.expectations(), clock=clock)
+    answered = [e for e in events if e["type"] == "answer"]
+    assert [s.raw for s in walk.steps] == [e["raw"] for e in answered]
+    ref = Walk.from_events(H.knowledge(), H.series_profile(), "dead-lights-on", events,
+                           expectations=H.expectations())
+    assert (walk.prompt() and walk.prompt().node and walk.prompt().node.id) == \
+        (ref.prompt() and ref.prompt().node and ref.prompt().node.id)
+    temps = list(folder.glob(".*.fwtmp"))
+    if temp_expected:
+        assert temps, "the kill was meant to leave a half-written temp file"
+    CaseStore(folder, "B2")                                      # the next start
+    assert not list(folder.glob(".*.fwtmp"))
+    return len(events)
+
+
+def finish(folder: Path, full: list[dict]) -> None:
+    """A new process takes the dead one's lock over and completes the case."""
+    res = subprocess.run([PY, CHILD, str(folder), "none", "0"], capture_output=True, text=True,
+                         timeout=60)
+    assert res.returncode == 0 and "finished" in res.stdout, res.stderr
+    (path,) = folder.glob("*.json")
+    data = read_case_bytes(path.read_bytes(), path)
+    assert data["events"] == full and data["status"] == "closed"
+    assert not list(folder.glob("*.lock"))
+
+
+POINTS = {"mid-write": range(1, SAVES + 1), "before-replace": range(2, SAVES + 1),
+          "after-replace": range(2, SAVES + 1), "new-case": [1]}
+
+
+@pytest.mark.parametrize("point", sorted(POINTS))
+def test_kill_at_each_point_of_the_write_path(tmp_path, point):
+    """Seeded choice of which save dies (two per point, plus the first and the last)."""
+    full = reference_events()
+    rng = random.Random(f"h9-{point}")
+    saves = sorted({min(POINTS[point]), max(POINTS[point]),
+                    *rng.sample(list(POINTS[point]), min(2, len(POINTS[point])))})
+    for save in saves:
+        folder = tmp_path / f"{point}-{save}" / "cases"
+        res = subprocess.run([PY, CHILD, str(folder), point, str(save)], capture_output=True,
+                             text=True, timeout=60)
+        assert res.returncode == -signal.SIGKILL, (res.returncode, res.stderr)
+        kept = check_survivor(folder, full, temp_expected=point == "mid-write")
+        if point == "after-replace":
+            assert kept == save - 1                # the renamed version is the one kept
+        elif point in ("mid-write", "before-replace") and save > 1:
+            assert kept == save - 2                # the save that died is not on disk
+        if kept >= 0:
+            finish(folder, full)
+        else:
+            assert not list(folder.glob("*.json"))
+            CaseStore(folder, "B1")
+            assert not list(folder.glob(".*.fwtmp"))
+
+
+def test_kill_at_random_moments(tmp_path):
+    """The child saves 60 times per step; the parent kills it at a seeded random moment,
+    checks the file, and lets the next run continue the same case from there."""
+    full = reference_events()
+    rng = random.Random(20261201)
+    folder = tmp_path / "cases"
+    kept_counts = []
+    for run in range(KILL_RUNS):
+        proc = subprocess.Popen([PY, CHILD, str(folder), "none", "0", "60"],
+                                stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+        time.sleep(rng.uniform(0.2, 1.2))
+        proc.send_signal(signal.SIGKILL)
+        out, err = proc.communicate(timeout=60)
+        assert "Traceback" not in err, err
+        kept = check_survivor(folder, full)
+        kept_counts.append(kept)
+        if proc.returncode == 0:                  # finished before the kill: start over
+            shutil.rmtree(folder)
+    if folder.exists() and list(folder.glob("*.json")):
+        finish(folder, full)
+    assert kept_counts
+
+
+# ------------------------------------------------------------------ the TUI in tmux
+
+TMUX = shutil.which("tmux")
+FAULTWISE = Path(sys.executable).parent / "faultwise"
+
+
+class Tmux:
+    """One private tmux server (its own socket), ended by kill-server on that socket only."""
+
+    def __init__(self, tmp: Path) -> None:
+        self.socket = f"faultwise-rb-{os.getpid()}-{tmp.name}"[:80]
+
+    def run(self, *args: str) -> str:
+        return subprocess.run([TMUX, "-L", self.socket, *args], capture_output=True, text=True,
+                              timeout=20).stdout
+
+    def screen(self) -> str:
+        return self.run("capture-pane", "-p")
+
+    def wait_for(self, text: str, timeout: float = 30.0) -> str:
+        end = time.monotonic() + timeout
+        while time.monotonic() < end:
+            shown = self.screen()
+            if text in shown:
+                return shown
+            time.sleep(0.1)
+        raise AssertionError(f"'{text}' never showed:\n{self.screen()}")
+
+    def wait_for_any(self, *texts: str, timeout: float = 30.0) -> str:
+        end = time.monotonic() + timeout
+        while time.monotonic() < end:
+            shown = self.screen()
+            if any(t in shown for t in texts):
+                return shown
+            time.sleep(0.1)
+        raise AssertionError(f"none of {texts} showed:\n{self.screen()}")
+
+    def keys(self, *keys: str, literal: bool = False) -> None:
+        self.run("send-keys", *(["-l"] if literal else []), *keys)
+
+    def pane_pid(self) -> int:
+        return int(self.run("display", "-p", "#{pane_pid}").strip())
+
+    def close(self) -> None:
+        self.run("kill-server")
+
+
+def wait_events(path: Path, n: int, timeout: float = 20.0) -> dict:
+    end = time.monotonic() + timeout
+    while time.monotonic() < end:
+        if path.is_file():
+            data = json.loads(path.read_bytes())
+            if len(data["events"]) >= n:
+                return data
+        time.sleep(0.1)
+    raise AssertionError(f"the case never reached {n} events")
+
+
+@pytest.mark.skipif(TMUX is None or not FAULTWISE.exists(),
+                    reason="needs tmux and the installed console script")
+@pytest.mark.parametrize("kill", ["kill-9", "kill-session"])
+def test_tui_killed_mid_walk_reopens_at_the_last_answer(tmp_path, kill):
+    """The installed `faultwise` in a real terminal, on a cases folder whose path has spaces
+    and non-ASCII letters: answer checks with send-keys, kill it, check the file, start it
+    again and resume: the screen shows the check after the last answer."""
+    from faultwise.expect import expect
+    from faultwise.graph import load_knowledge
+    from faultwise.profile import load_profile
+
+    kb = tmp_path / "knowledge"
+    shutil.copytree(TUI_KB, kb)
+    cases = tmp_path / "Bänk 2" / "cases ü"
+    band = expect(load_profile(kb / "sets" / "demo-5-tube-table.yaml"))["supply.rectifier_out_v"]
+    low = f"{(band.absent_below + band.low) / 2:.0f}"       # a low reading, from the band
+    rng = random.Random(f"tmux-{kill}")
+    answers = rng.randint(1, 3)                  # how many checks to answer before the kill
+    cmd = (f"XDG_CONFIG_HOME='{tmp_path / 'config'}' exec '{FAULTWISE}' --cases '{cases}' "
+           f"--knowledge '{kb}'")
+    tmux = Tmux(tmp_path)
+    try:
+        tmux.run("new-session", "-d", "-x", "100", "-y", "30", cmd)
+        tmux.wait_for("I understand")
+        tmux.keys("Enter")                                   # the first-run safety notice
+        tmux.wait_for("New case")
+        tmux.keys("n")
+        tmux.wait_for("sets in the library")
+        for text in ("5 tube", "hums loudly", "ticket 77"):   # set, complaint, customer
+            tmux.keys(text, literal=True)
+            time.sleep(0.3)
+            tmux.keys("Enter")
+            time.sleep(0.5)
+        path = cases / "20261201-B1-001.json"
+        script = [("1", "Do the heaters glow?"), (low, "DC at the first filter"), ("2", "bridg")]
+        n_events = len(wait_events(path, 0)["events"])
+        for typed, title in script[:answers]:
+            while "Understood" in tmux.wait_for_any(title, "Understood"):
+                tmux.keys("Enter")                           # the caution before this check
+                n_events = len(wait_events(path, n_events + 1)["events"])
+                time.sleep(0.2)
+            tmux.keys(typed, literal=True)
+            if len(typed) > 1:
+                tmux.keys("Enter")
+            n_events = len(wait_events(path, n_events + 1)["events"])
+        pid = tmux.pane_pid()
+        if kill == "kill-9":
+            os.kill(pid, signal.SIGKILL)
+        else:
+            tmux.run("kill-session")                         # the terminal goes away
+        deadline = time.monotonic() + 10
+        while time.monotonic() < deadline:
+            try:
+                os.kill(pid, 0)
+            except ProcessLookupError:
+                break
+            time.sleep(0.1)
+        else:
+            os.kill(pid, signal.SIGKILL)
+        data = read_case_bytes(path.read_bytes(), path)
+        answered = [e for e in data["events"] if e["type"] in ("answer", "skip")]
+        assert len(answered) == answers
+        assert [e["raw"] for e in answered] == [t for t, _ in script[:answers]]
+        walk = walk_from_case(load_knowledge(kb), data)
+        assert [s.raw for s in walk.steps] == [t for t, _ in script[:answers]]
+        next_title = walk.prompt().node.title
+        # Start again on the same folder: the dead process's lock is taken over on resume.
+        tmux = Tmux(tmp_path / "again")
+        tmux.run("new-session", "-d", "-x", "100", "-y", "30", cmd)
+        tmux.wait_for("1 open")
+        tmux.keys("Enter")
+        while "Understood" in tmux.wait_for_any(next_title[:20], "Understood"):
+            tmux.keys("Enter")                               # cautions come back first
+            time.sleep(0.3)
+        tmux.wait_for(next_title[:20])
+        assert not list(cases.glob(".*.fwtmp"))
+        tmux.keys("Escape")
+        time.sleep(0.3)
+        tmux.keys("C-q")
+    finally:
+        tmux.close()
