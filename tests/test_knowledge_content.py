@@ -116,3 +116,20 @@ def test_safety_capacitor_rule_is_stated(kn):
     """IEC 60384-14: line-to-chassis parts are Y class; a Y may replace an X, never the reverse."""
     text = kn.cautions["safety-caps"].text
     assert "Y" in text and "X" in text
+
+
+def test_conclusions_do_not_depend_on_the_order(kn):
+    """Learned counts re-order suspects; the walk must still name the right fault.
+
+    Every signature is walked under the written order, speaker-back and a seeded random
+    order (the sweep's baselines): each must still conclude its own fault, so no route is
+    right only because an earlier suspect happened to be cleared first.
+    """
+    from faultwise.sweep import load_demo_sets, run_sweep
+
+    sets = load_demo_sets(bundled_knowledge_dir() / "sets")
+    report = run_sweep(kn, sets)
+    assert report.isolated == report.signatures
+    for name, walks in report.baseline_walks.items():
+        wrong = [(w.symptom, w.family, w.fault) for w in walks if not w.isolated]
+        assert not wrong, (name, wrong[:5])
