@@ -49,7 +49,7 @@ class Terminal:
     def screen(self) -> str:
         return self.tmux("capture-pane", "-p", "-t", "fw")
 
-    def wait_for(self, text: str, timeout_s: float = 20.0) -> str:
+    def wait_for(self, text: str, timeout_s: float = 30.0) -> str:
         """Poll the screen until ``text`` shows; fail with the screen if it never does."""
         deadline = time.monotonic() + timeout_s
         screen = ""
@@ -59,6 +59,15 @@ class Terminal:
                 return screen
             time.sleep(0.1)
         raise AssertionError(f"{text!r} never appeared; the screen was:\n{screen}")
+
+    def wait_gone(self, text: str, timeout_s: float = 20.0) -> None:
+        """Poll the screen until ``text`` no longer shows (a modal has closed)."""
+        deadline = time.monotonic() + timeout_s
+        while time.monotonic() < deadline:
+            if text not in self.screen():
+                return
+            time.sleep(0.1)
+        raise AssertionError(f"{text!r} is still on the screen:\n{self.screen()}")
 
     def keys(self, *keys: str) -> None:
         self.tmux("send-keys", "-t", "fw", *keys)
@@ -79,6 +88,7 @@ def test_walk_a_case_in_a_real_terminal(tmp_path):
     try:
         term.wait_for("Before you start")
         term.keys("Enter")
+        term.wait_gone("Before you start")
         term.wait_for("No cases yet")
         term.keys("n")
         term.wait_for("sets in the library")
