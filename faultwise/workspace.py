@@ -78,3 +78,9 @@ def resolve_workspace(knowledge: str | os.PathLike | None = None,
         raise FaultwiseError("the knowledge folder does not exist", file=str(kdir),
                              hint="pass --knowledge with a folder that holds symptoms.yaml and graph/")
     return Workspace(knowledge_dir=kdir, cases_dir=cdir, bench=str(b))
+
+
+def workspace_from_args(args) -> Workspace:
+    """The workspace for a parsed command line (options given before or after the command)."""
+    return resolve_workspace(getattr(args, "knowledge", None), getattr(args, "cases", None),
+                             getattr(args, "bench", None))

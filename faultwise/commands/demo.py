@@ -18,10 +18,9 @@ def register(sub) -> None:
 
 def run(args) -> int:
     from faultwise.demo import generate
-    from faultwise.workspace import resolve_workspace
+    from faultwise.workspace import workspace_from_args
 
-    ws = resolve_workspace(getattr(args, "knowledge", None), getattr(args, "cases", None),
-                           getattr(args, "bench", None))
+    ws = workspace_from_args(args)
     summary = generate(ws.knowledge_dir, ws.cases_dir, seed=args.seed, closed=args.closed,
                        open_cases=args.open_cases, force=args.force)
     print(f"wrote {summary.closed} closed and {summary.open} open demo cases to {summary.folder}")

@@ -54,22 +54,13 @@ def _json_entry(e) -> dict:
     return out
 
 
-def _num(x: float) -> str:
-    """4 significant digits, plain notation."""
-    if x == 0:
-        return "0"
-    text = f"{x:.4g}"
-    if "e" in text:
-        text = f"{float(text):f}".rstrip("0").rstrip(".")
-    return text
-
-
 def render_table(profile, expectations: dict, width: int | None = None) -> list[str]:
     """Plain-text table grouped by stage: name, nominal, band, unit, marker; basis beneath."""
     import shutil
     import textwrap
 
     from faultwise.expect import STAGES
+    from faultwise.expect_context import basis_num as _num
 
     width = width or max(60, min(shutil.get_terminal_size((100, 24)).columns, 120))
     rows = list(expectations.values())

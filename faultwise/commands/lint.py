@@ -20,10 +20,9 @@ def register(subparsers) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from faultwise.lint import lint
-    from faultwise.workspace import resolve_workspace
+    from faultwise.workspace import workspace_from_args
 
-    ws = resolve_workspace(args.knowledge, getattr(args, "cases", None),
-                           getattr(args, "bench", None))
+    ws = workspace_from_args(args)
     report = lint(ws.knowledge_dir)
     if args.json:
         print(json.dumps(report.to_json(), indent=2))

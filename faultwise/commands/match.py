@@ -24,13 +24,12 @@ def run(args: argparse.Namespace) -> int:
     from faultwise.errors import InputError
     from faultwise.graph import load_symptoms
     from faultwise.match import match
-    from faultwise.workspace import resolve_workspace
+    from faultwise.workspace import workspace_from_args
 
     if not args.text.strip():
         raise InputError("the complaint is empty", hint='give it in quotes, e.g. '
                          'faultwise match "hums loudly"')
-    ws = resolve_workspace(args.knowledge, getattr(args, "cases", None),
-                           getattr(args, "bench", None))
+    ws = workspace_from_args(args)
     matches = match(args.text, load_symptoms(ws.knowledge_dir))
     if args.json:
         print(json.dumps({"matches": [m.to_json() for m in matches]}, indent=2))

@@ -45,10 +45,9 @@ def _targets(given: list[str], folder: Path) -> list[Path]:
 def run(args: argparse.Namespace) -> int:
     from faultwise.graph import load_knowledge
     from faultwise.replay import case_files, replay_files
-    from faultwise.workspace import resolve_workspace
+    from faultwise.workspace import workspace_from_args
 
-    ws = resolve_workspace(args.knowledge, getattr(args, "cases", None),
-                           getattr(args, "bench", None))
+    ws = workspace_from_args(args)
     knowledge = load_knowledge(ws.knowledge_dir)
     if args.cases_given:
         paths = _targets(args.cases_given, ws.cases_dir)

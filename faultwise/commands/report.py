@@ -26,9 +26,9 @@ def run(args: argparse.Namespace) -> int:
 
     from faultwise.errors import FaultwiseError, KnowledgeError
     from faultwise.report import find_case, job_report, job_report_markdown, read_case
-    from faultwise.workspace import resolve_workspace
+    from faultwise.workspace import workspace_from_args
 
-    ws = resolve_workspace(args.knowledge, args.cases, getattr(args, "bench", None))
+    ws = workspace_from_args(args)
     case = read_case(find_case(args.case, ws.cases_dir))
     knowledge = None
     try:

@@ -73,13 +73,13 @@ def run(args: argparse.Namespace) -> int:
     from faultwise.index import scan_cases
     from faultwise.review import (REOPEN_DAYS, parse_since, review_scan, review_to_dict,
                                   selected_cases)
-    from faultwise.workspace import resolve_workspace
+    from faultwise.workspace import workspace_from_args
 
     if args.dry_run and not args.learn:
         raise FaultwiseError("--dry-run goes with --learn", key="--dry-run",
                              hint="run 'faultwise review --learn --dry-run'")
     since = parse_since(args.since)
-    ws = resolve_workspace(args.knowledge, args.cases, getattr(args, "bench", None))
+    ws = workspace_from_args(args)
     if not ws.cases_dir.is_dir():
         raise FaultwiseError("the cases folder does not exist", file=str(ws.cases_dir),
                              hint="pass --cases with the shop's cases folder")

@@ -58,10 +58,9 @@ def run(args: argparse.Namespace) -> int:
     from faultwise.graph import load_knowledge
     from faultwise.sweep import RANDOM_SEED, learning_check, load_demo_sets, run_sweep
     from faultwise.sweep_report import failure_sentence, sweep_text, sweep_to_dict
-    from faultwise.workspace import resolve_workspace
+    from faultwise.workspace import workspace_from_args
 
-    ws = resolve_workspace(args.knowledge, getattr(args, "cases", None),
-                           getattr(args, "bench", None))
+    ws = workspace_from_args(args)
     knowledge = load_knowledge(ws.knowledge_dir)
     sets = load_demo_sets(_sets_dir(ws, args.sets), ws.knowledge_dir)
     seed = RANDOM_SEED if args.seed is None else args.seed

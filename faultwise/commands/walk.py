@@ -114,10 +114,9 @@ def run(args: argparse.Namespace) -> int:
     from faultwise.graph import load_knowledge
     from faultwise.profile import load_profile
     from faultwise.walk import auto_walk
-    from faultwise.workspace import resolve_workspace
+    from faultwise.workspace import workspace_from_args
 
-    ws = resolve_workspace(args.knowledge, getattr(args, "cases", None),
-                           getattr(args, "bench", None))
+    ws = workspace_from_args(args)
     knowledge = load_knowledge(ws.knowledge_dir)
     tubes = tube_dir(ws.knowledge_dir)
     profile = load_profile(args.profile, knowledge_dir=tubes)

@@ -11,10 +11,9 @@ def run_tui(args: argparse.Namespace) -> int:
     """Run the bench program; the exit status is the app's return code."""
     from faultwise.tui.app import build_app
     from faultwise.tui.settings import Settings, default_settings_path
-    from faultwise.workspace import resolve_workspace
+    from faultwise.workspace import workspace_from_args
 
-    workspace = resolve_workspace(getattr(args, "knowledge", None), getattr(args, "cases", None),
-                                  getattr(args, "bench", None))
+    workspace = workspace_from_args(args)
     try:
         workspace.cases_dir.mkdir(parents=True, exist_ok=True)
     except OSError as exc:

@@ -101,11 +101,12 @@ def matrix(r: Path) -> list[tuple[str, list, list]]:
         if name == "expect":
             rows += _profile_cases(r, ["expect"], ["--json"])
         elif name == "match":
-            rows += [(["match", "", *k], []), (["match", "x" * 100_000, *k], []),
+            rows += [(["match", "", *k], []), (["match", "x" * 100_000, *k], [], 0),
                      *[(args + ["dead"], names) for args, names in
                        _knowledge_cases(r, ["match"])]]
         elif name == "lint":
-            rows += _knowledge_cases(r, ["lint"])
+            # lint prints the located findings on stdout, its summary sentence on stderr
+            rows += [(args, names, "lint") for args, names in _knowledge_cases(r, ["lint"])]
         elif name == "walk":
             w = ["--symptom", "dead-lights-on", "--answers"]
             rows += _profile_cases(r, ["walk"], [*w, r / "answers-key.yaml", *k])
@@ -117,7 +118,7 @@ def matrix(r: Path) -> list[tuple[str, list, list]]:
                      (["walk", series, "--symptom", "dead-lights-on", *k], [])]
         elif name == "replay":
             rows += [(["replay", "20261201-B1-404", *c, *k], ["20261201-B1-404"]),
-                     (["replay", r / "binary.yaml", *c, *k], []),
+                     (["replay", r / "binary.yaml", *c, *k], ["binary.yaml"], 0),   # carries on
                      (["replay", "--cases", r / "a-file", *k, "x"], []),
                      *_knowledge_cases(r, ["replay", *c])]
         elif name == "review":
@@ -149,7 +150,7 @@ def matrix(r: Path) -> list[tuple[str, list, list]]:
                      (["demo", "--cases", r / "demo-new", *k, "--closed", "-5"], []),
                      (["demo", "--cases", r / "demo-new", *k, "--seed", "x"], []),
                      *_knowledge_cases(r, ["demo", "--cases", r / "demo-new"])]
-        out += [(f"{name}:{i}", args, names) for i, (args, names) in enumerate(rows)]
+        out += [(f"{name}:{i}", *row) for i, row in enumerate(rows)]
     # The bare program (the TUI) with a workspace it cannot use: it must stop before the
     # screen starts, with one sentence.
     out += [("tui:cases-under-a-file", ["--cases", r / "a-file" / "cases", *k], ["a-file"]),
@@ -160,26 +161,43 @@ def matrix(r: Path) -> list[tuple[str, list, list]]:
     return out
 
 
+def check(res, names, status) -> None:
+    """Status 1 and one sentence naming the files; 0 where the command carries on (it then
+    names the file on stdout, as review and replay do for a damaged case); lint names them
+    on stdout beside its one-sentence summary."""
+    if status == 1:
+        assert_one_sentence(res, names=names)
+        return
+    assert "Traceback" not in res.stderr + res.stdout, res.stderr
+    if status == "lint":
+        assert_one_sentence(res)
+    else:
+        assert res.returncode == 0, (res.returncode, res.stderr)
+    for name in names:
+        assert name in res.stdout + res.stderr, (name, res.stdout[-300:])
+
+
 def test_every_command_with_broken_input_is_one_sentence_and_status_1(bad):
     cases = matrix(bad)
     before = sorted(str(p) for p in bad.rglob("*"))
 
     def run(case):
-        label, args, names = case
+        label, args, names, *rest = case
+        status = rest[0] if rest else 1
         try:
-            return label, args, names, run_cli(args, cwd=bad, timeout=30)
+            return label, args, names, status, run_cli(args, cwd=bad, timeout=30)
         except subprocess.TimeoutExpired:
-            return label, args, names, None
+            return label, args, names, status, None
 
     failures = []
     with ThreadPoolExecutor(max_workers=2) as pool:
-        for label, args, names, res in pool.map(run, cases):
+        for label, args, names, status, res in pool.map(run, cases):
             if res is None:
                 failures.append(f"{label} {[str(a)[:60] for a in args]}: still running after "
                                 "30 s (it should have stopped with one sentence)")
                 continue
             try:
-                assert_one_sentence(res, names=names)
+                check(res, names, status)
             except AssertionError as exc:
                 failures.append(f"{label} {[str(a)[:60] for a in args]}: "
                                 f"status {res.returncode}: {str(exc)[:300]}")
