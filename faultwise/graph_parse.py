@@ -10,6 +10,7 @@ from __future__ import annotations
 from pathlib import Path
 from types import MappingProxyType
 
+from faultwise.applicability import WHEN_KEYS
 from faultwise.knowledge_reader import (ID_RE, KnowledgeReader, Problems, is_number, key_line,
                                         key_text, read_yaml)
 from faultwise.nodes import (CLEARED, FAMILIES, MEASURE_OUTCOMES, STAGES, Check, Escalate, Fault,
@@ -22,10 +23,10 @@ OTHERWISE = "otherwise"      # outcome key that routes every outcome not listed
 _COMMON = ("id", "kind", "title", "stage", "families")
 KEYS = {
     "check": frozenset(_COMMON + ("how", "why", "cautions", "minutes", "expect", "choices",
-                                  "normal", "outcomes", OTHERWISE, "unable", "closing")),
+                                  "normal", "outcomes", OTHERWISE, "unable", "closing", "when")),
     "suspects": frozenset(_COMMON + ("why", "investigations", "exhausted")),
     "fault": frozenset(_COMMON + ("repair", "parts", "verify", "signature", "priors",
-                                  "cautions", "notes")),
+                                  "cautions", "notes", "when")),
     "escalate": frozenset(_COMMON + ("advice",)),
 }
 INVESTIGATION_KEYS = frozenset(("target", "label", "minutes"))
@@ -85,6 +86,47 @@ def _choices(r: KnowledgeReader) -> dict[str, str]:
     return out
 
 
+def _when_values(r: KnowledgeReader, key: str, raw, line: int | None) -> tuple[str, ...]:
+    """One ``when`` entry's values: a value or a list of them, each one WHEN_KEYS allows."""
+    allowed = WHEN_KEYS[key]
+    items = raw if isinstance(raw, list) else [raw]
+    hint = f"'{key}' takes " + ", ".join(allowed) + " (one value, or a list of them: any will do)"
+    if not items:
+        r.p.add(f"'when' condition '{key}' has no value", file=r.file, line=line, node=r.node,
+                key=f"when.{key}", hint=hint)
+        return ()
+    out: list[str] = []
+    for item in items:
+        if isinstance(item, bool) and allowed == ("yes", "no"):
+            item = "yes" if item else "no"     # YAML 1.1 reads an unquoted yes/no as a boolean
+        if not isinstance(item, str) or item.strip().lower() not in allowed:
+            r.p.add(f"'when' condition '{key}' has the unknown value {item!r}", file=r.file,
+                    line=line, node=r.node, key=f"when.{key}", hint=hint)
+            continue
+        value = item.strip().lower()
+        if value not in out:
+            out.append(value)
+    return tuple(out)
+
+
+def _when(r: KnowledgeReader) -> MappingProxyType:
+    """Parse ``when``: {key: value or [values]} with keys and values from WHEN_KEYS."""
+    raw = r.mapping("when")
+    out: dict[str, tuple[str, ...]] = {}
+    for key, value in (raw or {}).items():
+        line = key_line(raw, key) or r.line("when")
+        if not isinstance(key, str) or key not in WHEN_KEYS:
+            name = key_text(key) if not isinstance(key, str) else f"unknown 'when' key '{key}'"
+            r.p.add(name, file=r.file, line=line, node=r.node, key="when",
+                    hint="use " + ", ".join(WHEN_KEYS) + " (for example 'when: {rectifier: "
+                    "selenium}')")
+            continue
+        values = _when_values(r, key, value, line)
+        if values:
+            out[key] = values
+    return MappingProxyType(out)
+
+
 def _check(r: KnowledgeReader, base: dict) -> Check:
     expect = r.text("expect") or None
     has_choices = r.has("choices")
@@ -116,7 +158,7 @@ def _check(r: KnowledgeReader, base: dict) -> Check:
     return Check(**base, how=r.text("how"), why=r.text("why"), minutes=minutes,
                  outcomes=MappingProxyType(outcomes), normal=normal, expect=expect,
                  choices=MappingProxyType(choices), cautions=r.texts("cautions"),
-                 unable=r.text("unable") or None, closing=closing)
+                 unable=r.text("unable") or None, closing=closing, when=_when(r))
 
 
 def _investigations(r: KnowledgeReader) -> tuple[Investigation, ...]:
@@ -241,7 +283,7 @@ def _node(raw, file: str, stage: str, families: tuple[str, ...], problems: Probl
         return Fault(**base, repair=r.texts("repair"), parts=r.texts("parts"),
                      verify=r.texts("verify"), signature=_signature(r),
                      priors=MappingProxyType(_priors(r)), cautions=r.texts("cautions"),
-                     notes=r.text("notes"))
+                     notes=r.text("notes"), when=_when(r))
     return Escalate(**base, advice=r.text("advice", required=True))
 
 

@@ -37,6 +37,8 @@ class Check:
     choice) to a target node id or ``cleared``. ``normal`` is the outcome a healthy set
     gives. ``unable`` is where a skipped check goes (default: ``cleared``, the next suspect).
     ``closing``: done before any case of these families is closed (the leakage check).
+    ``when``: conditions on the set (key -> any of these values) for the check to apply;
+    empty: it applies to every set of its families (see :mod:`faultwise.applicability`).
     """
 
     id: str
@@ -53,6 +55,7 @@ class Check:
     cautions: tuple[str, ...] = ()
     unable: str | None = None
     closing: bool = False
+    when: Mapping[str, tuple[str, ...]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "check"
 
@@ -106,7 +109,10 @@ class Signature:
 
 @dataclass(frozen=True)
 class Fault:
-    """A conclusion: what is wrong, how to repair it, and how to prove the repair."""
+    """A conclusion: what is wrong, how to repair it, and how to prove the repair.
+
+    ``when``: conditions on the set for the fault to apply, as on :class:`Check`.
+    """
 
     id: str
     title: str
@@ -119,6 +125,7 @@ class Fault:
     priors: Mapping[str, float]          # symptom id -> weight (jobs per 100 with that complaint)
     cautions: tuple[str, ...] = ()
     notes: str = ""
+    when: Mapping[str, tuple[str, ...]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "fault"
 

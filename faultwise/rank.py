@@ -8,12 +8,19 @@ expected cost of an order is sum_i c_i * P(not found before step i).
 Fault probabilities are Dirichlet posterior means: the graph's prior weights become
 pseudo-counts ``alpha_f = S * w_f / sum(w)`` (S = ``knowledge.prior_strength`` equivalent
 cases) and the shop's closed cases add their counts ``n_f``: ``p_f = (alpha_f + n_f) / (S + N)``.
+
+Profile-aware ranking: ``applies(node_id) -> bool`` (from
+:func:`faultwise.applicability.applies_predicate`) drops the investigations whose target does
+not apply to the set on the bench (a suspects list applies when one of its investigations
+does, recursively) and sums an investigation's probability over the faults under it that
+apply; the shares are then renormalised over the investigations left, as before.
+``applies=None`` ranks for the family alone.
 """
 
 from __future__ import annotations
 
 import math
-from collections.abc import Iterable, Mapping
+from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, field
 
 from faultwise.errors import KnowledgeError
@@ -71,8 +78,31 @@ def fault_probabilities(knowledge, symptom: str, family: str,
                            float(knowledge.prior_strength))
 
 
-def investigation_cost(knowledge, inv: Investigation, family: str, _depth: int = 0) -> float:
-    """Minutes: the investigation's own, else its target check's, else the sum over a suspects target."""
+Applies = Callable[[str], bool]
+
+
+def target_applies(knowledge, target: str, family: str, applies: Applies | None = None,
+                   _depth: int = 0) -> bool:
+    """Family, then ``applies``: a check or fault by the predicate, a suspects list when one of
+    its investigations applies (recursively)."""
+    node = knowledge.nodes.get(target)
+    if node is None or not knowledge.applies(node, family):
+        return False
+    if applies is None:
+        return True
+    if isinstance(node, Suspects):
+        if _depth > len(knowledge.nodes):
+            raise KnowledgeError("suspects lists nest in a loop", node=target,
+                                 hint="run 'faultwise lint'")
+        return any(target_applies(knowledge, sub.target, family, applies, _depth + 1)
+                   for sub in node.investigations)
+    return bool(applies(target))
+
+
+def investigation_cost(knowledge, inv: Investigation, family: str, _depth: int = 0,
+                       applies: Applies | None = None) -> float:
+    """Minutes: the investigation's own, else its target check's, else the sum over a suspects
+    target's investigations that apply."""
     if inv.minutes is not None:
         return float(inv.minutes)
     node = knowledge.nodes.get(inv.target)
@@ -82,9 +112,9 @@ def investigation_cost(knowledge, inv: Investigation, family: str, _depth: int =
         if _depth > len(knowledge.nodes):
             raise KnowledgeError("suspects lists nest in a loop", node=inv.target,
                                  hint="run 'faultwise lint'")
-        return sum(investigation_cost(knowledge, sub, family, _depth + 1)
+        return sum(investigation_cost(knowledge, sub, family, _depth + 1, applies)
                    for sub in node.investigations
-                   if sub.target in knowledge.nodes and knowledge.applies(sub.target, family))
+                   if target_applies(knowledge, sub.target, family, applies))
     return 0.0   # a fault or escalate named directly costs nothing to reach
 
 
@@ -95,9 +125,13 @@ def _ratio(p: float, cost: float) -> float:
 
 
 def rank_investigations(knowledge, suspects_id: str, symptom: str, family: str,
-                        cleared: Iterable[str] = (), counts: Mapping[str, int] | None = None
-                        ) -> list[Ranked]:
-    """The not-cleared investigations of a suspects list, best p/c first, ties by written order."""
+                        cleared: Iterable[str] = (), counts: Mapping[str, int] | None = None,
+                        applies: Applies | None = None) -> list[Ranked]:
+    """The not-cleared investigations of a suspects list, best p/c first, ties by written order.
+
+    ``applies(node_id)``: drop investigations whose target does not apply to the set and sum
+    each one's probability over the faults under it that apply (None: the family decides).
+    """
     node = knowledge.node(suspects_id)
     if not isinstance(node, Suspects):
         raise KnowledgeError(f"'{suspects_id}' is not a suspects list", node=suspects_id,
@@ -109,15 +143,17 @@ def rank_investigations(knowledge, suspects_id: str, symptom: str, family: str,
     for inv in node.investigations:
         if inv.target in done or inv.target not in knowledge.nodes:
             continue
-        if not knowledge.applies(inv.target, family):
+        if not target_applies(knowledge, inv.target, family, applies):
             continue
         faults = knowledge.faults_under(inv.target, family)
+        if applies is not None:
+            faults = frozenset(f for f in faults if applies(f))
         rows.append((inv, sum(probs.get(f, 0.0) for f in faults), faults))
     total = sum(p for _, p, _ in rows)
     ranked = []
     for inv, p, faults in rows:
         share = p / total if total > 0 else 1.0 / len(rows)
-        cost = investigation_cost(knowledge, inv, family)
+        cost = investigation_cost(knowledge, inv, family, applies=applies)
         ranked.append(Ranked(inv, share, cost, _ratio(share, cost), faults,
                              {f: int(counts.get(f, 0)) for f in sorted(faults)}))
     order = sorted(range(len(ranked)), key=lambda i: (-ranked[i].ratio, i))

@@ -201,4 +201,5 @@ def case_files(folder: Path) -> list[Path]:
     folder = Path(folder)
     if not folder.is_dir():
         return []
-    return sorted(p for p in folder.glob("*.json") if not p.name.startswith("."))
+    return sorted(p for p in folder.glob("*.json")
+                  if not p.name.startswith(".") and p.is_file())   # a FIFO would block the read

@@ -1,11 +1,13 @@
 """The sweep: every fault signature walked through the graph, and how fast the walk finds it.
 
 For every fault with a signature, every symptom in its ``priors`` whose walk can reach it
-(``Knowledge.faults_for``) and every family it applies to, the sweep picks a demo set of
-that family, turns the signature into readings for that set (a class becomes a number
-from the set's band through ``walk.representative_value``; numbers are used as written;
-every other reading is nominal and every other observation normal, as ``auto_walk``
-does), walks automatically and records whether the walk concluded that fault, after how
+(``Knowledge.faults_for``) and every family it applies to, the sweep picks the first demo
+set of that family (file order) on which the fault applies (its ``when`` holds, see
+:mod:`faultwise.applicability`; a fault that applies on none of them is listed under
+``no_set`` for that family, not walked), turns the signature into readings for that set
+(a class becomes a number from the set's band through ``walk.representative_value``;
+numbers are used as written; every other reading is nominal and every other observation
+normal, as ``auto_walk`` does), walks automatically and records whether the walk concluded that fault, after how
 many checks and minutes (DESIGN section 12; DEVELOPERS.md "Sweep and benchmarks").
 
 Figures per (symptom, family) pair are prior-weighted: the weights are
@@ -122,6 +124,14 @@ class Unreachable:
 
 
 @dataclass(frozen=True)
+class NoSet:
+    """Faults of a family that apply on none of its demo sets (or the family has none)."""
+
+    family: str
+    faults: tuple[str, ...]
+
+
+@dataclass(frozen=True)
 class LearningCheck:
     """Expected checks on the later half of the closed cases, with and without learned counts.
 
@@ -154,7 +164,7 @@ class SweepReport:
     walks: tuple[SweepWalk, ...]
     pairs: tuple[PairFigures, ...]
     sets: Mapping[str, tuple[str, ...]]          # family -> set file names walked
-    no_set: tuple[str, ...]                      # families with faults but no demo set
+    no_set: tuple[NoSet, ...]                    # per family: faults with no demo set to walk on
     unreachable: tuple[Unreachable, ...]
     mean_checks: float
     entropy_bits: float
@@ -355,6 +365,20 @@ def sweep_targets(knowledge, *, families: Iterable[str] = FAMILIES,
     return targets, unreachable
 
 
+def fault_applies_on(knowledge, fault_id: str, demo: DemoSet) -> bool:
+    """Whether the fault applies on this demo set (family and ``when``)."""
+    from faultwise.applicability import node_applies
+
+    return node_applies(knowledge.node(fault_id), demo.profile, demo.expectations)
+
+
+def sets_for_fault(knowledge, fault_id: str, demos: Sequence[DemoSet], *,
+                   all_sets: bool = False) -> tuple[DemoSet, ...]:
+    """The demo sets (in file order) a fault is walked on: the first it applies on, or all."""
+    fitting = tuple(d for d in demos if fault_applies_on(knowledge, fault_id, d))
+    return fitting if all_sets else fitting[:1]
+
+
 def walk_signature(knowledge, fault_id: str, symptom: str, demo: DemoSet, *,
                    order: OrderFn | None = None, counts: Mapping | None = None) -> SweepWalk:
     """Walk one fault's signature for one symptom on one demo set."""
@@ -420,13 +444,21 @@ def run_sweep(knowledge, sets: Mapping[str, Sequence[DemoSet]], *, family: str |
                              hint="use one of " + ", ".join(sorted(knowledge.symptoms)))
     families = (family,) if family else FAMILIES
     targets, unreachable = sweep_targets(knowledge, families=families, symptom=symptom)
-    chosen = {fam: tuple(s if all_sets else s[:1]) for fam, s in sets.items() if s}
-    no_set = tuple(sorted({fam for _, fam, _ in targets if fam not in chosen}))
     orders = baseline_orders(knowledge, seed) if baselines and walk_has_order_hook() else None
     walks: list[SweepWalk] = []
     base_walks: dict[str, list[SweepWalk]] = {name: [] for name in (orders or {})}
+    used: dict[str, set[str]] = {}
+    missing: dict[str, set[str]] = {}
+    placed: dict[tuple[str, str], tuple[DemoSet, ...]] = {}
     for sym, fam, fault in targets:
-        for demo in chosen.get(fam, ()):
+        if (fam, fault) not in placed:
+            placed[fam, fault] = sets_for_fault(knowledge, fault, sets.get(fam, ()),
+                                                all_sets=all_sets)
+        demos = placed[fam, fault]
+        if not demos:
+            missing.setdefault(fam, set()).add(fault)
+        for demo in demos:
+            used.setdefault(fam, set()).add(demo.name)
             walks.append(walk_signature(knowledge, fault, sym, demo))
             for name, fn in (orders or {}).items():
                 base_walks[name].append(walk_signature(knowledge, fault, sym, demo, order=fn))
@@ -438,10 +470,11 @@ def run_sweep(knowledge, sets: Mapping[str, Sequence[DemoSet]], *, family: str |
         pairs.append(pair_figures(knowledge, key[0], key[1], mine, theirs))
     overall_base = ({n: _mean([p.baselines[n] for p in pairs]) for n in orders}
                     if orders is not None else None)
+    walked_sets = {fam: tuple(d.name for d in sets.get(fam, ()) if d.name in used[fam])
+                   for fam in FAMILIES if fam in used}
+    no_set = tuple(NoSet(fam, tuple(sorted(missing[fam]))) for fam in FAMILIES if fam in missing)
     return SweepReport(
-        tuple(walks), tuple(pairs),
-        {fam: tuple(d.name for d in ds) for fam, ds in chosen.items() if fam in families},
-        no_set, tuple(unreachable),
+        tuple(walks), tuple(pairs), walked_sets, no_set, tuple(unreachable),
         _mean([p.mean_checks for p in pairs]), _mean([p.entropy_bits for p in pairs]),
         _mean([p.mean_minutes for p in pairs]), _mean([p.known_cause_minutes for p in pairs]),
         overall_base, {n: tuple(bw) for n, bw in base_walks.items()}, seed)
@@ -495,7 +528,7 @@ def learning_check(knowledge, cases_dir, sets: Mapping[str, Sequence[DemoSet]],
         if reason:
             skipped.append((case.id, reason))
             continue
-        demo = sets[case.family][0]
+        demo = sets_for_fault(knowledge, case.fault, sets[case.family])[0]
         pair = counts.get(case.symptom, {}).get(case.family, {})
         prior.append(walk_signature(knowledge, case.fault, case.symptom, demo, counts={}))
         learned.append(walk_signature(knowledge, case.fault, case.symptom, demo, counts=pair))
@@ -522,4 +555,6 @@ def _unwalkable(knowledge, case, sets) -> str:
         return f"the walk for '{case.symptom}' cannot reach '{case.fault}'"
     if not sets.get(case.family):
         return f"no demo set of the {case.family} family"
+    if not sets_for_fault(knowledge, case.fault, sets[case.family]):
+        return f"no demo set of the {case.family} family on which '{case.fault}' applies"
     return ""

@@ -79,7 +79,7 @@ def sweep_to_dict(report: SweepReport) -> dict:
         "failures": [walk_to_dict(w) for w in report.failures],
         "pairs": [pair_to_dict(p) for p in report.pairs],
         "sets": {k: list(v) for k, v in report.sets.items()},
-        "no_set": list(report.no_set),
+        "no_set": {n.family: list(n.faults) for n in report.no_set},
         "unreachable": [{"fault": u.fault, "symptom": u.symptom, "family": u.family}
                         for u in report.unreachable],
         "learning": learning_to_dict(report.learning),
@@ -113,8 +113,9 @@ def sweep_text(report: SweepReport, *, learning: bool = False) -> str:
             lines.append(f"  {w.fault} for {w.symptom} on {w.family} ({w.set_name}):")
             lines.append(f"    {path_text(w)}")
         lines.append("")
-    for fam in report.no_set:
-        lines.append(f"note: no demo set of the {fam} family, so its signatures were not walked")
+    for gap in report.no_set:
+        lines.append(f"note: {len(gap.faults)} fault(s) of the {gap.family} family apply on none "
+                     f"of its demo sets, so they were not walked: {', '.join(gap.faults)}")
     if report.unreachable:
         lines.append(f"note: {len(report.unreachable)} prior(s) name a symptom whose walk "
                      "cannot reach the fault:")

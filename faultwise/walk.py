@@ -12,6 +12,16 @@ recorded) -> ``verify`` (the fault's verify checks, classified, not routed) -> `
 (the knowledge's closing checks for the family: the leakage check of line-powered sets)
 -> ``done`` (closed with an outcome).
 
+Applicability (DEVELOPERS.md, "Walk"): a node applies to this walk when the set's family is
+in its families, a measurement's expectation name is among the walk's expectations, and
+its ``when`` holds for the profile (:mod:`faultwise.applicability`). Ranking drops the
+suspects that do not apply and counts only the faults that do. When an outcome (or an
+``unable`` or ``exhausted`` route) leads into a check that does not apply, the walk follows
+that check's ``unable`` route (default ``cleared``) without recording any event; a route
+into a fault that does not apply goes to ``cleared``. The profile is part of the case, so
+this is as deterministic as the rest of the walk. Verify and closing queues leave out the
+checks that do not apply.
+
 No UI imports; nothing here prints.
 """
 
@@ -228,6 +238,9 @@ class Walk:
 
             expectations = expect(profile)
         self.expectations = dict(expectations)
+        from faultwise.applicability import applies_predicate
+
+        self._applies = applies_predicate(knowledge, profile, self.expectations)
         self.counts = dict(counts if counts is not None
                            else knowledge.learned.pair(symptom, self.family))
         self.clock = clock or _utc_now
@@ -577,14 +590,15 @@ class Walk:
         return "; ".join(notes) or None
 
     def _closing_ids(self) -> list[str]:
-        return [c.id for c in self.knowledge.closing_checks(self.family)]
+        return [c.id for c in self.knowledge.closing_checks(self.family) if self._applies(c.id)]
 
     def _verify_ids(self, fault_id: str | None) -> list[str]:
         fault = self.knowledge.nodes.get(fault_id) if fault_id else None
         out = []
         for cid in getattr(fault, "verify", ()):
             node = self.knowledge.nodes.get(cid)
-            if isinstance(node, Check) and self.family in node.families and cid not in out:
+            if (isinstance(node, Check) and self.family in node.families and self._applies(cid)
+                    and cid not in out):
                 out.append(cid)
         return out
 
@@ -758,6 +772,10 @@ class Walk:
             if self.family not in node.families:
                 target = CLEARED
                 continue
+            if isinstance(node, (Check, Fault)) and not self._applies(target):
+                # not for this set: a check is passed by its `unable` route, a fault cleared
+                target = (node.unable or CLEARED) if isinstance(node, Check) else CLEARED
+                continue
             if isinstance(node, Check):
                 if target in st.memory:
                     outcome = st.memory[target]
@@ -791,7 +809,7 @@ class Walk:
         from faultwise.rank import rank_investigations
 
         ranked = rank_investigations(self.knowledge, frame.suspects, self.symptom, self.family,
-                                     frame.cleared, self.counts)
+                                     frame.cleared, self.counts, applies=self._applies)
         if self.order is not None:
             ranked = list(self.order(ranked, self.knowledge.node(frame.suspects)))
         return ranked

@@ -140,7 +140,7 @@ class Tmux:
     """One private tmux server (its own socket), ended by kill-server on that socket only."""
 
     def __init__(self, tmp: Path) -> None:
-        self.socket = f"faultwise-rb-{os.getpid()}-{tmp.name}"[:80]
+        self.socket = f"faultwise-rb-{os.getpid()}-{tmp.parent.name}-{tmp.name}"[-90:]
 
     def run(self, *args: str) -> str:
         return subprocess.run([TMUX, "-L", self.socket, *args], capture_output=True, text=True,
@@ -149,7 +149,7 @@ class Tmux:
     def screen(self) -> str:
         return self.run("capture-pane", "-p")
 
-    def wait_for(self, text: str, timeout: float = 30.0) -> str:
+    def wait_for(self, text: str, timeout: float = 45.0) -> str:
         end = time.monotonic() + timeout
         while time.monotonic() < end:
             shown = self.screen()
@@ -158,7 +158,7 @@ class Tmux:
             time.sleep(0.1)
         raise AssertionError(f"'{text}' never showed:\n{self.screen()}")
 
-    def wait_for_any(self, *texts: str, timeout: float = 30.0) -> str:
+    def wait_for_any(self, *texts: str, timeout: float = 45.0) -> str:
         end = time.monotonic() + timeout
         while time.monotonic() < end:
             shown = self.screen()
@@ -177,7 +177,7 @@ class Tmux:
         self.run("kill-server")
 
 
-def wait_events(path: Path, n: int, timeout: float = 20.0) -> dict:
+def wait_events(path: Path, n: int, timeout: float = 45.0, tmux=None) -> dict:
     end = time.monotonic() + timeout
     while time.monotonic() < end:
         if path.is_file():
@@ -185,7 +185,8 @@ def wait_events(path: Path, n: int, timeout: float = 20.0) -> dict:
             if len(data["events"]) >= n:
                 return data
         time.sleep(0.1)
-    raise AssertionError(f"the case never reached {n} events")
+    raise AssertionError(f"the case never reached {n} events; the screen:\n"
+                         f"{tmux.screen() if tmux else '?'}")
 
 
 @pytest.mark.skipif(TMUX is None or not FAULTWISE.exists(),
@@ -218,21 +219,21 @@ def test_tui_killed_mid_walk_reopens_at_the_last_answer(tmp_path, kill):
         tmux.wait_for("sets in the library")
         for text in ("5 tube", "hums loudly", "ticket 77"):   # set, complaint, customer
             tmux.keys(text, literal=True)
-            time.sleep(0.3)
+            time.sleep(0.6)
             tmux.keys("Enter")
-            time.sleep(0.5)
+            time.sleep(1.0)           # typed-ahead keys can land in the wrong field (report)
         path = cases / "20261201-B1-001.json"
         script = [("1", "Do the heaters glow?"), (low, "DC at the first filter"), ("2", "bridg")]
-        n_events = len(wait_events(path, 0)["events"])
+        n_events = len(wait_events(path, 0, tmux=tmux)["events"])
         for typed, title in script[:answers]:
             while "Understood" in tmux.wait_for_any(title, "Understood"):
                 tmux.keys("Enter")                           # the caution before this check
-                n_events = len(wait_events(path, n_events + 1)["events"])
+                n_events = len(wait_events(path, n_events + 1, tmux=tmux)["events"])
                 time.sleep(0.2)
             tmux.keys(typed, literal=True)
             if len(typed) > 1:
                 tmux.keys("Enter")
-            n_events = len(wait_events(path, n_events + 1)["events"])
+            n_events = len(wait_events(path, n_events + 1, tmux=tmux)["events"])
         pid = tmux.pane_pid()
         if kill == "kill-9":
             os.kill(pid, signal.SIGKILL)
@@ -249,12 +250,13 @@ def test_tui_killed_mid_walk_reopens_at_the_last_answer(tmp_path, kill):
             os.kill(pid, signal.SIGKILL)
         data = read_case_bytes(path.read_bytes(), path)
         answered = [e for e in data["events"] if e["type"] in ("answer", "skip")]
-        assert len(answered) == answers
+        assert len(answered) == answers, data["events"]
         assert [e["raw"] for e in answered] == [t for t, _ in script[:answers]]
         walk = walk_from_case(load_knowledge(kb), data)
         assert [s.raw for s in walk.steps] == [t for t, _ in script[:answers]]
         next_title = walk.prompt().node.title
         # Start again on the same folder: the dead process's lock is taken over on resume.
+        tmux.close()                                         # its session has ended
         tmux = Tmux(tmp_path / "again")
         tmux.run("new-session", "-d", "-x", "100", "-y", "30", cmd)
         tmux.wait_for("1 open")

@@ -324,7 +324,7 @@ def test_folder_gone_while_a_case_is_open(tmp_path, how):
 
 def test_path_with_spaces_and_non_ascii_works_end_to_end(tmp_path):
     folder = tmp_path / NON_ASCII
-    store, case, walk = _walk_and_case(folder)
+    _, case, walk = _walk_and_case(folder)
     walk.answer("good")
     case.record(walk)
     case.close()

@@ -17,8 +17,6 @@ from __future__ import annotations
 import re
 import shutil
 
-import pytest
-
 from rb_helpers import (KB_WALK, TUI_KB, assert_one_sentence, case_bytes, clock,
                         recorded_case, run_cli)
 

@@ -185,7 +185,7 @@ def test_every_command_with_broken_input_is_one_sentence_and_status_1(bad):
         label, args, names, *rest = case
         status = rest[0] if rest else 1
         try:
-            return label, args, names, status, run_cli(args, cwd=bad, timeout=30)
+            return label, args, names, status, run_cli(args, cwd=bad, timeout=15)
         except subprocess.TimeoutExpired:
             return label, args, names, status, None
 
@@ -194,7 +194,7 @@ def test_every_command_with_broken_input_is_one_sentence_and_status_1(bad):
         for label, args, names, status, res in pool.map(run, cases):
             if res is None:
                 failures.append(f"{label} {[str(a)[:60] for a in args]}: still running after "
-                                "30 s (it should have stopped with one sentence)")
+                                "15 s (it should have stopped with one sentence)")
                 continue
             try:
                 check(res, names, status)
@@ -204,5 +204,5 @@ def test_every_command_with_broken_input_is_one_sentence_and_status_1(bad):
     assert len(cases) >= 40
     assert not failures, f"{len(failures)} of {len(cases)} runs broke the rule:\n" + \
         "\n".join(failures)
-    assert sorted(str(p) for p in bad.rglob("*")) == before or \
-        all("demo-new" in p for p in set(str(p) for p in bad.rglob("*")) - set(before))
+    after = sorted(str(p) for p in bad.rglob("*") if "demo-new" not in str(p))
+    assert after == [p for p in before if "demo-new" not in p]     # nothing else was written

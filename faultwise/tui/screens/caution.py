@@ -1,10 +1,15 @@
-"""Cautions a check needs, shown before the check and acknowledged once per case."""
+"""Cautions a check needs, shown before the check and acknowledged once per case.
+
+The caution texts scroll inside the dialog (Up/Down, PgUp/PgDn, the mouse wheel) while the
+title and the buttons stay docked at its top and bottom, so "Understood" is on screen at
+80x24 however many cautions a step names.
+"""
 
 from __future__ import annotations
 
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Horizontal, Vertical
+from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.content import Content
 from textual.screen import ModalScreen
 from textual.widgets import Button, Static
@@ -16,6 +21,10 @@ class CautionScreen(ModalScreen[bool]):
     BINDINGS = [
         Binding("enter", "acknowledge", "Understood", priority=True),
         Binding("ctrl+l", "leave", "Leave the case"),
+        Binding("down", "scroll_text(1)", "Scroll", show=False),
+        Binding("up", "scroll_text(-1)", "Scroll", show=False),
+        Binding("pagedown", "scroll_text(10)", "Page", show=False),
+        Binding("pageup", "scroll_text(-10)", "Page", show=False),
     ]
 
     def __init__(self, cautions, *, reminder: bool = False) -> None:
@@ -26,14 +35,18 @@ class CautionScreen(ModalScreen[bool]):
     def compose(self) -> ComposeResult:
         with Vertical(classes="modal-box -danger", id="caution-box"):
             title = "Cautions for this check" if self.reminder else "Before this check"
-            yield Static(title, classes="modal-title")
-            for caution in self.cautions:
-                yield Static(Content.from_markup("[b]⚠ $title[/b]\n$text", title=caution.title,
-                                                 text=caution.text), classes="caution-text")
-            with Horizontal(classes="modal-buttons"):
+            if len(self.cautions) > 1:
+                title += f" ({len(self.cautions)} cautions)"
+            yield Static(title, classes="modal-title", id="caution-title")
+            with Horizontal(classes="modal-buttons", id="caution-buttons"):
                 if not self.reminder:
                     yield Button("Leave the case", id="caution-leave")
                 yield Button("Understood", id="caution-ok", variant="error")
+            with VerticalScroll(id="caution-scroll", can_focus=False):
+                for caution in self.cautions:
+                    yield Static(Content.from_markup("[b]⚠ $title[/b]\n$text",
+                                                     title=caution.title, text=caution.text),
+                                 classes="caution-text")
 
     def on_mount(self) -> None:
         self.query_one("#caution-ok", Button).focus()
@@ -50,3 +63,7 @@ class CautionScreen(ModalScreen[bool]):
 
     def action_leave(self) -> None:
         self.dismiss(False)
+
+    def action_scroll_text(self, lines: int) -> None:
+        self.query_one("#caution-scroll", VerticalScroll).scroll_relative(y=lines,
+                                                                          animate=False)
