@@ -23,7 +23,8 @@ from collections.abc import Callable, Mapping
 from types import MappingProxyType
 
 from faultwise.nodes import Check, Fault, Suspects
-from faultwise.profile import CIRCUITS, MATERIALS, POLARITIES, RECTIFIERS, TRANSISTOR_ROLES, TUBE_ROLES
+from faultwise.profile import (CIRCUITS, MATERIALS, POLARITIES, RECTIFIERS, TRANSISTOR_ROLES,
+                               TUBE_ROLES)
 
 YES_NO = ("yes", "no")
 

@@ -150,6 +150,11 @@ def read_case_bytes(raw: bytes, file="case") -> dict:
             raise _damage(file, f"missing or bad key '{key}'")
     if not all(isinstance(e, dict) for e in data["events"]):
         raise _damage(file, "missing or bad key 'events'")
+    from faultwise.case_schema import case_problem
+
+    problem = case_problem(data)
+    if problem:
+        raise _damage(file, problem)
     return data
 
 

@@ -88,12 +88,15 @@ def _profiles(knowledge_dir: Path):
     return by_family
 
 
-def _shop_weights(knowledge, symptom: str, family: str) -> dict[str, float]:
-    """The invented shop's fault mix: the graph's probabilities, second-likeliest x4."""
+def _shop_weights(knowledge, symptom: str, profile) -> dict[str, float]:
+    """The invented shop's fault mix for this set: the graph's probabilities, second-likeliest x4."""
+    from faultwise.applicability import applying_faults
+    from faultwise.expect import expect
     from faultwise.rank import fault_probabilities
 
-    probs = fault_probabilities(knowledge, symptom, family, counts={})
-    faults = [f for f in probs if knowledge.nodes[f].signature is not None]
+    probs = fault_probabilities(knowledge, symptom, profile.family, counts={})
+    fits = applying_faults(knowledge, profile, expect(profile))
+    faults = [f for f in probs if f in fits and knowledge.nodes[f].signature is not None]
     ordered = sorted(faults, key=lambda f: (-probs[f], f))
     weights = {f: probs[f] for f in ordered}
     if len(ordered) > 1:
@@ -194,7 +197,7 @@ def _one_case(store, knowledge, profiles, rng: random.Random, clock: _Clock, pla
         customer = f"ticket {rng.randint(4000, 4999)}, {rng.choice(CUSTOMERS)}"
     else:
         source, profile, symptom, customer = forced
-    weights = _shop_weights(knowledge, symptom, profile.family)
+    weights = _shop_weights(knowledge, symptom, profile)
     fault_id = rng.choices(list(weights), weights=list(weights.values()))[0]
     fault = knowledge.nodes[fault_id]
     complaint = rng.choice(COMPLAINTS.get(symptom, ["see the ticket"]))
@@ -210,7 +213,7 @@ def _one_case(store, knowledge, profiles, rng: random.Random, clock: _Clock, pla
             case.record(walk)
             return case.id, (source, profile, symptom, customer)
         if plan == "off-graph":
-            _diagnose(walk, fault, rng, clock, case, stop_after=2)
+            _diagnose(walk, fault, rng, clock, case, stop_after=1)
             if walk.phase == "diagnose":
                 walk.off_graph(OFF_GRAPH[rng.randrange(len(OFF_GRAPH))])
         else:

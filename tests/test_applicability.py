@@ -142,7 +142,8 @@ def test_dropping_resistor_key_follows_the_heater_arithmetic(name):
     profile, ex = _set(name)
     if profile.family == "series-string":
         # Ohm's law: (line - sum of heater volts) / string current > 0 means a dropper
-        needs = (profile.mains_v - sum(t.heater_v for t in profile.tubes)) / profile.tubes[0].heater_a > 0
+        heaters_v = sum(t.heater_v for t in profile.tubes)
+        needs = (profile.mains_v - heaters_v) / profile.tubes[0].heater_a > 0
     else:
         needs = False                  # heaters on their own winding: no dropping resistor
     assert node_applies(_check({"dropping-resistor": ["yes"]}), profile, ex) is needs

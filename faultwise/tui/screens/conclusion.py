@@ -86,7 +86,7 @@ class ConclusionScreen(CaseScreen):
         from faultwise.tui.screens.walk import map_states
 
         self.query_one(StageMap).show(map_states(self.walk), prompt.stage or stage)
-        self.query_one(History).show(self.walk.events, self.walk.steps)
+        self.query_one(History).show(self.walk.events, self.walk.steps, self.walk.knowledge)
         title = self.query_one("#conclusion-title", Static)
         steps = self.query_one("#repair-steps", Static)
         if fault is not None:

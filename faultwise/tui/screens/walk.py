@@ -101,7 +101,7 @@ class WalkScreen(CaseScreen):
         panel = self.query_one(CheckPanel)
         escalate = self.query_one("#escalate", Static)
         self.query_one(StageMap).show(map_states(self.walk), prompt.stage)
-        self.query_one(History).show(self.walk.events, self.walk.steps)
+        self.query_one(History).show(self.walk.events, self.walk.steps, self.walk.knowledge)
         self.query_one("#guidance-text", Static).update(guidance_for(prompt, self.walk.knowledge))
         context = " › ".join(f.current_label or f.title for f in prompt.context)
         self.query_one("#walk-context", Static).update(

@@ -1,21 +1,47 @@
-"""The steps of a case so far, with their classification, one row per event (keyed by n)."""
+"""The steps of a case so far, with their classification, one row per event (keyed by n).
+
+The "#" column numbers the checks of the case (1, 2, 3...: answered and skipped checks, in
+every phase); other events (notes, parts, off-graph findings...) carry no number and a
+word in the result column, in italics.
+"""
 
 from __future__ import annotations
+
+from typing import Iterable, Mapping
 
 from textual.widgets import DataTable
 
 MARKS = {True: "✓", False: "!"}
+CHECK_EVENTS = ("answer", "skip")
 
 
-def event_rows(events, steps) -> list[tuple[str, tuple[str, str, str, str]]]:
-    """(row key, (n, result, reading, what)) for each event worth showing, oldest first."""
+def check_numbers(events: Iterable[Mapping]) -> dict[int, int]:
+    """Event n -> the check's step number within the case (answers and skips, 1, 2, 3...)."""
+    numbers: dict[int, int] = {}
+    for event in events:
+        if event.get("type") in CHECK_EVENTS:
+            numbers[int(event.get("n", 0))] = len(numbers) + 1
+    return numbers
+
+
+def node_title(knowledge, node_id) -> str:
+    """The node's title when the knowledge has it, else the id as recorded."""
+    node = knowledge.nodes.get(node_id) if knowledge is not None and node_id else None
+    return getattr(node, "title", None) or str(node_id or "")
+
+
+def event_rows(events, steps, knowledge=None) -> list[tuple[str, tuple[str, str, str, str]]]:
+    """(row key, (step number, result, reading, what)) for each event worth showing, oldest
+    first; the key is the event's n, the step number is empty for non-check events."""
     by_n = {s.n: s for s in steps}
+    numbers = check_numbers(events)
     rows = []
     for e in events:
         n = int(e.get("n", 0))
+        key = str(n)
         kind = e.get("type")
         step = by_n.get(n)
-        if kind in ("answer", "skip") and step is not None:
+        if kind in CHECK_EVENTS and step is not None:
             if kind == "skip":
                 result = "skipped"
                 reading = e.get("reason") or "-"
@@ -23,27 +49,27 @@ def event_rows(events, steps) -> list[tuple[str, tuple[str, str, str, str]]]:
                 result = f"{MARKS[step.normal]} {step.outcome}"
                 reading = step.raw or "-"
             phase = "" if step.phase == "diagnose" else f"[{step.phase}] "
-            rows.append((str(n), (str(n), result, reading, phase + step.title)))
+            rows.append((key, (str(numbers[n]), result, reading, phase + step.title)))
         elif kind == "note":
-            rows.append((str(n), (str(n), "note", "", str(e.get("text", "")))))
+            rows.append((key, ("", "note", "", str(e.get("text", "")))))
         elif kind == "off-graph":
-            rows.append((str(n), (str(n), "off-graph", "", str(e.get("finding", "")))))
+            rows.append((key, ("", "off-graph", "", str(e.get("finding", "")))))
         elif kind == "parts":
             parts = ", ".join(e.get("parts") or ()) or "none"
-            rows.append((str(n), (str(n), "parts", "", parts)))
+            rows.append((key, ("", "parts", "", parts)))
         elif kind == "resume":
-            after = "diagnosis resumed after " + str(e.get("fault", ""))
-            rows.append((str(n), (str(n), "not cured", "", after)))
+            after = "diagnosis resumed after " + node_title(knowledge, e.get("fault"))
+            rows.append((key, ("", "not cured", "", after)))
         elif kind == "to-closing":
-            rows.append((str(n), (str(n), "closing", "", "straight to the closing checks")))
+            rows.append((key, ("", "closing", "", "straight to the closing checks")))
         elif kind == "close":
-            rows.append((str(n), (str(n), "closed", f"{e.get('minutes', '-')} min",
-                                  str(e.get("outcome", "")))))
+            rows.append((key, ("", "closed", f"{e.get('minutes', '-')} min",
+                               str(e.get("outcome", "")))))
     return rows
 
 
 class History(DataTable):
-    """Read-only table of the case's events; ``show(events, steps)`` refills it."""
+    """Read-only table of the case's events; ``show(events, steps, knowledge)`` refills it."""
 
     DEFAULT_CSS = """
     History { height: 1fr; overflow-x: hidden; }
@@ -58,12 +84,16 @@ class History(DataTable):
         self.add_column("Input", key="reading", width=12)
         self.add_column("Step", key="what")
 
-    def show(self, events, steps) -> None:
+    def show(self, events, steps, knowledge=None) -> None:
         from rich.text import Text
 
         self.clear()
-        for key, (n, result, reading, what) in event_rows(events, steps):
-            style = "bold" if result.startswith("!") else ""
-            self.add_row(n, Text(result, style=style), Text(reading), Text(what), key=key)
+        for key, (number, result, reading, what) in event_rows(events, steps, knowledge):
+            if not number:
+                style = "italic"
+            else:
+                style = "bold" if result.startswith("!") else ""
+            self.add_row(Text(number, justify="right"), Text(result, style=style),
+                         Text(reading), Text(what), key=key)
         if self.row_count:
             self.move_cursor(row=self.row_count - 1)

@@ -1,7 +1,10 @@
 """The receiver as a row of stage boxes, signal path left to right, the supply beside it.
 
 Each box shows its stage's state as a symbol AND a word (never colour alone) and is
-coloured by state; the stage of the current check has a heavy border.
+coloured by state; the stage of the current check has a heavy border. Once the walk has
+concluded a fault, only the faulty stage stands out: stages that were suspected along the
+way but never cleared are "not needed" (the fault explains the complaint), cleared ones stay
+cleared.
 """
 
 from __future__ import annotations
@@ -15,6 +18,7 @@ from textual.content import Content
 from textual.widgets import Static
 
 UNTESTED, SUSPECT, CLEARED, FAULTY = "untested", "suspect", "cleared", "faulty"
+NOT_NEEDED = "not-needed"
 
 # (box id, label, domain stage): the speaker belongs to the audio stage in the graph.
 BOXES = (
@@ -32,6 +36,7 @@ STATE_TEXT = {
     SUSPECT: "? suspect",
     CLEARED: "✓ cleared",
     FAULTY: "✗ FAULTY",
+    NOT_NEEDED: "– no need",
 }
 
 
@@ -47,7 +52,8 @@ class StepView:
 
 def stage_states(steps: Iterable[StepView], fault_stage: str | None) -> dict[str, str]:
     """Stage -> state: any abnormal diagnose answer makes a stage suspect, answers that
-    were all normal clear it, a skipped check changes nothing, the conclusion is faulty."""
+    were all normal clear it, a skipped check changes nothing. With a concluded fault
+    (``fault_stage``) its stage is faulty and every other suspect is not needed."""
     states: dict[str, str] = {}
     for step in steps:
         if step.phase != "diagnose" or step.outcome == "skipped":
@@ -57,6 +63,8 @@ def stage_states(steps: Iterable[StepView], fault_stage: str | None) -> dict[str
         elif states.get(step.stage) != SUSPECT:
             states[step.stage] = CLEARED
     if fault_stage:
+        states = {stage: NOT_NEEDED if state == SUSPECT else state
+                  for stage, state in states.items()}
         states[fault_stage] = FAULTY
     return states
 
@@ -100,12 +108,16 @@ class StageMap(Horizontal):
         color: $text-muted;
     }
     StageMap #stage-supply {
-        margin-left: 1;
-        border: round $secondary 60%;
+        margin-left: 1;     /* beside the signal path; its border follows its state */
     }
     StageMap .stage-box.-suspect { color: $warning; border: round $warning; }
     StageMap .stage-box.-cleared { color: $success; border: round $success 70%; }
     StageMap .stage-box.-faulty { color: $error; text-style: bold; border: round $error; }
+    StageMap .stage-box.-not-needed {
+        color: $secondary;
+        text-style: italic;
+        border: dashed $secondary 50%;
+    }
     StageMap .stage-box.-current {
         border: heavy $accent;
         background: $accent 20%;

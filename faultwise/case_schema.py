@@ -1,0 +1,102 @@
+"""The shape of a case file, checked when it is read (DEVELOPERS.md, "Case file").
+
+A case file may have been edited by hand, merged by git or written by another shop tool.
+Everything that reads a case (the walk on resume, replay, review, the job report) relies
+on the types below, so a file that breaks them is damaged, reported with the first bad key,
+and never written. Keys not listed here are kept and ignored (a later format may add them).
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any, Mapping
+
+EVENT_TYPES = ("answer", "skip", "parts", "off-graph", "resume", "to-closing", "note",
+               "acknowledge", "close", "reopen")
+_TEXT, _NUMBER, _FLAG, _LIST_OF_TEXT, _MAP = "text", "number", "flag", "list of text", "mapping"
+
+TOP = {"id": _TEXT, "bench": _TEXT, "status": _TEXT, "opened": _TEXT, "updated": _TEXT,
+       "closed": _TEXT, "customer": _TEXT, "set": _MAP, "complaint": _TEXT, "symptom": _TEXT,
+       "family": _TEXT, "knowledge": _TEXT, "apprentice": _FLAG, "acknowledged": _LIST_OF_TEXT,
+       "conclusion": _MAP, "off_graph": _TEXT, "parts": _LIST_OF_TEXT, "outcome": _TEXT,
+       "minutes": _NUMBER, "reopened_from": _TEXT}
+NULLABLE = {"closed", "conclusion", "off_graph", "outcome", "minutes", "reopened_from"}
+REQUIRED = ("id", "events")
+
+EVENT = {"n": _NUMBER, "at": _TEXT, "type": _TEXT, "phase": _TEXT, "node": _TEXT,
+         "expect": _TEXT, "band": _MAP, "raw": _TEXT, "value": _NUMBER, "outcome": _TEXT,
+         "reason": _TEXT, "text": _TEXT, "caution": _TEXT, "finding": _TEXT,
+         "parts": _LIST_OF_TEXT, "fault": _TEXT, "minutes": _NUMBER}
+EVENT_NULLABLE = {"expect", "band", "raw", "value", "node", "minutes", "phase", "outcome"}
+EVENT_REQUIRED = {"answer": ("node", "outcome"), "skip": ("node",), "parts": ("parts",),
+                  "off-graph": ("finding",), "resume": (), "to-closing": (), "note": ("text",),
+                  "acknowledge": ("caution",), "close": ("outcome",), "reopen": ()}
+BAND = {"nominal": _NUMBER, "low": _NUMBER, "high": _NUMBER, "unit": _TEXT, "basis": _TEXT,
+        "typical": _FLAG, "absent_below": _NUMBER}
+
+
+def _is(value: Any, kind: str) -> bool:
+    if kind == _TEXT:
+        return isinstance(value, str)
+    if kind == _NUMBER:
+        return (isinstance(value, (int, float)) and not isinstance(value, bool)
+                and math.isfinite(value))
+    if kind == _FLAG:
+        return isinstance(value, bool)
+    if kind == _LIST_OF_TEXT:
+        return isinstance(value, list) and all(isinstance(v, str) for v in value)
+    return isinstance(value, dict)
+
+
+def _fields(data: Mapping, spec: Mapping[str, str], nullable, where: str) -> str | None:
+    for key, kind in spec.items():
+        if key not in data:
+            continue
+        value = data[key]
+        if value is None and key in nullable:
+            continue
+        if not _is(value, kind):
+            return f"{where}'{key}' is not {'a ' if kind != _LIST_OF_TEXT else ''}{kind}"
+    return None
+
+
+def case_problem(data: Mapping) -> str | None:
+    """The first way ``data`` breaks the case shape, as a short reason, or None when it fits."""
+    for key in REQUIRED:
+        if key not in data:
+            return f"missing key '{key}'"
+    if not isinstance(data.get("events"), list):
+        return "'events' is not a list"
+    problem = _fields(data, TOP, NULLABLE, "")
+    if problem:
+        return problem
+    if "set" in data and not isinstance(data["set"].get("profile"), dict):
+        return "'set.profile' is not a mapping"
+    for i, event in enumerate(data["events"], start=1):
+        problem = _event_problem(event, i)
+        if problem:
+            return problem
+    return None
+
+
+def _event_problem(event: Any, i: int) -> str | None:
+    where = f"event {i}: "
+    if not isinstance(event, dict):
+        return f"event {i} is not a mapping"
+    kind = event.get("type")
+    if kind not in EVENT_TYPES:
+        return f"{where}unknown type {kind!r}"[:120]
+    problem = _fields(event, EVENT, EVENT_NULLABLE, where)
+    if problem:
+        return problem
+    if "n" in event and (not isinstance(event["n"], int) or event["n"] < 0):
+        return f"{where}'n' is not a whole number"
+    for key in EVENT_REQUIRED[kind]:
+        if key not in event:
+            return f"{where}missing key '{key}'"
+    band = event.get("band")
+    if isinstance(band, dict):
+        problem = _fields(band, BAND, (), where + "band ")
+        if problem:
+            return problem
+    return None
