@@ -188,7 +188,7 @@ def what_of(value) -> str:
 def printable(text: str) -> str:
     """Text safe for a one-line message: control characters shown as escapes."""
     return "".join(c if c.isprintable() else c.encode("unicode_escape").decode("ascii")
-                   for c in str(text))
+                   for c in str(text))  # stricter than safe_text.one_line: escapes newlines
 
 
 def join_key(path: str, key: str) -> str:

@@ -260,8 +260,10 @@ def minutes_text(minutes: float | None) -> str:
 
 
 def _md(text: str) -> str:
-    """Case text made safe inside a Markdown table cell or line."""
-    return " ".join(str(text).split()).replace("\\", "\\\\").replace("|", "\\|") \
+    """Case text made safe inside a Markdown table cell or line (no control characters)."""
+    from faultwise.safe_text import one_line
+
+    return one_line(text).replace("\\", "\\\\").replace("|", "\\|") \
         .replace("<", "&lt;").replace(">", "&gt;")
 
 

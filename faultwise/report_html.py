@@ -43,7 +43,9 @@ def _page(title: str, body: list[str]) -> str:
 
 
 def _e(text) -> str:
-    return escape(str(text))
+    from faultwise.safe_text import shown_text
+
+    return escape(shown_text(text))
 
 
 def _steps_table(steps: tuple[ReportStep, ...]) -> str:

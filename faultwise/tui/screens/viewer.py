@@ -1,5 +1,8 @@
 """A case read-only, step by step: the summary, every event, and the detail of the one
 selected (band and basis as shown at the time, what was typed, the classification).
+
+The "#" column numbers the checks (1, 2, 3...) as the walk's history does; other events
+(cautions read, notes, parts...) have no number and say what they are in words.
 """
 
 from __future__ import annotations
@@ -12,13 +15,35 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static
 
 from faultwise.tui.context import Bench
+from faultwise.tui.widgets.history import check_numbers, node_title
+
+INPUT_WIDTH = 14
+RESULT_WIDTH = 12
 
 TYPE_WORDS = {"answer": "answer", "skip": "skipped", "note": "note", "acknowledge": "caution read",
               "off-graph": "off-graph finding", "parts": "parts replaced", "resume": "resumed",
               "to-closing": "to closing checks", "close": "closed", "reopen": "reopened"}
 
 
-def summary_text(data: dict) -> Content:
+def _when(iso) -> str:
+    """``2026-12-01T09:30:00+00:00`` -> ``2026-12-01 09:30``."""
+    return str(iso or "")[:16].replace("T", " ")
+
+
+def symptom_title(knowledge, symptom_id) -> str:
+    """The symptom's title when the knowledge has it, else the id as recorded."""
+    symptoms = getattr(knowledge, "symptoms", None) or {}
+    symptom = symptoms.get(symptom_id) if symptom_id else None
+    return getattr(symptom, "title", None) or str(symptom_id or "?")
+
+
+def caution_title(knowledge, caution_id) -> str:
+    cautions = getattr(knowledge, "cautions", None) or {}
+    caution = cautions.get(caution_id) if caution_id else None
+    return getattr(caution, "title", None) or str(caution_id or "")
+
+
+def summary_text(data: dict, knowledge=None) -> Content:
     """Header lines of a case: id, set, complaint, conclusion, outcome."""
     conclusion = data.get("conclusion") or {}
     fault = conclusion.get("title") if isinstance(conclusion, dict) else None
@@ -29,23 +54,20 @@ def summary_text(data: dict) -> Content:
         "[b]Complaint:[/b] $complaint  [dim]($symptom)[/dim]\n"
         "[b]Found:[/b] $found   [b]Parts:[/b] $parts   [b]Outcome:[/b] $outcome, $minutes min",
         id=str(data.get("id", "?")), status=str(data.get("status", "?")),
-        bench=str(data.get("bench", "?")), opened=str(data.get("opened", ""))[:16],
+        bench=str(data.get("bench", "?")), opened=_when(data.get("opened")),
         label=str(profile.get("label", "?")), customer=str(data.get("customer") or "-"),
-        complaint=str(data.get("complaint") or "-"), symptom=str(data.get("symptom", "?")),
+        complaint=str(data.get("complaint") or "-"),
+        symptom=symptom_title(knowledge, data.get("symptom")),
         found=str(fault or data.get("off_graph") or "-"),
         parts=", ".join(str(p) for p in data.get("parts") or ()) or "none",
         outcome=str(data.get("outcome") or "-"), minutes=str(data.get("minutes", "-")))
 
 
-def node_title(knowledge, node_id) -> str:
-    node = knowledge.nodes.get(node_id) if knowledge is not None and node_id else None
-    return getattr(node, "title", None) or str(node_id or "")
-
-
-def event_cells(event: dict, knowledge) -> tuple[str, str, str, str]:
-    """(n, what, input, result) for one event of the case file."""
+def event_cells(event: dict, knowledge, number: int | None = None) -> tuple[str, str, str, str]:
+    """(step number, what, input, result) for one event of the case file; ``number`` is the
+    check's step number (None for events that are not checks)."""
     kind = str(event.get("type", "?"))
-    n = str(event.get("n", ""))
+    n = "" if number is None else str(number)
     if kind in ("answer", "skip"):
         what = node_title(knowledge, event.get("node"))
         phase = event.get("phase")
@@ -55,18 +77,20 @@ def event_cells(event: dict, knowledge) -> tuple[str, str, str, str]:
             return n, what, str(event.get("reason") or "-"), "skipped"
         return n, what, str(event.get("raw", "")), str(event.get("outcome", ""))
     text = {"note": event.get("text"), "off-graph": event.get("finding"),
-            "acknowledge": event.get("caution"), "resume": event.get("fault"),
+            "acknowledge": caution_title(knowledge, event.get("caution")),
+            "resume": node_title(knowledge, event.get("fault")),
             "parts": ", ".join(str(p) for p in event.get("parts") or ()) or "none",
             "close": event.get("outcome")}.get(kind, "")
     result = f"{event.get('minutes', '-')} min" if kind == "close" else ""
     return n, TYPE_WORDS.get(kind, kind), str(text or ""), result
 
 
-def event_detail(event: dict, knowledge) -> Content:
-    """Everything recorded for one event, as safe Content."""
+def event_detail(event: dict, knowledge, number: int | None = None) -> Content:
+    """Everything recorded for one event, as safe Content (``number``: the check's step)."""
     kind = str(event.get("type"))
-    lines = [Content.from_markup("[b]#$n $type[/b]  [dim]$at[/dim]", n=str(event.get("n", "")),
-                                 type=TYPE_WORDS.get(kind, kind), at=str(event.get("at", "")))]
+    head = f"Check {number}: " if number is not None else ""
+    lines = [Content.from_markup("[b]$head$type[/b]  [dim]$at[/dim]", head=head,
+                                 type=TYPE_WORDS.get(kind, kind), at=_when(event.get("at")))]
     if event.get("node"):
         lines.append(Content.from_markup("$t  [dim]($id)[/dim]",
                                          t=node_title(knowledge, event["node"]),
@@ -81,10 +105,20 @@ def event_detail(event: dict, knowledge) -> Content:
             "Band $low to $high $unit (nominal $nom)$typ\nBasis: $basis", low=num("low"),
             high=num("high"), unit=str(band.get("unit", "")), nom=num("nominal"),
             typ="  ≈ typical" if band.get("typical") else "", basis=str(band.get("basis", "-"))))
+    if kind == "acknowledge" and event.get("caution"):
+        lines.append(Content.from_markup("[b]Caution:[/b] $t  [dim]($id)[/dim]",
+                                         t=caution_title(knowledge, event["caution"]),
+                                         id=str(event["caution"])))
+    node = knowledge.nodes.get(event.get("node")) if knowledge is not None else None
+    choices = getattr(node, "choices", None) or {}
     for key, label in (("raw", "Typed"), ("value", "Value"), ("outcome", "Result"),
-                       ("reason", "Reason"), ("text", "Note"), ("finding", "Finding")):
+                       ("reason", "Reason"), ("text", "Note"), ("finding", "Finding"),
+                       ("minutes", "Minutes")):
         if event.get(key) not in (None, ""):
-            lines.append(Content.from_markup("[b]$l:[/b] $v", l=label, v=str(event[key])))
+            value = str(event[key])
+            if key == "outcome" and kind != "close" and choices.get(value):
+                value = f"{value} ({choices[value]})"     # the choice as the tech saw it
+            lines.append(Content.from_markup("[b]$l:[/b] $v", l=label, v=value))
     return Content("\n").join(lines)
 
 
@@ -99,6 +133,7 @@ class CaseViewerScreen(Screen):
         self.case_id = case_id
         self.data: dict | None = None
         self.events: dict[str, dict] = {}
+        self.numbers: dict[int, int] = {}
 
     def compose(self) -> ComposeResult:
         yield Header()
@@ -115,27 +150,36 @@ class CaseViewerScreen(Screen):
 
         self.sub_title = f"case {self.case_id} (read-only)"
         table = self.query_one(DataTable)
+        # Fixed widths so the input and the result stay on screen beside long titles.
+        what_width = max(20, self.app.size.width - 3 - INPUT_WIDTH - RESULT_WIDTH - 4 * 2 - 2)
         table.add_column("#", key="n", width=3)
-        table.add_column("Step", key="what")
-        table.add_column("Input", key="input")
-        table.add_column("Result", key="result")
+        table.add_column("Step", key="what", width=what_width)
+        table.add_column("Input", key="input", width=INPUT_WIDTH)
+        table.add_column("Result", key="result", width=RESULT_WIDTH)
         try:
             self.data = self.bench.store.read(self.case_id)
         except FaultwiseError as exc:
             self.query_one("#viewer-summary", Static).update(Content(str(exc)))
             return
-        self.query_one("#viewer-summary", Static).update(summary_text(self.data))
-        for event in self.data.get("events") or ():
+        knowledge = self.bench.knowledge
+        self.query_one("#viewer-summary", Static).update(summary_text(self.data, knowledge))
+        events = [e for e in self.data.get("events") or () if isinstance(e, dict)]
+        self.numbers = check_numbers(events)
+        for event in events:
             key = str(event.get("n"))
             self.events[key] = event
-            cells = event_cells(event, self.bench.knowledge)
-            table.add_row(*(Text(c) for c in cells), key=key)
+            number = self.numbers.get(int(event.get("n") or 0))
+            n, what, typed, result = event_cells(event, knowledge, number)
+            style = "" if number is not None else "italic"
+            table.add_row(Text(n, justify="right"), Text(what, style=style), Text(typed),
+                          Text(result), key=key)
         table.focus()
 
     def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
         chosen = self.events.get(event.row_key.value if event.row_key else None)
+        number = self.numbers.get(int(chosen.get("n") or 0)) if chosen else None
         self.query_one("#viewer-detail", Static).update(
-            event_detail(chosen, self.bench.knowledge) if chosen else "")
+            event_detail(chosen, self.bench.knowledge, number) if chosen else "")
 
     def action_back(self) -> None:
         self.app.pop_screen()
