@@ -330,16 +330,24 @@ class OpenCase:
 
 # -------------------------------------------------------------------------------- store
 
+def check_bench(bench) -> str:
+    """The bench name, if it is safe in a case id and a file name; CaseError otherwise."""
+    bench = str(bench)
+    if not _BENCH_RE.match(bench):
+        from faultwise.safe_text import one_line
+
+        raise CaseError(f"the bench name '{one_line(bench)}' may hold only letters, digits, "
+                        "'-' and '_'", key="bench",
+                        hint="use a short name such as B1 (40 characters at most)")
+    return bench
+
+
 class CaseStore:
     """The cases folder of a workspace, used by one bench."""
 
     def __init__(self, folder, bench: str, clock: Callable[[], datetime] | None = None) -> None:
         self.folder = Path(folder)
-        bench = str(bench)
-        if not _BENCH_RE.match(bench):
-            raise CaseError(f"the bench name '{bench}' may hold only letters, digits, '-' and '_'",
-                            key="bench", hint="use a short name such as B1 (40 characters at most)")
-        self.bench = bench
+        self.bench = check_bench(bench)
         self.clock = clock or _utc_now
         self.host = _safe_host()
         self.remove_stale_temps()

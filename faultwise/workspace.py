@@ -74,6 +74,9 @@ def resolve_workspace(knowledge: str | os.PathLike | None = None,
     cdir = Path(c).expanduser()
     if not cdir.is_absolute():
         cdir = cwd / cdir
+    from faultwise.cases import check_bench
+
+    check_bench(b)
     if not kdir.is_dir():
         raise FaultwiseError("the knowledge folder does not exist", file=str(kdir),
                              hint="pass --knowledge with a folder that holds symptoms.yaml and graph/")

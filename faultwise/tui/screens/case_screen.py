@@ -98,7 +98,7 @@ class CaseScreen(Screen):
         try:
             action()
         except FaultwiseError as exc:
-            self.notify(str(exc), severity="error", markup=False, timeout=6)
+            self.notify(self.say(exc), severity="error", markup=False, timeout=6)
             return False
         except Exception as exc:  # never a traceback on the bench screen
             self.notify(internal_error(exc), severity="error", markup=False, timeout=10)
@@ -113,12 +113,24 @@ class CaseScreen(Screen):
         try:
             self.walk.answer(text)
         except FaultwiseError as exc:
-            panel.show_error(str(exc))
+            panel.show_error(self.say(exc))
             return
         except Exception as exc:
             panel.show_error(internal_error(exc))
             return
         self.commit(self.show_prompt)
+
+    def say(self, exc) -> str:
+        """A walk refusal in the bench's words: no location, titles for node ids."""
+        from faultwise.tui.wording import bench_sentence, readable
+
+        return readable(bench_sentence(exc), self.walk.knowledge)
+
+    def readable(self, text: str | None) -> str:
+        """Text from the walk with node ids replaced by their titles."""
+        from faultwise.tui.wording import readable
+
+        return readable(text, self.walk.knowledge)
 
     # ------------------------------------------------------------------ prompts
 

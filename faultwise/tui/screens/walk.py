@@ -116,7 +116,7 @@ class WalkScreen(CaseScreen):
                 escalate.display = True
                 escalate.update("Read and acknowledge the caution before this check.")
                 return
-            panel.show(prompt)
+            panel.show(prompt, self.walk.knowledge)
             panel.input.focus()
         else:
             panel.display = False
@@ -126,7 +126,7 @@ class WalkScreen(CaseScreen):
             escalate.update(Content.from_markup(
                 "[b]$t[/b]\n$w\nThe graph has nothing more to check here. Press F5 to record "
                 "what you found (an off-graph finding), F3 for a note, ctrl+z to undo.",
-                t=title, w=prompt.warning or getattr(node, "advice", "") or ""))
+                t=title, w=self.readable(prompt.warning) or getattr(node, "advice", "") or ""))
             self.set_focus(None)
         self.refresh_bindings()
 

@@ -83,8 +83,11 @@ class CheckPanel(Vertical):
     def input(self) -> Input:
         return self.query_one("#answer", Input)
 
-    def show(self, prompt) -> None:
-        """Display a check prompt (kind 'check') and clear the field and the error."""
+    def show(self, prompt, knowledge=None) -> None:
+        """Display a check prompt (kind 'check') and clear the field and the error;
+        ``knowledge`` puts node titles in place of ids in the warning."""
+        from faultwise.tui.wording import readable
+
         self.prompt = prompt
         check = prompt.node
         tag = PHASE_TAGS.get(prompt.phase, prompt.phase.upper())
@@ -111,7 +114,7 @@ class CheckPanel(Vertical):
             choices_box.update(choice_lines(prompt.choices))
             self.input.placeholder = "number or name of the choice"
         warning = self.query_one("#check-warning", Static)
-        warning.update(Content.from_markup("[b]![/b] $w", w=prompt.warning)
+        warning.update(Content.from_markup("[b]![/b] $w", w=readable(prompt.warning, knowledge))
                        if prompt.warning else "")
         warning.display = bool(prompt.warning)
         expected_box.display = prompt.is_measurement
