@@ -1,4 +1,4 @@
-"""Sentences from the walk, put in the bench's words: node ids become their titles.
+"""Sentences from the walk, put in the bench's words: ids become titles.
 
 The walk's warnings and explanations name nodes by id (``supply.hum-ripple``); on the
 bench screen the check's title is what the technician knows it by. Ids the knowledge does
@@ -12,17 +12,26 @@ import re
 NODE_ID = re.compile(r"\b[a-z][a-z0-9_-]*(?:\.[a-z0-9][a-z0-9_-]*)+")
 
 
+QUOTED_ID = re.compile(r"'([a-z][a-z0-9-]*)'")
+
+
 def readable(text: str | None, knowledge) -> str:
-    """``text`` with every node id the knowledge knows replaced by that node's title."""
+    """``text`` with every node id the knowledge knows replaced by that node's title, and
+    every quoted symptom id (``'hum-loud'``) by the symptom's title."""
     if not text:
         return ""
     nodes = getattr(knowledge, "nodes", None) or {}
+    symptoms = getattr(knowledge, "symptoms", None) or {}
 
     def title(match: re.Match) -> str:
         node = nodes.get(match.group(0))
         return getattr(node, "title", None) or match.group(0)
 
-    return NODE_ID.sub(title, text)
+    def symptom(match: re.Match) -> str:
+        found = symptoms.get(match.group(1))
+        return f"'{found.title}'" if getattr(found, "title", None) else match.group(0)
+
+    return QUOTED_ID.sub(symptom, NODE_ID.sub(title, text))
 
 
 def bench_sentence(exc) -> str:
@@ -34,3 +43,24 @@ def bench_sentence(exc) -> str:
         hint = hint.rstrip(".")
         message += " " + hint[:1].upper() + hint[1:] + "."
     return message
+
+
+def node_title(knowledge, node_id) -> str:
+    """The node's title when the knowledge has it, else the id as recorded."""
+    nodes = getattr(knowledge, "nodes", None) or {}
+    node = nodes.get(node_id) if node_id else None
+    return getattr(node, "title", None) or str(node_id or "")
+
+
+def symptom_title(knowledge, symptom_id) -> str:
+    """The symptom's title when the knowledge has it, else the id as recorded."""
+    symptoms = getattr(knowledge, "symptoms", None) or {}
+    symptom = symptoms.get(symptom_id) if symptom_id else None
+    return getattr(symptom, "title", None) or str(symptom_id or "")
+
+
+def caution_title(knowledge, caution_id) -> str:
+    """The caution's title when the knowledge has it, else the id as recorded."""
+    cautions = getattr(knowledge, "cautions", None) or {}
+    caution = cautions.get(caution_id) if caution_id else None
+    return getattr(caution, "title", None) or str(caution_id or "")

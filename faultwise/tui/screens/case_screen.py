@@ -223,7 +223,10 @@ class CaseScreen(Screen):
     def action_readings(self) -> None:
         from faultwise.tui.screens.readings import ReadingsScreen
 
-        self.app.push_screen(ReadingsScreen(self.walk.profile.label, self.walk.expectations))
+        prompt = self.walk.prompt()
+        current = getattr(getattr(prompt, "expected", None), "name", None)
+        self.app.push_screen(ReadingsScreen(self.walk.profile.label, self.walk.expectations,
+                                            selected=current))
 
     def action_cautions(self) -> None:
         prompt = self.walk.prompt()

@@ -1,5 +1,10 @@
 """After the diagnosis: the fault, the repair, parts replaced, the verify readings, the
 closing (leakage) check, and the close with an outcome and the minutes spent.
+
+Closing as repaired while a verify reading was not normal asks first
+(:class:`ConfirmRepairedScreen`); nothing is recorded until the technician chooses. The
+minutes field starts at the whole minutes since the case was opened (at least 1) and takes
+a whole number of 0 or more, refused in place otherwise.
 """
 
 from __future__ import annotations
@@ -7,8 +12,9 @@ from __future__ import annotations
 from textual import on
 from textual.app import ComposeResult, SystemCommand
 from textual.binding import Binding
-from textual.containers import Vertical
+from textual.containers import Vertical, VerticalScroll
 from textual.content import Content
+from textual.validation import Integer
 from textual.widgets import Footer, Header, Input, Static
 
 from faultwise.tui.screens.case_screen import CaseScreen
@@ -21,9 +27,39 @@ OUTCOME_CHOICES = (("repaired", "repaired"), ("returned-unrepaired", "returned u
                    ("waiting-parts", "waiting for parts"))
 
 
+MINUTES_RULE = "a whole number of minutes, 0 or more"
+
+
 def split_parts(text: str) -> list[str]:
     """'50 uF 160 V electrolytic; 35W4' -> two parts (separated by ';' or ',')."""
     return [p.strip() for p in text.replace(";", ",").split(",") if p.strip()]
+
+
+def whole_minutes_since(opened_iso, now) -> int:
+    """Whole minutes from the case's ``opened`` stamp to ``now``, at least 1 (a case closed
+    within its first minute still took some time); 1 when the stamp cannot be read."""
+    from datetime import datetime
+
+    try:
+        opened = datetime.fromisoformat(str(opened_iso))
+        return max(1, int((now - opened).total_seconds() // 60))
+    except (TypeError, ValueError):
+        return 1
+
+
+def failed_verify_lines(walk) -> list[str]:
+    """'<check title>: read <outcome> (<typed>)' for each verify reading of the current
+    repair that was not normal (after the last resume; skipped checks are not failures)."""
+    resumed = [int(e.get("n", 0)) for e in walk.events if e.get("type") == "resume"]
+    since = max(resumed, default=0)
+    lines = []
+    for step in walk.steps:
+        if step.phase != "verify" or step.n <= since or step.normal or \
+                step.outcome == "skipped":
+            continue
+        typed = f" ({step.raw})" if step.raw else ""
+        lines.append(f"{step.title}: read {step.outcome}{typed}")
+    return lines
 
 
 class ConclusionScreen(CaseScreen):
@@ -35,6 +71,8 @@ class ConclusionScreen(CaseScreen):
         Binding("f8", "resume", "Not cured", tooltip="Resume the diagnosis", priority=True),
         Binding("f9", "to_closing", "Unrepaired", tooltip="Return the set unrepaired",
                 priority=True),
+        Binding("pagedown", "scroll_steps(4)", "More steps", show=False, priority=True),
+        Binding("pageup", "scroll_steps(-4)", "Steps back", show=False, priority=True),
         CaseScreen.UNDO,
         CaseScreen.CAUTIONS,
         CaseScreen.BACK,
@@ -49,12 +87,15 @@ class ConclusionScreen(CaseScreen):
         yield StageMap(id="stage-map")
         with Vertical(id="conclusion-body"):
             yield Static("", id="conclusion-title")
-            yield Static("", id="repair-steps")
+            with VerticalScroll(id="repair-scroll", can_focus=False):
+                yield Static("", id="repair-steps")
             with Vertical(id="parts-form", classes="form-block"):
-                yield Static("Parts replaced, separated by commas (leave empty if none); "
-                             "Enter records them and starts the verify checks.",
+                yield Static("Parts replaced, separated by commas (empty if none); Enter "
+                             "records them and starts the verify checks.",
                              classes="form-label")
-                yield BenchInput(id="parts", compact=True)
+                yield BenchInput(id="parts", compact=True,
+                                 placeholder="parts, e.g. 50 uF 160 V electrolytic, 35W4 "
+                                             "(empty: none)")
                 yield Static("", id="parts-error", classes="field-error")
             yield CheckPanel(id="check")
             with Vertical(id="close-form", classes="form-block"):
@@ -65,10 +106,12 @@ class ConclusionScreen(CaseScreen):
                 yield BenchInput(id="close-outcome", compact=True,
                                  placeholder="outcome: 1, 2 or 3")
                 yield BenchInput(id="close-minutes", compact=True, placeholder="minutes spent",
-                                 type="number")
+                                 type="integer", validate_on=["changed", "submitted"],
+                                 validators=[Integer(minimum=0,
+                                                     failure_description=MINUTES_RULE)])
                 yield Static("", id="close-error", classes="field-error")
             yield History(id="history")
-        yield Footer(show_command_palette=False)
+        yield Footer(show_command_palette=False, compact=True)
 
     def on_mount(self) -> None:
         self.sub_title = f"case {self.case.id}"
@@ -92,16 +135,23 @@ class ConclusionScreen(CaseScreen):
         if fault is not None:
             title.update(Content.from_markup("[b]✗ FAULT[/b]  $t  [dim]($s)[/dim]", t=fault.title,
                                              s=fault.stage))
+        elif finding:
+            title.update(Content.from_markup("[b]Off-graph finding[/b]  $f", f=finding))
+        else:
+            title.update("Returning the set")
+        if prompt.kind == "close":
+            # The repair is done: one line of what was fitted leaves room for the close form.
+            steps.update(Content.from_markup("[b]Parts replaced:[/b] $p",
+                                             p=", ".join(self.walk.parts) or "none"))
+        elif fault is not None:
             lines = [Content.from_markup("[dim]$i.[/dim] $r", i=str(i), r=r)
                      for i, r in enumerate(fault.repair, 1)]
             parts = ", ".join(fault.parts) or "none listed"
             lines.append(Content.from_markup("[b]Parts:[/b] $p", p=parts))
             steps.update(Content("\n").join(lines))
         elif finding:
-            title.update(Content.from_markup("[b]Off-graph finding[/b]  $f", f=finding))
             steps.update("Repair as the finding needs; the graph has no steps for it.")
         else:
-            title.update("Returning the set")
             steps.update("")
         phase = prompt.phase
         self.query_one("#parts-form").display = prompt.kind == "repair"
@@ -119,15 +169,15 @@ class ConclusionScreen(CaseScreen):
                 self.query_one(CheckPanel).display = False
                 return
             panel = self.query_one(CheckPanel)
-            panel.show(prompt)
+            panel.show(prompt, self.walk.knowledge)
             panel.input.focus()
         else:
             self._show_close_form(prompt)
-        steps.display = phase == "repair" or prompt.kind == "close"
+        self.query_one("#repair-scroll").display = phase == "repair" or prompt.kind == "close"
         self.refresh_bindings()
 
     def _show_close_form(self, prompt) -> None:
-        warn = f"\n! {prompt.warning}" if prompt.warning else ""
+        warn = f"\n! {self.readable(prompt.warning)}" if prompt.warning else ""
         self.query_one("#close-caption", Static).update(Content.from_markup(
             "[b]Close the case[/b]: choose the outcome, then type the minutes spent.$w",
             w=warn))
@@ -137,14 +187,8 @@ class ConclusionScreen(CaseScreen):
         self.query_one("#close-outcome", Input).focus()
 
     def elapsed_minutes(self) -> int:
-        """Whole minutes since the case was opened (the tech may correct it)."""
-        from datetime import datetime
-
-        try:
-            opened = datetime.fromisoformat(str(self.case.data.get("opened")))
-            return max(0, int((self.bench.clock() - opened).total_seconds() // 60))
-        except (TypeError, ValueError):
-            return 0
+        """Whole minutes since the case was opened, at least 1 (the tech may correct it)."""
+        return whole_minutes_since(self.case.data.get("opened"), self.bench.clock())
 
     # ------------------------------------------------------------------ input
 
@@ -181,12 +225,54 @@ class ConclusionScreen(CaseScreen):
             return
         reason = self.walk.can_close(outcome)
         if reason:
-            error.update(Content(f"Cannot close as {outcome}: {reason}."))
+            error.update(Content(f"Cannot close as {outcome}: {self.readable(reason)}."))
             return
+        if outcome == "repaired" and self.walk.verify_failed:
+            self._confirm_repaired()
+            return
+        self._take_outcome(outcome)
+
+    def _take_outcome(self, outcome: str) -> None:
         self.outcome = outcome
-        error.update(Content(f"Outcome: {outcome}. Type the minutes and press Enter."))
+        self.query_one("#close-error", Static).update(
+            Content(f"Outcome: {outcome}. Type the minutes and press Enter."))
         self.query_one("#close-outcome", Input).value = dict(OUTCOME_CHOICES)[outcome]
         self.query_one("#close-minutes", Input).focus()
+
+    def _confirm_repaired(self) -> None:
+        """Ask before a repaired close with a verify reading off; nothing is recorded here."""
+        from faultwise.tui.screens.confirm_repaired import ConfirmRepairedScreen
+
+        def done(choice: str | None) -> None:
+            if choice == "repaired":
+                self._take_outcome("repaired")
+            elif choice == "resume":
+                self.action_resume()
+            else:
+                self.outcome = None
+                box = self.query_one("#close-outcome", Input)
+                box.value = ""
+                self.query_one("#close-error", Static).update(
+                    "Not closed. Choose the outcome (1, 2 or 3).")
+                box.focus()
+
+        self.app.push_screen(ConfirmRepairedScreen(
+            failed_verify_lines(self.walk) or ["a verify reading (see the history)"],
+            can_resume=self.walk.conclusion is not None), done)
+
+    @on(Input.Changed, "#close-minutes")
+    def minutes_changed(self, event: Input.Changed) -> None:
+        result = event.validation_result
+        if result is not None and not result.is_valid:
+            self._minutes_refused(event.value)
+        elif self.outcome is not None:
+            self.query_one("#close-error", Static).update(
+                Content(f"Outcome: {self.outcome}. Type the minutes and press Enter."))
+
+    def _minutes_refused(self, value: str) -> None:
+        shown = value.strip() or "an empty field"
+        self.query_one("#close-error", Static).update(
+            Content(f"Minutes: {shown} is not {MINUTES_RULE}."))
 
     @on(Input.Submitted, "#close-minutes")
     def minutes_submitted(self, event: Input.Submitted) -> None:
@@ -196,11 +282,11 @@ class ConclusionScreen(CaseScreen):
             error.update("Choose the outcome first (1, 2 or 3).")
             self.query_one("#close-outcome", Input).focus()
             return
-        try:
-            minutes = float(event.value.strip())
-        except ValueError:
-            error.update(Content(f"'{event.value}' is not a number of minutes."))
+        result = event.validation_result
+        if result is not None and not result.is_valid:
+            self._minutes_refused(event.value)
             return
+        minutes = int(event.value.strip())
         outcome = self.outcome
         self.change(lambda: self.walk.close(outcome, minutes))
 
@@ -216,6 +302,10 @@ class ConclusionScreen(CaseScreen):
 
     def action_resume(self) -> None:
         self.change(self.walk.resume_diagnosis)
+
+    def action_scroll_steps(self, lines: int) -> None:
+        self.query_one("#repair-scroll", VerticalScroll).scroll_relative(y=lines,
+                                                                         animate=False)
 
     def action_to_closing(self) -> None:
         self.change(self.walk.to_closing)

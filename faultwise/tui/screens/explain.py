@@ -28,7 +28,10 @@ class ExplainScreen(ModalScreen[None]):
         ex = self.explanation
         with Vertical(classes="modal-box", id="explain-box"):
             yield Static("Why this check now", classes="modal-title")
-            yield Static(Content(ex.text or "No ranking applies here."), id="explain-text")
+            from faultwise.tui.wording import readable
+
+            yield Static(Content(readable(ex.text, self.knowledge) or "No ranking applies here."),
+                         id="explain-text")
             if ex.came_from:
                 node, outcome = ex.came_from
                 yield Static(Content.from_markup("[dim]Came from:[/dim] $n gave '$o'",

@@ -71,6 +71,12 @@ def rank_sets(query: str, sets: list[LibrarySet]) -> list[LibrarySet]:
     return [sets[index] for _, _, index in found]
 
 
+def apprentice_label(on: bool) -> str:
+    """The checkbox says its state in words (its mark alone differs only by colour)."""
+    return ("Apprentice mode: ON, guidance open at every step (F8 turns it off)" if on else
+            "Apprentice mode: off (F8 turns it on: guidance open at every step)")
+
+
 class NewCaseScreen(Screen):
     """Collects what a case needs, creates it, and hands over to the walk."""
 
@@ -111,8 +117,7 @@ class NewCaseScreen(Screen):
                 yield Static("Customer", classes="field-name")
                 yield BenchInput(id="customer", compact=True,
                                  placeholder="ticket or name (optional)")
-            yield Checkbox("Apprentice mode: guidance open at every step (F8)", id="apprentice",
-                           compact=True)
+            yield Checkbox(apprentice_label(False), id="apprentice", compact=True)
             yield Static("", id="new-error", classes="field-error")
         yield Footer()
 
@@ -153,9 +158,10 @@ class NewCaseScreen(Screen):
         self.shown_sets = rank_sets(query, self.library)
         box = self.query_one("#set-list", OptionList)
         box.clear_options()
+        # One line per set so four fit: the file name shows once the set is taken.
         box.add_options([Option(Content.from_markup("$l  [dim]$f[/dim]", l=s.label,
-                                                    f=s.path.name if s.profile else
-                                                    "cannot be read"), id=str(i))
+                                                    f="" if s.profile else "cannot be read"),
+                                id=str(i))
                          for i, s in enumerate(self.shown_sets)])
         if self.shown_sets:
             box.highlighted = 0
@@ -261,6 +267,10 @@ class NewCaseScreen(Screen):
     def action_apprentice(self) -> None:
         box = self.query_one("#apprentice", Checkbox)
         box.value = not box.value
+
+    @on(Checkbox.Changed, "#apprentice")
+    def apprentice_changed(self, event: Checkbox.Changed) -> None:
+        event.checkbox.label = apprentice_label(event.value)
 
     def action_back(self) -> None:
         self.app.pop_screen()

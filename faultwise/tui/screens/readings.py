@@ -11,6 +11,7 @@ from textual.widgets import DataTable, Footer, Header, Static
 from faultwise.tui.widgets.check_panel import reading_text
 
 NUMBER_WIDTH = 9
+SCROLLBAR_WIDTH = 2
 STAGE_ORDER = ("supply", "audio", "detector", "if", "oscillator", "antenna")
 STAGE_TITLES = {"supply": "Supply", "audio": "Audio", "detector": "Detector", "if": "IF",
                 "oscillator": "Oscillator and mixer", "antenna": "Antenna and tuning"}
@@ -35,10 +36,11 @@ class ReadingsScreen(Screen):
 
     BINDINGS = [Binding("escape,f6", "back", "Back", priority=True)]
 
-    def __init__(self, label: str, expectations: dict) -> None:
+    def __init__(self, label: str, expectations: dict, *, selected: str | None = None) -> None:
         super().__init__(id="readings")
         self.label = label
         self.expectations = dict(expectations)
+        self.first = selected          # the current check's reading, selected on opening
 
     def compose(self) -> ComposeResult:
         yield Header()
@@ -52,7 +54,10 @@ class ReadingsScreen(Screen):
         from rich.text import Text
 
         table = self.query_one(DataTable)
-        title_width = max(20, self.app.size.width - 3 * (NUMBER_WIDTH + 2) - 6)
+        # Every column on screen: three numbers, the typical mark, two cells of padding
+        # each, and room for the vertical scrollbar (a long sheet always has one).
+        title_width = max(20, self.app.size.width - 3 * (NUMBER_WIDTH + 2) - (1 + 2) - 2
+                          - SCROLLBAR_WIDTH)
         table.add_column("Reading", key="title", width=title_width)
         table.add_column("Low", key="low", width=NUMBER_WIDTH)
         table.add_column("Nominal", key="nominal", width=NUMBER_WIDTH)
@@ -67,7 +72,9 @@ class ReadingsScreen(Screen):
                               reading_text(e.nominal, e.unit), reading_text(e.high, e.unit),
                               "≈" if e.typical else "", key=e.name)
         table.focus()
-        if len(self.expectations):
+        if self.first in self.expectations:
+            table.move_cursor(row=table.get_row_index(self.first))
+        elif len(self.expectations):
             table.move_cursor(row=1)
         else:
             self.query_one("#readings-basis", Static).update(

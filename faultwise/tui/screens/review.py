@@ -39,14 +39,28 @@ def _num(x) -> str:
     return "-" if x is None else f"{x:.1f}"
 
 
-def share_chart(pair, width: int = 30) -> str:
+def _clip(text: str, width: int) -> str:
+    """``text`` cut to ``width`` cells with an ellipsis."""
+    return text if len(text) <= width else text[: max(1, width - 1)] + "\u2026"
+
+
+def share_chart(pair, width: int = 30, label_width: int = 38) -> str:
     """The pair's smoothed fault shares as bars, one line per fault (raw count after)."""
     lines = []
     for f in pair.faults:
         share = f.smoothed if f.smoothed is not None else f.raw
-        label = f.title if len(f.title) <= 38 else f.title[:37] + "\u2026"
-        lines.append(f"{label:<38} {block_bar(share, width)} {_pct(share):>4}  ({f.count})")
+        label = _clip(f.title, label_width)
+        lines.append(f"{label:<{label_width}} {block_bar(share, width)} {_pct(share):>4}  "
+                     f"({f.count})")
     return "\n".join(lines) or "No faults for this pair."
+
+
+def chart_widths(screen_width: int) -> tuple[int, int]:
+    """(bar, label) widths so that a share line fits on one row of the screen: the line is
+    label + bar + 14 cells (spaces, percentage, count), inside padding and a scrollbar."""
+    room = screen_width - 2 - 2 - 1
+    label = max(16, min(38, int(room * 0.45)))
+    return max(8, room - label - 14), label
 
 
 def month_chart(months, width: int = 40) -> str:
@@ -106,14 +120,32 @@ class ReviewScreen(Screen):
         self.title = "Shop review"
         self.query_one("#review-pairs", DataTable).add_columns(
             "Symptom", "Family", "Cases", "Checks", "Minutes", "Now min", "Data min", "Saves")
-        self.query_one("#review-faults", DataTable).add_columns(
-            "Fault", "Cases", "Raw", "Prior", "Smoothed")
+        faults = self.query_one("#review-faults", DataTable)
+        # The title gets what the numbers leave, so Cases..Smoothed stay on screen.
+        faults.add_column("Fault", width=self.title_width(5 + 4 + 5 + 8))
+        faults.add_columns("Cases", "Raw", "Prior", "Smoothed")
         self.query_one("#review-skipped", DataTable).add_columns("Check", "Skipped", "Reasons")
         self.query_one("#review-findings", DataTable).add_columns("Finding", "Cases", "Case ids")
         self.query_one("#review-unreached", DataTable).add_columns("Fault", "Title", "Stage")
         self.query_one("#review-reopened", DataTable).add_columns("Case", "After", "Rule", "Days")
         self.query_one("#review-pairs", DataTable).focus()
         self.action_rerun()
+
+    def title_width(self, others: int, columns: int = 5) -> int:
+        """Cells left for a title column beside ``others`` cells of the other columns
+        (each column has two cells of padding; the page has padding and a scrollbar)."""
+        return max(20, self.app.size.width - others - 2 * columns - 2 - 2 - 2)
+
+    def _symptom_title(self, symptom_id: str) -> str:
+        from faultwise.tui.wording import symptom_title
+
+        knowledge = self._knowledge or getattr(self.context, "knowledge", None)
+        return symptom_title(knowledge, symptom_id)
+
+    def _readable(self, text: str) -> str:
+        from faultwise.tui.wording import readable
+
+        return readable(text, self._knowledge or getattr(self.context, "knowledge", None))
 
     # the worker ------------------------------------------------------------------------
 
@@ -147,7 +179,7 @@ class ReviewScreen(Screen):
 
     def _show_error(self, exc: Exception) -> None:
         self.query_one("#review-status", Static).update(f"The review could not be made: {exc}")
-        self.notify(str(exc), title="Review", severity="error")
+        self.notify(str(exc), title="Review", severity="error", markup=False)
 
     # showing ---------------------------------------------------------------------------
 
@@ -166,14 +198,15 @@ class ReviewScreen(Screen):
         for p in review.pairs:
             key = f"{p.symptom}|{p.family}"
             self._pairs[key] = p
-            pairs.add_row(Text(p.symptom), Text(p.family), str(p.cases), _num(p.mean_checks),
+            pairs.add_row(Text(self._symptom_title(p.symptom)), Text(p.family), str(p.cases),
+                          _num(p.mean_checks),
                           _num(p.mean_minutes), _num(p.current_minutes), _num(p.data_minutes),
                           _num(p.saving_minutes), key=key)
         self._show_pair(review.pairs[0] if review.pairs else None)
         skipped = self.query_one("#review-skipped", DataTable)
         skipped.clear()
         for c in review.skipped:
-            skipped.add_row(Text(c.check), str(c.count),
+            skipped.add_row(Text(c.title or c.check), str(c.count),
                             Text("; ".join(f"{r} ({n})" for r, n in c.reasons)), key=c.check)
         findings = self.query_one("#review-findings", DataTable)
         findings.clear()
@@ -200,8 +233,11 @@ class ReviewScreen(Screen):
             shares.update("No closed cases.")
             orders.update("")
             return
-        shares.update(f"{pair.symptom} / {pair.family}: fault shares, smoothed (raw count)\n"
-                      + share_chart(pair))
+        bar, label = chart_widths(self.app.size.width)
+        title = self._symptom_title(pair.symptom)
+        named = f" ({title})" if title and title != pair.symptom else ""
+        shares.update(f"{pair.symptom} / {pair.family}{named}: fault shares, smoothed (raw "
+                      "count)\n" + share_chart(pair, bar, label))
         for f in pair.faults:
             faults.add_row(Text(f.title), str(f.count), _pct(f.raw), _pct(f.prior),
                            _pct(f.smoothed), key=f.fault)
@@ -212,10 +248,11 @@ class ReviewScreen(Screen):
                          "min per job")
         for o in pair.orders:
             if o.current != o.data:
-                lines.append(f"{o.title}: now {' > '.join(o.current)}")
-                lines.append(f"{' ' * len(o.title)}  data {' > '.join(o.data)}")
+                lines.append(f"{o.title}: now {self._readable(' > '.join(o.current))}")
+                lines.append(f"{' ' * len(o.title)}  data {self._readable(' > '.join(o.data))}")
         for c in pair.never_varied:
-            lines.append(f"Never varied: {c.check} always '{c.outcome}' in {c.cases} case(s)")
+            lines.append(f"Never varied: {c.title or c.check} always '{c.outcome}' in "
+                         f"{c.cases} case(s)")
         orders.update("\n".join(lines))
 
     def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:

@@ -93,17 +93,20 @@ class StartScreen(Screen):
     def _show_listing(self, listing) -> None:
         self.listing = listing
         table = self.query_one(DataTable)
+        chosen = self.selected()
+        was = f"{chosen[0]}:{getattr(chosen[1], 'id', None) or chosen[1].path}" if chosen else None
         table.clear()
         self._rows.clear()
         closed = sorted(listing.closed, key=lambda s: s.updated or "", reverse=True)
         for s in sorted(listing.open, key=lambda s: s.updated or "", reverse=True):
             state = "open" if s.locked_by is None else f"open (in use at {s.locked_by.bench})"
-            self._add(table, "open", s, (s.id, state, s.set_label, s.symptom))
+            self._add(table, "open", s, (s.id, state, s.set_label, self.symptom_title(s.symptom)))
         for d in listing.damaged:
             self._add(table, "damaged", d, (d.path.stem, "DAMAGED", d.reason, ""))
         for s in closed[:RECENT_CLOSED]:
             state = f"closed: {s.outcome or '-'}"
-            self._add(table, "closed", s, (s.id, state, s.set_label, s.symptom))
+            self._add(table, "closed", s, (s.id, state, s.set_label,
+                                           self.symptom_title(s.symptom)))
         n_open, n_closed, n_bad = len(listing.open), len(listing.closed), len(listing.damaged)
         caption = (f"Bench {self.bench.workspace.bench}: {n_open} open, {n_closed} closed"
                    + (f", {n_bad} damaged" if n_bad else "")
@@ -111,8 +114,16 @@ class StartScreen(Screen):
         if not self._rows:
             caption += "\nNo cases yet. Press n to start one."
         self.query_one("#cases-caption", Static).update(caption)
+        if was in self._rows:                     # keep the cursor on the same case
+            table.move_cursor(row=table.get_row_index(was))
         self._describe_selected()
         self.refresh_bindings()
+
+    def symptom_title(self, symptom_id: str | None) -> str:
+        """The symptom's title once the knowledge is loaded (its id until then)."""
+        from faultwise.tui.wording import symptom_title
+
+        return symptom_title(self.bench.knowledge, symptom_id) if symptom_id else ""
 
     def _add(self, table: DataTable, kind: str, item, cells) -> None:
         key = f"{kind}:{getattr(item, 'id', None) or item.path}"
@@ -230,6 +241,8 @@ class StartScreen(Screen):
 
     def on_knowledge_ready(self, message: KnowledgeReady) -> None:
         self.refresh_bindings()
+        if self.listing is not None:
+            self._show_listing(self.listing)      # symptom titles instead of ids
 
     def palette_commands(self):
         from textual.app import SystemCommand

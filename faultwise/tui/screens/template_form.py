@@ -20,6 +20,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Input, Static
 
 from faultwise.tui.widgets.bench_input import BenchInput
+from faultwise.tui.wording import bench_sentence
 
 FAMILY_CHOICES = (("series-string", "series-string (AC/DC, no power transformer)"),
                   ("transformer", "transformer (tube set with a power transformer)"),
@@ -99,7 +100,7 @@ def check_field(field: Field, text: str, family: str) -> str | None:
         else:
             parse_reading(text, field.unit)
     except FaultwiseError as exc:
-        return str(exc)
+        return bench_sentence(exc)
     return None
 
 
@@ -153,13 +154,22 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
                 for i, (_, label) in enumerate(FAMILY_CHOICES, 1)), id="family-choices")
             yield BenchInput(id="tf-family", compact=True, placeholder="family: 1, 2 or 3")
             yield Static("", id="tf-family-error", classes="field-error")
+            with Vertical(id="tf-foot"):
+                yield Static("", id="tf-error", classes="field-error")
+                yield Static("[dim]Empty fields take typical values. F10 uses the set, Esc "
+                             "cancels.[/dim]", id="tf-hint")
             yield VerticalScroll(id="template-fields")
-            yield Static("", id="tf-error", classes="field-error")
-            yield Static("[dim]Empty fields take the family's typical value. F10 uses the "
-                         "set, Escape cancels.[/dim]")
 
     def on_mount(self) -> None:
+        for box_id in ("#tf-family-error", "#tf-error"):
+            self.query_one(box_id).display = False
         self.query_one("#tf-family", Input).focus()
+
+    def _say(self, box_id: str, message: str | None) -> None:
+        """Show ``message`` in one of the form's error lines (hidden while empty)."""
+        box = self.query_one(box_id, Static)
+        box.update(Content(message or ""))
+        box.display = bool(message)
 
     @on(Input.Submitted, "#tf-family")
     @on(Input.Changed, "#tf-family")
@@ -168,14 +178,16 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
         from faultwise.walk import resolve_choice
 
         text = event.value.strip()
+        if self.family and text[:-1] == self.family and text[-1:] in ("1", "2", "3"):
+            text = text[-1]           # a number typed after the family shown: change it
         if isinstance(event, Input.Changed) and text not in ("1", "2", "3"):
             return
         try:
             family = resolve_choice(text, FAMILY_CHOICES)
         except FaultwiseError as exc:
-            self.query_one("#tf-family-error", Static).update(Content(str(exc)))
+            self._say("#tf-family-error", bench_sentence(exc))
             return
-        self.query_one("#tf-family-error", Static).update("")
+        self._say("#tf-family-error", None)
         await self.show_family(family)
 
     async def show_family(self, family: str) -> None:
@@ -190,7 +202,9 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
                 Static(field.label + unit, classes="field-name"),
                 BenchInput(id=field_id(field.key), compact=True, placeholder=field.example),
                 classes="field-row"))
-            rows.append(Static("", id=field_id(field.key) + "-error", classes="field-error"))
+            error = Static("", id=field_id(field.key) + "-error", classes="field-error")
+            error.display = False                 # shown only with a message
+            rows.append(error)
         await box.mount_all(rows)
         self.query_one("#" + field_id(FIELDS[family][0].key), Input).focus()
 
@@ -213,8 +227,9 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
             self.focus_next()
 
     def show_field_error(self, key: str, message: str | None) -> None:
-        self.query_one("#" + field_id(key) + "-error", Static).update(
-            Content(message) if message else "")
+        box = self.query_one("#" + field_id(key) + "-error", Static)
+        box.update(Content(message) if message else "")
+        box.display = bool(message)
         self.query_one("#" + field_id(key), Input).set_class(bool(message), "-invalid")
 
     def values(self) -> dict[str, str]:
@@ -225,9 +240,8 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
         from faultwise.errors import FaultwiseError
         from faultwise.profile import profile_from_dict
 
-        error = self.query_one("#tf-error", Static)
         if self.family is None:
-            error.update("Choose the family first (1, 2 or 3).")
+            self._say("#tf-error", "Choose the family first (1, 2 or 3).")
             return
         values = self.values()
         bad = False
@@ -236,7 +250,7 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
             self.show_field_error(field.key, problem)
             bad = bad or problem is not None
         if bad:
-            error.update("Correct the fields marked above.")
+            self._say("#tf-error", "Correct the fields marked above.")
             return
         try:
             data = form_to_dict(self.family, values)
@@ -244,11 +258,11 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
         except FaultwiseError as exc:
             key = field_for_error_key(getattr(exc, "key", None), self.family)
             if key is not None:
-                self.show_field_error(key, str(exc))
+                self.show_field_error(key, bench_sentence(exc))
                 self.query_one("#" + field_id(key), Input).focus()
-                error.update("Correct the field marked above.")
+                self._say("#tf-error", "Correct the field marked above.")
             else:
-                error.update(Content(str(exc)))
+                self._say("#tf-error", bench_sentence(exc))
             return
         self.dismiss((profile, data))
 

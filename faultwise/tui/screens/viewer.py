@@ -15,10 +15,17 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static
 
 from faultwise.tui.context import Bench
-from faultwise.tui.widgets.history import check_numbers, node_title
+from faultwise.tui.widgets.history import check_numbers
+from faultwise.tui.wording import caution_title, node_title, symptom_title
 
-INPUT_WIDTH = 14
-RESULT_WIDTH = 12
+INPUT_WIDTH = (6, 26)       # (least, most) cells of the input column
+RESULT_WIDTH = (6, 12)
+
+
+def column_width(cells, heading: str, limits: tuple[int, int]) -> int:
+    """The widest cell (or the heading), kept within ``limits``."""
+    widest = max([len(heading), *(len(c) for c in cells)])
+    return max(limits[0], min(limits[1], widest))
 
 TYPE_WORDS = {"answer": "answer", "skip": "skipped", "note": "note", "acknowledge": "caution read",
               "off-graph": "off-graph finding", "parts": "parts replaced", "resume": "resumed",
@@ -28,19 +35,6 @@ TYPE_WORDS = {"answer": "answer", "skip": "skipped", "note": "note", "acknowledg
 def _when(iso) -> str:
     """``2026-12-01T09:30:00+00:00`` -> ``2026-12-01 09:30``."""
     return str(iso or "")[:16].replace("T", " ")
-
-
-def symptom_title(knowledge, symptom_id) -> str:
-    """The symptom's title when the knowledge has it, else the id as recorded."""
-    symptoms = getattr(knowledge, "symptoms", None) or {}
-    symptom = symptoms.get(symptom_id) if symptom_id else None
-    return getattr(symptom, "title", None) or str(symptom_id or "?")
-
-
-def caution_title(knowledge, caution_id) -> str:
-    cautions = getattr(knowledge, "cautions", None) or {}
-    caution = cautions.get(caution_id) if caution_id else None
-    return getattr(caution, "title", None) or str(caution_id or "")
 
 
 def summary_text(data: dict, knowledge=None) -> Content:
@@ -57,7 +51,7 @@ def summary_text(data: dict, knowledge=None) -> Content:
         bench=str(data.get("bench", "?")), opened=_when(data.get("opened")),
         label=str(profile.get("label", "?")), customer=str(data.get("customer") or "-"),
         complaint=str(data.get("complaint") or "-"),
-        symptom=symptom_title(knowledge, data.get("symptom")),
+        symptom=symptom_title(knowledge, data.get("symptom")) or "?",
         found=str(fault or data.get("off_graph") or "-"),
         parts=", ".join(str(p) for p in data.get("parts") or ()) or "none",
         outcome=str(data.get("outcome") or "-"), minutes=str(data.get("minutes", "-")))
@@ -150,12 +144,6 @@ class CaseViewerScreen(Screen):
 
         self.sub_title = f"case {self.case_id} (read-only)"
         table = self.query_one(DataTable)
-        # Fixed widths so the input and the result stay on screen beside long titles.
-        what_width = max(20, self.app.size.width - 3 - INPUT_WIDTH - RESULT_WIDTH - 4 * 2 - 2)
-        table.add_column("#", key="n", width=3)
-        table.add_column("Step", key="what", width=what_width)
-        table.add_column("Input", key="input", width=INPUT_WIDTH)
-        table.add_column("Result", key="result", width=RESULT_WIDTH)
         try:
             self.data = self.bench.store.read(self.case_id)
         except FaultwiseError as exc:
@@ -165,11 +153,22 @@ class CaseViewerScreen(Screen):
         self.query_one("#viewer-summary", Static).update(summary_text(self.data, knowledge))
         events = [e for e in self.data.get("events") or () if isinstance(e, dict)]
         self.numbers = check_numbers(events)
+        rows = []
         for event in events:
             key = str(event.get("n"))
             self.events[key] = event
             number = self.numbers.get(int(event.get("n") or 0))
-            n, what, typed, result = event_cells(event, knowledge, number)
+            rows.append((key, number, event_cells(event, knowledge, number)))
+        # Widths fitted to the screen so the input and the result stay in view beside long
+        # titles: input and result as wide as their cells (within limits), the step the rest.
+        input_width = column_width((c[2] for _, _, c in rows), "Input", INPUT_WIDTH)
+        result_width = column_width((c[3] for _, _, c in rows), "Result", RESULT_WIDTH)
+        what_width = max(16, self.app.size.width - 3 - input_width - result_width - 4 * 2 - 2)
+        table.add_column("#", key="n", width=3)
+        table.add_column("Step", key="what", width=what_width)
+        table.add_column("Input", key="input", width=input_width)
+        table.add_column("Result", key="result", width=result_width)
+        for key, number, (n, what, typed, result) in rows:
             style = "" if number is not None else "italic"
             table.add_row(Text(n, justify="right"), Text(what, style=style), Text(typed),
                           Text(result), key=key)

@@ -85,7 +85,7 @@ class WalkScreen(CaseScreen):
                 yield History(id="history")
             with VerticalScroll(id="guidance"):
                 yield Static("", id="guidance-text")
-        yield Footer(show_command_palette=False)
+        yield Footer(show_command_palette=False, compact=True)
 
     def on_mount(self) -> None:
         self.sub_title = f"case {self.case.id}"

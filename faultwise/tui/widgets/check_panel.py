@@ -29,20 +29,32 @@ def reading_text(value: float, unit: str) -> str:
         return f"{value:g} {unit}".strip()
 
 
+BASIS_CHARS = 160      # about two lines at 80 columns; the sheet (F6) has the rest
+
+
+def short_basis(text: str, limit: int = BASIS_CHARS) -> str:
+    """The basis cut at a word near ``limit`` characters, pointing to the sheet for the rest
+    (a long worked basis would push the answer history off an 80x24 screen)."""
+    if len(text) <= limit:
+        return text
+    cut = text.rfind(" ", 0, limit)
+    return text[: cut if cut > limit // 2 else limit].rstrip(" ,;") + " … (F6: the full basis)"
+
+
 def band_lines(expected) -> list[Content]:
-    """'Expect 131 V to 160 V (nominal 146 V)' and the basis, typical values marked."""
+    """'Expect 131 V to 160 V (nominal 146 V)', the typical mark, then the basis."""
     unit = expected.unit
     band = Content.from_markup(
         "[b]Expect[/b] $low to $high  [dim](nominal $nominal)[/dim]",
         low=reading_text(expected.low, unit), high=reading_text(expected.high, unit),
         nominal=reading_text(expected.nominal, unit))
     lines = [band]
-    basis = Content.from_markup("[dim]Basis:[/dim] $basis", basis=expected.basis or "-")
-    lines.append(basis)
     if expected.typical:
         lines.append(Content.from_markup(
             "[b]≈ typical:[/b] this band rests on typical values the profile did not "
             "give; treat it as a guide"))
+    lines.append(Content.from_markup("[dim]Basis:[/dim] $basis",
+                                     basis=short_basis(expected.basis or "-")))
     return lines
 
 

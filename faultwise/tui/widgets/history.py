@@ -11,6 +11,8 @@ from typing import Iterable, Mapping
 
 from textual.widgets import DataTable
 
+from faultwise.tui.wording import node_title
+
 MARKS = {True: "✓", False: "!"}
 CHECK_EVENTS = ("answer", "skip")
 
@@ -22,12 +24,6 @@ def check_numbers(events: Iterable[Mapping]) -> dict[int, int]:
         if event.get("type") in CHECK_EVENTS:
             numbers[int(event.get("n", 0))] = len(numbers) + 1
     return numbers
-
-
-def node_title(knowledge, node_id) -> str:
-    """The node's title when the knowledge has it, else the id as recorded."""
-    node = knowledge.nodes.get(node_id) if knowledge is not None and node_id else None
-    return getattr(node, "title", None) or str(node_id or "")
 
 
 def event_rows(events, steps, knowledge=None) -> list[tuple[str, tuple[str, str, str, str]]]:
