@@ -65,6 +65,10 @@ async def verify_low_then_leakage(pilot, bands) -> None:
     band = bands["supply.rectifier_out_v"]
     await answer(pilot, f"{(band.absent_below + band.low) / 2:.1f}")      # verify: low
     await acknowledge_cautions(pilot)
+    # The warning over the leakage check names the verify check by its title.
+    warning = str(pilot.app.screen.query_one("#check-warning").render())
+    assert "DC at the first filter capacitor" in warning
+    assert "supply.rectifier-out" not in warning
     leak = bands["safety.leakage_v"]
     await answer(pilot, f"{leak.high / 4:.2f}")                           # normal
     assert pilot.app.screen.query_one("#close-form").display
@@ -127,6 +131,11 @@ async def test_resume_from_the_confirmation(make_app, cases_dir, bands):
         assert app.screen.id == "walk"
         # The next suspect of the same list: the rectifier.
         assert "rectifier" in str(app.screen.query_one("#check-title").render())
+        # The history names the fault taken back by its title.
+        history = app.screen.query_one("#history")
+        resumed = history.get_row(str(data["events"][-1]["n"]))
+        assert resumed[1].plain == "not cured"
+        assert resumed[3].plain.endswith("Dried-out first filter capacitor")
 
 
 async def test_returned_unrepaired_is_not_asked(make_app, cases_dir, bands):

@@ -36,7 +36,8 @@ async def _settle(pilot) -> None:
 def test_start_screen(snap_app, workspace, snap_compare):
     """Start screen: the safety strip at the top; the case table with one open case
     (20261201-B1-002, selected first), one DAMAGED file (truncated) and one closed case
-    (20261201-B1-001, closed: waiting-parts); the detail line of the selected open case;
+    (20261201-B1-001, closed: waiting-parts), symptoms by title ('Loud hum'); the detail
+    line of the selected open case;
     the footer with ⏎ Open, n New case, v View, r Review, f9 Safety, ? Help, ^q Quit."""
     make_cases(workspace)
 
@@ -62,8 +63,9 @@ def test_walk_guidance_open(snap_app, snap_compare):
     """Walk screen, apprentice case: stage map with SUPPLY highlighted as current and
     '? suspect', the other stages '· to test'; 'Following: Weak first filter capacitor';
     the check 'Does bridging the first capacitor cure the hum?' with choices 1 and 2; the
-    empty answer field; the history (✓ glow, then ! low for 20 V); the guidance pane on the
-    right with How, Why and the suspects list; footer f1 Guide ... esc Back."""
+    empty answer field; the history numbered by check (1 ✓ glow, then 2 ! low for 20 V); the
+    guidance pane on the right with How, Why and the suspects list; the compact footer
+    f1 Guide ... esc Back ^q Quit on one line."""
     assert snap_compare(snap_app(), terminal_size=(80, 24), run_before=_walk_to_suspects(True))
 
 
@@ -77,7 +79,7 @@ def test_conclusion_screen(snap_app, snap_compare):
     """Conclusion screen after the capacitor was cleared and 'B+ comes back': the SUPPLY box
     '✗ FAULTY'; the title '✗ FAULT  Weak rectifier tube (supply)'; the repair step 'Replace
     the rectifier tube.' and 'Parts: 35W4 rectifier tube'; the parts field filled with
-    '35W4 rectifier tube'; the history of the four answers below."""
+    '35W4 rectifier tube'; the history of the four answers below, numbered 1 to 4."""
     async def run_before(pilot):
         await _walk_to_suspects(False)(pilot)
         await pilot.press("2")          # capacitor: no change -> next suspect
@@ -90,7 +92,8 @@ def test_conclusion_screen(snap_app, snap_compare):
 
 def test_readings_sheet(snap_app, snap_compare):
     """Readings sheet of the demo 5-tube set: caption with the set's label; the table with
-    the SUPPLY heading row first and its readings (low, nominal, high, ≈ where typical);
+    the SUPPLY heading row first and its readings (low, nominal, high, and the ≈ column in
+    view at the right where typical);
     the first reading selected and its basis in the panel at the bottom."""
     async def run_before(pilot):
         await new_case(pilot)

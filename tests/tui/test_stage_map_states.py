@@ -68,8 +68,15 @@ async def test_suspects_are_set_aside_after_the_conclusion(make_app, ripple_band
 
 def test_rule_keeps_cleared_stages_and_sets_suspects_aside():
     """The pure rule: cleared stays cleared, suspect becomes not needed, fault is faulty."""
-    from faultwise.tui.widgets.stage_map import (CLEARED, FAULTY, NOT_NEEDED, SUSPECT,
-                                                 STATE_TEXT, StepView, stage_states)
+    from faultwise.tui.widgets.stage_map import (
+        CLEARED,
+        FAULTY,
+        NOT_NEEDED,
+        STATE_TEXT,
+        SUSPECT,
+        StepView,
+        stage_states,
+    )
 
     steps = [StepView("audio", "stays", False), StepView("detector", "ok", True),
              StepView("supply", "high", False), StepView("if", "skipped", True),

@@ -125,6 +125,7 @@ def test_walk_a_case_in_a_real_terminal(tmp_path):
         term.keys("1")
         term.wait_for("Outcome: repaired")          # focus is on the minutes now
         term.keys("C-u")                            # clear the offered minutes
+        term.wait_for("an empty field")             # the field is cleared before typing
         term.type("30")
         term.keys("Enter")
         screen = term.wait_for("closed: repaired")

@@ -122,9 +122,9 @@ class CaseScreen(Screen):
 
     def say(self, exc) -> str:
         """A walk refusal in the bench's words: no location, titles for node ids."""
-        from faultwise.tui.wording import bench_sentence, readable
+        from faultwise.tui.wording import bench_sentence, printable, readable
 
-        return readable(bench_sentence(exc), self.walk.knowledge)
+        return printable(readable(bench_sentence(exc), self.walk.knowledge))
 
     def readable(self, text: str | None) -> str:
         """Text from the walk with node ids replaced by their titles."""

@@ -50,6 +50,14 @@ class CautionScreen(ModalScreen[bool]):
 
     def on_mount(self) -> None:
         self.query_one("#caution-ok", Button).focus()
+        self.call_after_refresh(self._say_more)
+
+    def _say_more(self) -> None:
+        """When the texts do not all fit, say so in the title (the scrollbar is thin)."""
+        if self.query_one("#caution-scroll", VerticalScroll).max_scroll_y > 0:
+            title = self.query_one("#caution-title", Static)
+            title.update(Content.from_markup("$t  [dim](↓ PgDn: more below)[/dim]",
+                                             t=str(title.render())))
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
         return not (action == "leave" and self.reminder)

@@ -22,6 +22,7 @@ from faultwise.tui.widgets.bench_input import BenchInput
 from faultwise.tui.widgets.check_panel import CheckPanel
 from faultwise.tui.widgets.history import History
 from faultwise.tui.widgets.stage_map import StageMap
+from faultwise.tui.wording import printable
 
 OUTCOME_CHOICES = (("repaired", "repaired"), ("returned-unrepaired", "returned unrepaired"),
                    ("waiting-parts", "waiting for parts"))
@@ -136,13 +137,14 @@ class ConclusionScreen(CaseScreen):
             title.update(Content.from_markup("[b]✗ FAULT[/b]  $t  [dim]($s)[/dim]", t=fault.title,
                                              s=fault.stage))
         elif finding:
-            title.update(Content.from_markup("[b]Off-graph finding[/b]  $f", f=finding))
+            title.update(Content.from_markup("[b]Off-graph finding[/b]  $f",
+                                             f=printable(finding)))
         else:
             title.update("Returning the set")
         if prompt.kind == "close":
             # The repair is done: one line of what was fitted leaves room for the close form.
             steps.update(Content.from_markup("[b]Parts replaced:[/b] $p",
-                                             p=", ".join(self.walk.parts) or "none"))
+                                             p=printable(", ".join(self.walk.parts) or "none")))
         elif fault is not None:
             lines = [Content.from_markup("[dim]$i.[/dim] $r", i=str(i), r=r)
                      for i, r in enumerate(fault.repair, 1)]

@@ -21,6 +21,7 @@ from textual.widgets.option_list import Option
 
 from faultwise.tui.context import Bench
 from faultwise.tui.widgets.bench_input import BenchInput
+from faultwise.tui.wording import printable
 
 
 @dataclass(frozen=True)
@@ -159,7 +160,7 @@ class NewCaseScreen(Screen):
         box = self.query_one("#set-list", OptionList)
         box.clear_options()
         # One line per set so four fit: the file name shows once the set is taken.
-        box.add_options([Option(Content.from_markup("$l  [dim]$f[/dim]", l=s.label,
+        box.add_options([Option(Content.from_markup("$l  [dim]$f[/dim]", l=printable(s.label),
                                                     f="" if s.profile else "cannot be read"),
                                 id=str(i))
                          for i, s in enumerate(self.shown_sets)])
@@ -230,7 +231,7 @@ class NewCaseScreen(Screen):
     def _show_chosen_set(self) -> None:
         s = self.chosen_set
         self.query_one("#set-chosen", Static).update(Content.from_markup(
-            "[b]✓[/b] $l  [dim]($f, $src)[/dim]", l=s.label, f=s.profile.family,
+            "[b]✓[/b] $l  [dim]($f, $src)[/dim]", l=printable(s.label), f=s.profile.family,
             src=s.path.name))
 
     @on(Input.Submitted, "#complaint")

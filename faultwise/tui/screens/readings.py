@@ -9,6 +9,7 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static
 
 from faultwise.tui.widgets.check_panel import reading_text
+from faultwise.tui.wording import printable
 
 NUMBER_WIDTH = 9
 SCROLLBAR_WIDTH = 2
@@ -45,7 +46,7 @@ class ReadingsScreen(Screen):
     def compose(self) -> ComposeResult:
         yield Header()
         yield Static(Content.from_markup("[b]Readings sheet[/b]  $label  [dim](≈ typical)[/dim]",
-                                         label=self.label), id="readings-caption")
+                                         label=printable(self.label)), id="readings-caption")
         yield DataTable(id="readings-table", cursor_type="row", zebra_stripes=True)
         yield Static("", id="readings-basis")
         yield Footer()

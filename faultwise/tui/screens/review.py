@@ -18,6 +18,14 @@ from textual.containers import VerticalScroll
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, ProgressBar, Static
 
+from faultwise.tui.wording import printable
+
+
+def cell(text) -> Text:
+    """A table cell of case or knowledge text: literal, control characters made visible."""
+    return Text(printable(text))
+
+
 _EIGHTHS = " \u258f\u258e\u258d\u258c\u258b\u258a\u2589"
 _FULL = "\u2588"
 
@@ -189,7 +197,7 @@ class ReviewScreen(Screen):
         if review.damaged:
             status += f"; {len(review.damaged)} damaged file(s) left unchanged: " + \
                 ", ".join(f"{d.file} ({d.reason})" for d in review.damaged[:5])
-        self.query_one("#review-status", Static).update(status)
+        self.query_one("#review-status", Static).update(printable(status))
         bar = self.query_one(ProgressBar)
         bar.update(total=1, progress=1)
         pairs = self.query_one("#review-pairs", DataTable)
@@ -198,7 +206,7 @@ class ReviewScreen(Screen):
         for p in review.pairs:
             key = f"{p.symptom}|{p.family}"
             self._pairs[key] = p
-            pairs.add_row(Text(self._symptom_title(p.symptom)), Text(p.family), str(p.cases),
+            pairs.add_row(cell(self._symptom_title(p.symptom)), cell(p.family), str(p.cases),
                           _num(p.mean_checks),
                           _num(p.mean_minutes), _num(p.current_minutes), _num(p.data_minutes),
                           _num(p.saving_minutes), key=key)
@@ -206,21 +214,21 @@ class ReviewScreen(Screen):
         skipped = self.query_one("#review-skipped", DataTable)
         skipped.clear()
         for c in review.skipped:
-            skipped.add_row(Text(c.title or c.check), str(c.count),
-                            Text("; ".join(f"{r} ({n})" for r, n in c.reasons)), key=c.check)
+            skipped.add_row(cell(c.title or c.check), str(c.count),
+                            cell("; ".join(f"{r} ({n})" for r, n in c.reasons)), key=c.check)
         findings = self.query_one("#review-findings", DataTable)
         findings.clear()
         for i, g in enumerate(review.off_graph):
-            findings.add_row(Text(g.finding), str(len(g.cases)), Text(", ".join(g.cases)),
+            findings.add_row(cell(g.finding), str(len(g.cases)), cell(", ".join(g.cases)),
                              key=f"group-{i}")
         unreached = self.query_one("#review-unreached", DataTable)
         unreached.clear()
         for f in review.never_reached:
-            unreached.add_row(Text(f.fault), Text(f.title), f.stage, key=f.fault)
+            unreached.add_row(cell(f.fault), cell(f.title), f.stage, key=f.fault)
         reopened = self.query_one("#review-reopened", DataTable)
         reopened.clear()
         for r in review.reopened:
-            reopened.add_row(Text(r.case), Text(r.after), r.rule,
+            reopened.add_row(cell(r.case), cell(r.after), r.rule,
                              "-" if r.days is None else f"{r.days:.0f}", key=r.case)
         self.query_one("#review-months", Static).update(month_chart(review.months))
 
@@ -236,10 +244,10 @@ class ReviewScreen(Screen):
         bar, label = chart_widths(self.app.size.width)
         title = self._symptom_title(pair.symptom)
         named = f" ({title})" if title and title != pair.symptom else ""
-        shares.update(f"{pair.symptom} / {pair.family}{named}: fault shares, smoothed (raw "
-                      "count)\n" + share_chart(pair, bar, label))
+        shares.update(printable(f"{pair.symptom} / {pair.family}{named}: fault shares, "
+                                "smoothed (raw count)\n" + share_chart(pair, bar, label)))
         for f in pair.faults:
-            faults.add_row(Text(f.title), str(f.count), _pct(f.raw), _pct(f.prior),
+            faults.add_row(cell(f.title), str(f.count), _pct(f.raw), _pct(f.prior),
                            _pct(f.smoothed), key=f.fault)
         lines = []
         if pair.saving_minutes is not None:
@@ -253,7 +261,7 @@ class ReviewScreen(Screen):
         for c in pair.never_varied:
             lines.append(f"Never varied: {c.title or c.check} always '{c.outcome}' in "
                          f"{c.cases} case(s)")
-        orders.update("\n".join(lines))
+        orders.update(printable("\n".join(lines)))
 
     def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
         if event.data_table.id == "review-pairs" and event.row_key is not None:

@@ -130,7 +130,9 @@ class StartScreen(Screen):
         self._rows[key] = (kind, item)
         from rich.text import Text
 
-        table.add_row(*(Text(str(c or "")) for c in cells), key=key)
+        from faultwise.tui.wording import printable
+
+        table.add_row(*(Text(printable(c or "")) for c in cells), key=key)
 
     def selected(self) -> tuple[str, object] | None:
         table = self.query_one(DataTable)
@@ -151,24 +153,27 @@ class StartScreen(Screen):
         self.action_open_selected()
 
     def _describe_selected(self) -> None:
+        from faultwise.tui.wording import printable
+
+        self.query_one("#case-detail", Static).update(printable(self._detail_text()))
+
+    def _detail_text(self) -> str:
+        """One or two lines about the selected row (case text: shown through printable)."""
         chosen = self.selected()
-        detail = self.query_one("#case-detail", Static)
         if chosen is None:
-            detail.update("")
-            return
+            return ""
         kind, item = chosen
         if kind == "damaged":
-            detail.update(f"{item.path}: damaged ({item.reason}). It is left untouched and "
-                          "cannot be opened for writing.")
-        elif kind == "open":
+            return (f"{item.path}: damaged ({item.reason}). It is left untouched and "
+                    "cannot be opened for writing.")
+        if kind == "open":
             who = f" Customer: {item.customer}." if item.customer else ""
-            detail.update(f"{item.set_label}. Open since {_when(item.opened)}, last step "
-                          f"{_when(item.updated)}.{who} Enter resumes the walk.")
-        else:
-            fault = item.fault_title or item.fault or "no conclusion"
-            minutes = f"{item.minutes:g}" if item.minutes is not None else "-"
-            detail.update(f"{item.set_label}. Closed {_when(item.updated)}: {fault}; {minutes} "
-                          "min. Enter shows the case read-only.")
+            return (f"{item.set_label}. Open since {_when(item.opened)}, last step "
+                    f"{_when(item.updated)}.{who} Enter resumes the walk.")
+        fault = item.fault_title or item.fault or "no conclusion"
+        minutes = f"{item.minutes:g}" if item.minutes is not None else "-"
+        return (f"{item.set_label}. Closed {_when(item.updated)}: {fault}; {minutes} "
+                "min. Enter shows the case read-only.")
 
     # actions --------------------------------------------------------------------------
 

@@ -148,12 +148,15 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="modal-box", id="template-box"):
-            yield Static("Set from a family template", classes="modal-title")
-            yield Static(Content("\n").join(
-                Content.from_markup("[b reverse] $n [/]  $l", n=str(i), l=label)
-                for i, (_, label) in enumerate(FAMILY_CHOICES, 1)), id="family-choices")
-            yield BenchInput(id="tf-family", compact=True, placeholder="family: 1, 2 or 3")
-            yield Static("", id="tf-family-error", classes="field-error")
+            # Head and foot are docked; the fields between them scroll (so the hint and the
+            # form's error stay on screen at 80x24).
+            with Vertical(id="tf-head"):
+                yield Static("Set from a family template", classes="modal-title")
+                yield Static(Content("\n").join(
+                    Content.from_markup("[b reverse] $n [/]  $l", n=str(i), l=label)
+                    for i, (_, label) in enumerate(FAMILY_CHOICES, 1)), id="family-choices")
+                yield BenchInput(id="tf-family", compact=True, placeholder="family: 1, 2 or 3")
+                yield Static("", id="tf-family-error", classes="field-error")
             with Vertical(id="tf-foot"):
                 yield Static("", id="tf-error", classes="field-error")
                 yield Static("[dim]Empty fields take typical values. F10 uses the set, Esc "

@@ -15,10 +15,10 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static
 
 from faultwise.tui.context import Bench
-from faultwise.tui.widgets.history import check_numbers
-from faultwise.tui.wording import caution_title, node_title, symptom_title
+from faultwise.tui.widgets.history import MARKS, check_numbers
+from faultwise.tui.wording import caution_title, node_title, printable, symptom_title
 
-INPUT_WIDTH = (6, 26)       # (least, most) cells of the input column
+INPUT_WIDTH = (6, 20)       # (least, most) cells of the input column
 RESULT_WIDTH = (6, 12)
 
 
@@ -38,11 +38,12 @@ def _when(iso) -> str:
 
 
 def summary_text(data: dict, knowledge=None) -> Content:
-    """Header lines of a case: id, set, complaint, conclusion, outcome."""
+    """Header lines of a case: id, set, complaint, conclusion, outcome (case text through
+    printable: literal, and no control character reaches the terminal)."""
     conclusion = data.get("conclusion") or {}
     fault = conclusion.get("title") if isinstance(conclusion, dict) else None
     profile = (data.get("set") or {}).get("profile") or {}
-    return Content.from_markup(
+    return _safe_markup(
         "[b]$id[/b]  $status  [dim]bench $bench, opened $opened[/dim]\n"
         "[b]Set:[/b] $label   [b]Customer:[/b] $customer\n"
         "[b]Complaint:[/b] $complaint  [dim]($symptom)[/dim]\n"
@@ -69,7 +70,12 @@ def event_cells(event: dict, knowledge, number: int | None = None) -> tuple[str,
             what = f"[{phase}] {what}"
         if kind == "skip":
             return n, what, str(event.get("reason") or "-"), "skipped"
-        return n, what, str(event.get("raw", "")), str(event.get("outcome", ""))
+        outcome = str(event.get("outcome", ""))
+        node = getattr(knowledge, "nodes", {}).get(event.get("node")) if knowledge else None
+        normal = getattr(node, "normal", None)
+        if normal is not None:                  # marked as the walk's history marks it
+            outcome = f"{MARKS[outcome == normal]} {outcome}"
+        return n, what, str(event.get("raw", "")), outcome
     text = {"note": event.get("text"), "off-graph": event.get("finding"),
             "acknowledge": caution_title(knowledge, event.get("caution")),
             "resume": node_title(knowledge, event.get("fault")),
@@ -79,28 +85,32 @@ def event_cells(event: dict, knowledge, number: int | None = None) -> tuple[str,
     return n, TYPE_WORDS.get(kind, kind), str(text or ""), result
 
 
+def _safe_markup(template: str, **values: str) -> Content:
+    """``Content.from_markup`` with every value made printable."""
+    return Content.from_markup(template, **{k: printable(v) for k, v in values.items()})
+
+
 def event_detail(event: dict, knowledge, number: int | None = None) -> Content:
     """Everything recorded for one event, as safe Content (``number``: the check's step)."""
     kind = str(event.get("type"))
     head = f"Check {number}: " if number is not None else ""
-    lines = [Content.from_markup("[b]$head$type[/b]  [dim]$at[/dim]", head=head,
+    lines = [_safe_markup("[b]$head$type[/b]  [dim]$at[/dim]", head=head,
                                  type=TYPE_WORDS.get(kind, kind), at=_when(event.get("at")))]
     if event.get("node"):
-        lines.append(Content.from_markup("$t  [dim]($id)[/dim]",
-                                         t=node_title(knowledge, event["node"]),
-                                         id=str(event["node"])))
+        lines.append(_safe_markup("$t  [dim]($id)[/dim]",
+                                  t=node_title(knowledge, event["node"]), id=str(event["node"])))
     band = event.get("band")
     if isinstance(band, dict):
         def num(key: str) -> str:
             value = band.get(key)
             return f"{value:g}" if isinstance(value, (int, float)) else "?"
 
-        lines.append(Content.from_markup(
+        lines.append(_safe_markup(
             "Band $low to $high $unit (nominal $nom)$typ\nBasis: $basis", low=num("low"),
             high=num("high"), unit=str(band.get("unit", "")), nom=num("nominal"),
             typ="  ≈ typical" if band.get("typical") else "", basis=str(band.get("basis", "-"))))
     if kind == "acknowledge" and event.get("caution"):
-        lines.append(Content.from_markup("[b]Caution:[/b] $t  [dim]($id)[/dim]",
+        lines.append(_safe_markup("[b]Caution:[/b] $t  [dim]($id)[/dim]",
                                          t=caution_title(knowledge, event["caution"]),
                                          id=str(event["caution"])))
     node = knowledge.nodes.get(event.get("node")) if knowledge is not None else None
@@ -112,7 +122,7 @@ def event_detail(event: dict, knowledge, number: int | None = None) -> Content:
             value = str(event[key])
             if key == "outcome" and kind != "close" and choices.get(value):
                 value = f"{value} ({choices[value]})"     # the choice as the tech saw it
-            lines.append(Content.from_markup("[b]$l:[/b] $v", l=label, v=value))
+            lines.append(_safe_markup("[b]$l:[/b] $v", l=label, v=value))
     return Content("\n").join(lines)
 
 
@@ -147,7 +157,7 @@ class CaseViewerScreen(Screen):
         try:
             self.data = self.bench.store.read(self.case_id)
         except FaultwiseError as exc:
-            self.query_one("#viewer-summary", Static).update(Content(str(exc)))
+            self.query_one("#viewer-summary", Static).update(Content(printable(exc)))
             return
         knowledge = self.bench.knowledge
         self.query_one("#viewer-summary", Static).update(summary_text(self.data, knowledge))
@@ -170,8 +180,8 @@ class CaseViewerScreen(Screen):
         table.add_column("Result", key="result", width=result_width)
         for key, number, (n, what, typed, result) in rows:
             style = "" if number is not None else "italic"
-            table.add_row(Text(n, justify="right"), Text(what, style=style), Text(typed),
-                          Text(result), key=key)
+            table.add_row(Text(n, justify="right"), Text(printable(what), style=style),
+                          Text(printable(typed)), Text(printable(result)), key=key)
         table.focus()
 
     def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:

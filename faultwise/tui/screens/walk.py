@@ -18,6 +18,7 @@ from faultwise.tui.screens.case_screen import CaseScreen, open_walk
 from faultwise.tui.widgets.check_panel import CheckPanel
 from faultwise.tui.widgets.history import History
 from faultwise.tui.widgets.stage_map import StageMap, StepView, stage_states
+from faultwise.tui.wording import printable
 
 __all__ = ["WalkScreen", "open_walk", "guidance_for", "map_states"]
 
@@ -106,8 +107,8 @@ class WalkScreen(CaseScreen):
         context = " › ".join(f.current_label or f.title for f in prompt.context)
         self.query_one("#walk-context", Static).update(
             Content.from_markup("[dim]Following:[/dim] $c", c=context) if context else
-            Content.from_markup("[dim]Complaint:[/dim] $c", c=self.case.data.get("complaint")
-                                or self.walk.symptom))
+            Content.from_markup("[dim]Complaint:[/dim] $c", c=printable(
+                self.case.data.get("complaint") or self.walk.symptom)))
         if prompt.kind == "check":
             panel.display = True
             escalate.display = False

@@ -137,7 +137,10 @@ class CheckPanel(Vertical):
     def show_error(self, message: str | None) -> None:
         """The reason the last input was refused (nothing was recorded), or clear it."""
         box = self.query_one("#answer-error", Static)
-        box.update(Content.from_markup("Not recorded: $m", m=message) if message else "")
+        from faultwise.tui.wording import printable
+
+        box.update(Content.from_markup("Not recorded: $m", m=printable(message))
+                   if message else "")
         self.input.set_class(bool(message), "-invalid")
 
     @on(Input.Submitted, "#answer")

@@ -11,7 +11,7 @@ from typing import Iterable, Mapping
 
 from textual.widgets import DataTable
 
-from faultwise.tui.wording import node_title
+from faultwise.tui.wording import node_title, printable
 
 MARKS = {True: "✓", False: "!"}
 CHECK_EVENTS = ("answer", "skip")
@@ -89,7 +89,7 @@ class History(DataTable):
                 style = "italic"
             else:
                 style = "bold" if result.startswith("!") else ""
-            self.add_row(Text(number, justify="right"), Text(result, style=style),
-                         Text(reading), Text(what), key=key)
+            self.add_row(Text(number, justify="right"), Text(printable(result), style=style),
+                         Text(printable(reading)), Text(printable(what)), key=key)
         if self.row_count:
             self.move_cursor(row=self.row_count - 1)

@@ -116,7 +116,7 @@ class StageMap(Horizontal):
     StageMap .stage-box.-not-needed {
         color: $secondary;
         text-style: italic;
-        border: dashed $secondary 50%;
+        border: round $secondary 50%;
     }
     StageMap .stage-box.-current {
         border: heavy $accent;
