@@ -236,10 +236,11 @@ class ConclusionScreen(CaseScreen):
 
     def _take_outcome(self, outcome: str) -> None:
         self.outcome = outcome
-        self.query_one("#close-error", Static).update(
-            Content(f"Outcome: {outcome}. Type the minutes and press Enter."))
         self.query_one("#close-outcome", Input).value = dict(OUTCOME_CHOICES)[outcome]
         self.query_one("#close-minutes", Input).focus()
+        # Said last, so that the message on screen means the minutes field has the focus.
+        self.query_one("#close-error", Static).update(
+            Content(f"Outcome: {outcome}. Type the minutes and press Enter."))
 
     def _confirm_repaired(self) -> None:
         """Ask before a repaired close with a verify reading off; nothing is recorded here."""
