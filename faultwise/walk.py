@@ -347,10 +347,11 @@ class Walk:
         if st.phase != "diagnose":
             return None
         came = st.came_from
-        route = f"{came[0]} gave '{came[1]}'" if came else ""
+        route = f"'{self._title(came[0])}' gave '{came[1]}'" if came else ""
         if not st.stack:
+            sym = self.knowledge.symptoms[self.symptom].title
             text = (f"The reading before ({route}) routes here." if came
-                    else f"The first check for '{self.symptom}' on {self.family} sets.")
+                    else f"The first check for '{sym}' on {self.family} sets.")
             return Explanation(st.node, None, None, (), (), came, text)
         frame = st.stack[-1]
         suspects = self.knowledge.node(frame.suspects)
@@ -366,7 +367,7 @@ class Walk:
                     f"p = {chosen.p:.2f}, {chosen.cost:g} min, p/c = {chosen.ratio:.3g}")
             text += f"; {closed} closed case{'s' if closed != 1 else ''} found a fault under it."
             if frame.cleared:
-                text += f" Cleared already: {', '.join(frame.cleared)}."
+                text += f" Cleared already: {', '.join(self._title(c) for c in frame.cleared)}."
         return Explanation(st.node, frame.suspects, chosen, ranked, tuple(frame.cleared), came, text)
 
     def can_close(self, outcome: str) -> str | None:
@@ -390,7 +391,8 @@ class Walk:
                 return "finish the verify checks before closing as repaired"
             bad = [c for c in closing if st.closing_answers.get(c) != self.knowledge.node(c).normal]
             if bad:
-                return (f"the closing check {bad[0]} was not normal: find the cause before the "
+                return (f"the closing check '{self._title(bad[0])}' was not normal: "
+                        "find the cause before the "
                         "set goes back")
         return None
 
@@ -571,11 +573,17 @@ class Walk:
                                 label, tuple(f.cleared)))
         return tuple(frames)
 
+    def _title(self, node_id: str) -> str:
+        """A node's title for a sentence a tech reads (the id when it has none)."""
+        node = self.knowledge.nodes.get(node_id)
+        return getattr(node, "title", "") or node_id
+
     def _verify_warning(self, st: _State) -> str | None:
         """What the tech must know now: a verify reading not normal, a closing check failed."""
         notes = []
         if st.verify_bad:
-            notes.append(f"verify reading not normal ({', '.join(st.verify_bad)}): the repair "
+            titles = ", ".join(self._title(c) for c in st.verify_bad)
+            notes.append(f"verify reading not normal ({titles}): the repair "
                          "may not have cured the fault; resume the diagnosis to try the next "
                          "suspect")
         for cid, outcome in st.closing_answers.items():
