@@ -16,6 +16,18 @@ from pathlib import Path
 KB = Path(__file__).parent / "fixtures" / "kb_walk"
 
 
+
+def script_step(walk, kind: str, text: str) -> None:
+    """Give the walk one step of SCRIPT: an answer, a note, the parts, or the close."""
+    if kind == "answer":
+        walk.answer(text)
+    elif kind == "note":
+        walk.note(text)
+    elif kind == "parts":
+        walk.record_parts([text])
+    else:
+        walk.close(text, 30)
+
 def series_profile():
     from faultwise.profile import load_profile
 
@@ -78,14 +90,7 @@ def main(cases_dir: str, case_id: str, saves_per_step: int = 1) -> int:
                             expectations=expectations())
     done = len(walk.events)
     for kind, text in SCRIPT[done:]:
-        if kind == "answer":
-            walk.answer(text)
-        elif kind == "note":
-            walk.note(text)
-        elif kind == "parts":
-            walk.record_parts([text])
-        else:
-            walk.close(text, 30)
+        script_step(walk, kind, text)
         for _ in range(saves_per_step):
             case.record(walk)
     case.close()

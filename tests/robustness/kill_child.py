@@ -92,14 +92,7 @@ def main(folder: str, point: str, save: int, saves_per_step: int = 1) -> int:
         walk = Walk(kn, H.series_profile(), "dead-lights-on", expectations=ex, clock=clock)
     done = len(walk.events)
     for kind, text in H.SCRIPT[done:]:
-        if kind == "answer":
-            walk.answer(text)
-        elif kind == "note":
-            walk.note(text)
-        elif kind == "parts":
-            walk.record_parts([text])
-        else:
-            walk.close(text, 30)
+        H.script_step(walk, kind, text)
         for _ in range(saves_per_step):
             case.record(walk)
     case.close()

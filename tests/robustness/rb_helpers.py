@@ -39,14 +39,7 @@ def clock() -> datetime:
 def run_script(walk, script=H.SCRIPT, upto: int | None = None):
     """Drive ``walk`` through ``helpers_walk_proc.SCRIPT`` (a full repaired case)."""
     for kind, text in script[:upto]:
-        if kind == "answer":
-            walk.answer(text)
-        elif kind == "note":
-            walk.note(text)
-        elif kind == "parts":
-            walk.record_parts([text])
-        else:
-            walk.close(text, 30)
+        H.script_step(walk, kind, text)
     return walk
 
 
