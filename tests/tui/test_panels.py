@@ -4,7 +4,7 @@ template form, and the stage map's states (word and colour class)."""
 from __future__ import annotations
 
 from conftest import read_case
-from tui_helpers import acknowledge_cautions, answer, new_case, ready, type_text
+from tui_helpers import past_first_observation, acknowledge_cautions, answer, new_case, ready, type_text
 
 from faultwise.errors import InputError
 from faultwise.expect import expect
@@ -36,11 +36,7 @@ async def test_why_this_check_lists_suspects_by_p_over_c(make_app, knowledge_dir
 
     app = make_app()
     async with app.run_test(size=(80, 24)) as pilot:
-        await new_case(pilot)
-        await acknowledge_cautions(pilot)
-        await pilot.press("1")
-        await pilot.pause()
-        await acknowledge_cautions(pilot)
+        await past_first_observation(pilot)
         await answer(pilot, "20")                   # low B+ -> the suspects list
         await pilot.press("f2")
         await pilot.pause()

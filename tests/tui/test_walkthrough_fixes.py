@@ -8,7 +8,7 @@ lines within the width.
 from __future__ import annotations
 
 from textual.geometry import Region
-from tui_helpers import acknowledge_cautions, answer, make_cases, new_case, ready
+from tui_helpers import past_first_observation, acknowledge_cautions, answer, make_cases, new_case, ready
 
 from faultwise.errors import InputError
 from faultwise.units import parse_reading
@@ -68,11 +68,7 @@ async def test_template_form_fields_are_visible_at_80x24(make_app):
 async def test_a_refused_reading_is_explained_without_node_and_key(make_app):
     app = make_app()
     async with app.run_test(size=(80, 24)) as pilot:
-        await new_case(pilot)
-        await acknowledge_cautions(pilot)
-        await pilot.press("1")
-        await pilot.pause()
-        await acknowledge_cautions(pilot)
+        await past_first_observation(pilot)
         await pilot.press("enter")                       # nothing typed
         await pilot.pause()
         shown = str(app.screen.query_one("#answer-error").render())
@@ -87,11 +83,7 @@ async def test_a_refused_reading_is_explained_without_node_and_key(make_app):
 async def test_why_names_cleared_suspects_by_title(make_app):
     app = make_app()
     async with app.run_test(size=(80, 24)) as pilot:
-        await new_case(pilot)
-        await acknowledge_cautions(pilot)
-        await pilot.press("1")
-        await pilot.pause()
-        await acknowledge_cautions(pilot)
+        await past_first_observation(pilot)
         await answer(pilot, "20")                        # low: the suspects list
         await pilot.press("2")                           # bridging: no change, cleared
         await pilot.pause()
@@ -107,11 +99,7 @@ async def test_long_repair_steps_scroll_and_the_parts_field_stays(make_app, know
     """The fixture's capacitor fault has six long repair steps: more than fit at 80x24."""
     app = make_app()
     async with app.run_test(size=(80, 24)) as pilot:
-        await new_case(pilot)
-        await acknowledge_cautions(pilot)
-        await pilot.press("1")
-        await pilot.pause()
-        await acknowledge_cautions(pilot)
+        await past_first_observation(pilot)
         await answer(pilot, "20")
         await pilot.press("1")                           # bridging cures it: the fault
         await pilot.pause()
@@ -153,11 +141,7 @@ async def test_the_close_message_is_on_screen(make_app):
 async def test_readings_sheet_fits_and_opens_on_the_current_reading(make_app):
     app = make_app()
     async with app.run_test(size=(80, 24)) as pilot:
-        await new_case(pilot)
-        await acknowledge_cautions(pilot)
-        await pilot.press("1")
-        await pilot.pause()
-        await acknowledge_cautions(pilot)
+        await past_first_observation(pilot)
         name = app.screen.walk.prompt().expected.name      # the DC reading being asked
         await pilot.press("f6")
         await pilot.pause()
@@ -216,11 +200,7 @@ async def test_long_basis_is_cut_and_points_to_the_sheet(make_app):
     assert short_basis("short basis") == "short basis"
     app = make_app()
     async with app.run_test(size=(80, 24)) as pilot:
-        await new_case(pilot)
-        await acknowledge_cautions(pilot)
-        await pilot.press("1")
-        await pilot.pause()
-        await acknowledge_cautions(pilot)
+        await past_first_observation(pilot)
         shown = str(app.screen.query_one("#check-expected").render())
         assert "F6: the full basis" in shown
         # The history keeps its rows on screen under the check.

@@ -55,6 +55,15 @@ async def acknowledge_cautions(pilot: Pilot) -> int:
     return shown
 
 
+
+async def past_first_observation(pilot: Pilot) -> None:
+    """New case, the first observation answered with choice 1, its cautions acknowledged."""
+    await new_case(pilot)
+    await acknowledge_cautions(pilot)
+    await pilot.press("1")
+    await pilot.pause()
+    await acknowledge_cautions(pilot)
+
 def make_cases(workspace) -> None:
     """Case files for the start screen: 001 closed (waiting-parts), 002 open, one damaged."""
     from conftest import fixed_clock
