@@ -66,19 +66,8 @@ def caution_title(knowledge, caution_id) -> str:
     return getattr(caution, "title", None) or str(caution_id or "")
 
 
-CONTROL = re.compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
-
-
 def printable(text) -> str:
-    """``text`` with its control characters made visible and harmless: C0 as the Unicode
-    control pictures (ESC -> U+241B), DEL as U+2421, C1 (the 8-bit CSI 0x9B...) as U+FFFD.
-    ECMA-48 control sequences start with these; passed to the terminal they would act
-    (erase the screen, set the clipboard). Tab and newline are kept. The record is never
-    changed: this is for the screen only."""
-    def picture(match: re.Match) -> str:
-        code = ord(match.group(0))
-        if code < 0x20:
-            return chr(0x2400 + code)
-        return "\u2421" if code == 0x7F else "\ufffd"
+    """``text`` made harmless on screen (see :mod:`faultwise.safe_text`); the record is unchanged."""
+    from faultwise.safe_text import shown_text
 
-    return CONTROL.sub(picture, str(text))
+    return shown_text(text)
