@@ -6,8 +6,9 @@ scatter a real meter shows), the walk asks its checks and records the answers, t
 the verify readings, the leakage check and the close, all through ``Walk`` and
 ``CaseStore``. The generator is seeded: the same seed and the same knowledge give the same
 cases. The shop's mix of faults is invented but deliberately differs from the graph's
-priors in a few places (each pair's second most likely fault is seen four times as often),
-so that a review has a pattern to find and ``review --learn`` changes an order.
+priors: for every complaint and family, one fault the graph rates middling is this shop's
+own common fault (seen twice as often as the graph's likeliest one), so that a review has
+a pattern to find, ``review --learn`` changes an order, and the learned order pays.
 """
 
 from __future__ import annotations
@@ -89,7 +90,8 @@ def _profiles(knowledge_dir: Path):
 
 
 def _shop_weights(knowledge, symptom: str, profile) -> dict[str, float]:
-    """The invented shop's fault mix for this set: the graph's probabilities, second-likeliest x4."""
+    """The invented shop's fault mix for this set: the graph's probabilities, with the
+    middle-ranked fault raised to twice the likeliest (this shop's own common fault)."""
     from faultwise.applicability import applying_faults
     from faultwise.expect import expect
     from faultwise.rank import fault_probabilities
@@ -99,8 +101,8 @@ def _shop_weights(knowledge, symptom: str, profile) -> dict[str, float]:
     faults = [f for f in probs if f in fits and knowledge.nodes[f].signature is not None]
     ordered = sorted(faults, key=lambda f: (-probs[f], f))
     weights = {f: probs[f] for f in ordered}
-    if len(ordered) > 1:
-        weights[ordered[1]] *= 4.0
+    if len(ordered) > 2:                 # this shop's own common fault, rare elsewhere
+        weights[ordered[len(ordered) // 2]] = 2.0 * probs[ordered[0]]
     return weights
 
 
@@ -245,7 +247,7 @@ def _one_case(store, knowledge, profiles, rng: random.Random, clock: _Clock, pla
         case.close()
 
 
-def generate(knowledge_dir: Path, cases_dir: Path, *, seed: int = 7, closed: int = 120,
+def generate(knowledge_dir: Path, cases_dir: Path, *, seed: int = 7, closed: int = 200,
              open_cases: int = 3, force: bool = False) -> DemoSummary:
     """Write the demo cases into ``cases_dir`` (refuses a folder holding cases unless ``force``)."""
     from faultwise.cases import CaseStore

@@ -10,7 +10,7 @@ def register(sub) -> None:
                        description="Walk the graph for an invented shop and write its cases.")
     add_workspace_options(p)
     p.add_argument("--seed", type=int, default=7, help="random seed (default 7)")
-    p.add_argument("--closed", type=int, default=120, help="closed cases (default 120)")
+    p.add_argument("--closed", type=int, default=200, help="closed cases (default 200)")
     p.add_argument("--open", type=int, default=3, dest="open_cases", help="open cases (default 3)")
     p.add_argument("--force", action="store_true", help="replace the cases already in the folder")
     p.set_defaults(func=run)
