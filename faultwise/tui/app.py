@@ -57,6 +57,7 @@ class FaultwiseApp(App[None]):
         super().__init__()
         self.bench = bench
         self._waiting: list[Callable[[], None]] = []
+        self._knowledge_started = False
         self.register_theme(BENCH_THEME)
         self.theme = BENCH_THEME.name
 
@@ -71,7 +72,11 @@ class FaultwiseApp(App[None]):
         self.sub_title = f"bench {self.bench.workspace.bench}"
         if not self.bench.settings.safety_acknowledged:
             self.show_safety(first_run=True)
+        # After the first paint; the timer is a backstop: on a busy machine an
+        # after-refresh callback queued while the safety notice is pushed can be lost,
+        # and then nothing would ever load (seen under load in tmux).
         self.call_after_refresh(self._start_knowledge_load)
+        self.set_timer(0.5, self._start_knowledge_load)
 
     def show_safety(self, *, first_run: bool = False) -> None:
         from faultwise.tui.screens.safety import SafetyScreen
@@ -88,6 +93,10 @@ class FaultwiseApp(App[None]):
                             markup=False)
 
     def _start_knowledge_load(self) -> None:
+        """Start loading the knowledge once (idempotent: several paths may ask for it)."""
+        if self._knowledge_started:
+            return
+        self._knowledge_started = True
         self.run_worker(self._load_knowledge, name="knowledge", thread=True,
                         exit_on_error=False)
 
@@ -126,6 +135,7 @@ class FaultwiseApp(App[None]):
             callback()
             return
         self._waiting.append(callback)
+        self._start_knowledge_load()
         self.notify("Loading the knowledge...", timeout=2)
 
     def action_bench_help(self) -> None:
