@@ -1,8 +1,10 @@
-"""Sentences from the walk, put in the bench's words: ids become titles.
+"""Domain text put in the bench's words: ids become titles, locations are dropped.
 
-The walk's warnings and explanations name nodes by id (``supply.hum-ripple``); on the
-bench screen the check's title is what the technician knows it by. Ids the knowledge does
-not hold are left as they are.
+The walk's own sentences already name checks and complaints by title. What still carries
+ids is text made for the command line, where an id is useful: the shop review's order
+lines, a refusal's location. On the bench screen the title is what the technician knows
+a check by, so :func:`readable` swaps the ids it knows for titles (unknown ids are left as
+they are) and :func:`bench_sentence` drops the file/node/key location.
 """
 
 from __future__ import annotations
