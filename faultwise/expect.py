@@ -86,8 +86,12 @@ def expectation_names(family: str) -> frozenset[str]:
         names |= {"heaters.string_v", "heaters.string_ma", "heaters.dropping_ohm"}
     else:
         names |= {"heaters.winding_v", "heaters.total_a", "supply.secondary_v"}
+    from faultwise.expect_stages import NO_STAGE_ROLES, STAGE_FIELDS
+
     for role in _tube_roles():
         names |= {f"heater.{role}.v", f"heater.{role}.cold_ohm"}
+        if role not in NO_STAGE_ROLES:
+            names |= {f"stage.{role}.{f}" for f in STAGE_FIELDS}
     return frozenset(names)
 
 
@@ -101,6 +105,7 @@ def expect(profile, *, tube_table=None) -> dict[str, Expected]:
     from faultwise.expect_bias import add_battery, add_bias
     from faultwise.expect_context import Context
     from faultwise.expect_heaters import add_heaters
+    from faultwise.expect_stages import add_tube_stages
     from faultwise.expect_signal import add_detector, add_if_strip, add_oscillator
     from faultwise.expect_supply import add_mains, add_rectifier
     from faultwise.expect_tuning import add_antenna, add_tuning
@@ -111,6 +116,7 @@ def expect(profile, *, tube_table=None) -> dict[str, Expected]:
         add_heaters(ctx)
         add_rectifier(ctx)
         add_output_tube(ctx)
+        add_tube_stages(ctx)
     else:
         add_battery(ctx)
         add_bias(ctx)

@@ -53,6 +53,10 @@ class Tube:
     heater_a: float
     cathode_ohm: float | None = None
     cathode_ma: float | None = None
+    plate_ohm: float | None = None     # plate load: transformer primary DC or plate resistor
+    screen_ohm: float | None = None    # screen dropping resistor; 0 = fed directly
+    grid_ohm: float | None = None      # grid leak / oscillator grid resistor
+    supply: str | None = None          # first | second: the filter point the plate returns to
 
 
 @dataclass(frozen=True)
@@ -244,7 +248,9 @@ def profile_to_dict(profile: Profile, with_typical: bool = True) -> dict:
     if p.line_powered:
         d["tubes"] = [_drop_none({"role": t.role, "type": t.type, "heater_v": t.heater_v,
                                   "heater_a": t.heater_a, "cathode_ohm": t.cathode_ohm,
-                                  "cathode_ma": t.cathode_ma}) for t in p.tubes]
+                                  "cathode_ma": t.cathode_ma, "plate_ohm": t.plate_ohm,
+                                  "screen_ohm": t.screen_ohm, "grid_ohm": t.grid_ohm,
+                                  "supply": t.supply}) for t in p.tubes]
         if p.heater_winding_v is not None:
             d["heater_winding_v"] = p.heater_winding_v
         s = p.supply

@@ -23,7 +23,10 @@ SECTION_KEYS = {
                "second_cap_uf", "load_ma", "filter_load_ma", "secondary_v"),
     "audio": ("speaker_ohm", "output_turns_ratio"),
 }
-TUBE_KEYS = ("role", "type", "heater_v", "heater_a", "cathode_ohm", "cathode_ma")
+TUBE_KEYS = ("role", "type", "heater_v", "heater_a", "cathode_ohm", "cathode_ma", "plate_ohm",
+             "screen_ohm", "grid_ohm", "supply")
+TUBE_SUPPLY_POINTS = ("first", "second")
+"""Where a tube's plate load returns: the first or the second filter capacitor."""
 TRANSISTOR_KEYS = ("role", "material", "polarity", "beta", "bias")
 BIAS_KEYS = ("top_ohm", "bottom_ohm", "emitter_ohm", "collector_ohm")
 
