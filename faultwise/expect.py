@@ -75,6 +75,7 @@ def expectation_names(family: str) -> frozenset[str]:
         names = common | {"supply.battery_v", "supply.standby_ma", "oscillator.emitter_shift_v"}
         for role in _transistor_roles():
             names |= {f"bias.{role}.{f}" for f in BIAS_FIELDS}
+        names |= {"bias.output.idle_ma", "bias.output.bases_v", "bias.output.midpoint_v"}
         return frozenset(names)
     if family not in ("series-string", "transformer"):
         return frozenset()

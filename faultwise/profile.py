@@ -27,7 +27,7 @@ from faultwise.profile_typical import (  # re-exported: the typical tables
 
 __all__ = [
     "FAMILIES", "LINE_FAMILIES", "TUBE_ROLES", "RECTIFIERS", "CIRCUITS", "FORMAT",
-    "TRANSISTOR_ROLES", "MATERIALS", "POLARITIES", "OUTPUT_ROLES",
+    "TRANSISTOR_ROLES", "MATERIALS", "POLARITIES", "OUTPUT_ROLES", "OUTPUT_STAGES",
     "Tube", "Bias", "Transistor", "Supply", "Audio", "Profile",
     "profile_from_dict", "load_profile", "profile_to_dict",
     # the typical tables, from faultwise.profile_typical
@@ -113,6 +113,7 @@ class Profile:
     supply: Supply = field(default_factory=Supply)
     audio: Audio = field(default_factory=Audio)
     transistors: tuple[Transistor, ...] = ()
+    output_stage: str | None = None    # transistor: push-pull-transformer | complementary | single-ended
     typical: frozenset[str] = frozenset()
     source: str | None = None          # the file it came from, for messages
 
@@ -147,6 +148,7 @@ TRANSISTOR_ROLES = ("rf", "converter", "mixer", "oscillator", "if", "if2", "if3"
 MATERIALS = ("germanium", "silicon")
 POLARITIES = ("pnp", "npn")
 OUTPUT_ROLES = ("output", "output2")
+OUTPUT_STAGES = ("push-pull-transformer", "complementary", "single-ended")
 
 
 # --- entry points ------------------------------------------------------------------------
@@ -172,7 +174,7 @@ def profile_from_dict(data, source: str = "<profile>", knowledge_dir=None) -> Pr
     fields = read_common(r, data, family)
     tube_family = family in LINE_FAMILIES
     if tube_family:
-        for key in ("battery", "transistors"):
+        for key in ("battery", "transistors", "output_stage"):
             r.forbid(data, key, "", f"a {family} set is line-powered with tubes",
                      "remove it, or make the family transistor")
         if family == "series-string":
@@ -207,11 +209,22 @@ def profile_from_dict(data, source: str = "<profile>", knowledge_dir=None) -> Pr
                            "battery.volts_v")
         transistors = read_transistors(r, data, battery_v)
         audio = read_audio(r, data, family, [], None)
+        output_stage = r.fill(r.choice(data, "output_stage", "", OUTPUT_STAGES),
+                              typical_output_stage(transistors), "output_stage")
         profile = Profile(label=label, family=family, battery_v=battery_v,
                           transistors=tuple(transistors), audio=audio, source=str(source),
-                          **fields)
+                          output_stage=output_stage, **fields)
     declared = read_typical_list(r, data, profile)
     return _replace(profile, typical=frozenset(r.typical | declared))
+
+
+def typical_output_stage(transistors) -> str:
+    """Two output transistors of opposite polarity: complementary; of the same polarity:
+    push-pull with a driver transformer; one: single-ended (trade practice)."""
+    outs = [t for t in transistors if t.role in OUTPUT_ROLES]
+    if len(outs) < 2:
+        return "single-ended"
+    return "complementary" if outs[0].polarity != outs[1].polarity else "push-pull-transformer"
 
 
 def _replace(profile: Profile, **changes) -> Profile:
@@ -261,6 +274,8 @@ def profile_to_dict(profile: Profile, with_typical: bool = True) -> dict:
         d["transistors"] = [
             {"role": t.role, "material": t.material, "polarity": t.polarity, "beta": t.beta,
              "bias": {k: getattr(t.bias, k) for k in BIAS_KEYS}} for t in p.transistors]
+        if p.output_stage is not None:
+            d["output_stage"] = p.output_stage
     if with_typical:
         d["typical"] = sorted(p.typical)
     return d

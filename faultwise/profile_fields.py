@@ -15,7 +15,8 @@ from faultwise.errors import InputError, ProfileError
 _UNIT_OF_SUFFIX = (("_khz", "kHz"), ("_ohm", "ohm"), ("_uf", "uF"), ("_pf", "pF"),
                    ("_uh", "uH"), ("_hz", "Hz"), ("_ma", "mA"), ("_v", "V"), ("_a", "A"))
 TOP_KEYS = ("format", "label", "family", "mains", "battery", "band", "if_khz", "gang",
-            "tubes", "heater_winding_v", "supply", "audio", "transistors", "typical")
+            "tubes", "heater_winding_v", "supply", "audio", "transistors", "output_stage",
+            "typical")
 SECTION_KEYS = {
     "mains": ("volts_v", "freq_hz"), "battery": ("volts_v",), "band": ("low_khz", "high_khz"),
     "gang": ("min_pf", "max_pf", "stray_pf"),
