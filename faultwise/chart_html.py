@@ -32,9 +32,9 @@ def socket_svg(base: str, pins: dict[int, str], title: str) -> str:
     count = {"7-pin miniature": 7, "9-pin miniature": 9, "octal": 8, "loctal": 8,
              "4-pin": 4, "6-pin": 6}.get(base, 8)
     miniature = "miniature" in base
-    cx, cy, r = 170, 150, 62
-    parts = [f'<svg xmlns="http://www.w3.org/2000/svg" width="340" height="300" '
-             f'viewBox="0 0 340 300" role="img" aria-label="{escape(title)}">',
+    cx, cy, r = 220, 150, 62
+    parts = [f'<svg xmlns="http://www.w3.org/2000/svg" width="440" height="300" '
+             f'viewBox="0 0 440 300" role="img" aria-label="{escape(title)}">',
              f'<circle cx="{cx}" cy="{cy}" r="{r + 18}" fill="#f4f1ea" stroke="#555"/>']
     if miniature:   # the gap where a pin would be, at the top
         slots = count + 1
