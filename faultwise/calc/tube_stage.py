@@ -130,7 +130,7 @@ def _root_ma(residual, hi: float) -> float:
     for _ in range(60):
         x = hi - f_hi * (hi - lo) / (f_hi - f_lo)
         fx = residual(x)
-        if abs(fx) <= 1e-9 * max(hi, 1e-6) or hi - lo <= 1e-12:
+        if abs(fx) <= 1e-6 * max(hi, 1e-6) or hi - lo <= 1e-9:
             return x
         if fx > 0:
             lo, f_lo = x, fx
