@@ -15,7 +15,7 @@ None, every electrode voltage scales together and Ik = Ik0 (Vsk / Vs0)^1.5.
 The stage circuit: plate load from a plate supply node, screen resistor (0 = fed directly)
 from a screen supply node, cathode resistor to chassis/B-, the grid held at ``grid_v`` by
 its own network (AVC line, grid leak, cathode-bias return). :func:`solve_stage` finds the
-cathode current by bisection (the law falls as Ik rises, through Rk and Rg2 feedback).
+cathode current by regula falsi (the law falls as Ik rises, through Rk and Rg2 feedback).
 
 Fault models call the same function with a changed part: ``screen_ohm=math.inf`` (screen
 resistor open), ``plate_ohm=math.inf`` (plate load open: the cathode current goes to the
@@ -148,7 +148,7 @@ def _root_ma(residual, hi: float) -> float:
 def solve_stage(op: TypicalOperation, plate_supply_v: float, plate_ohm: float,
                 cathode_ohm: float, grid_v: float, screen_supply_v: float | None = None,
                 screen_ohm: float = 0.0, emission: float = 1.0) -> StageDC:
-    """Ik with Ik = law(Vg - Ik Rk, Vs(Ik) - Ik Rk), Vs = supply - I Rload (bisection, Ohm's law)."""
+    """Ik = law(Vg - Ik Rk, Vs(Ik) - Ik Rk), Vs = supply - I Rload (Child-Langmuir, Ohm's law)."""
     s_supply = plate_supply_v if screen_supply_v is None else screen_supply_v
 
     def residual(ik: float) -> float:
@@ -166,10 +166,3 @@ def solve_stage(op: TypicalOperation, plate_supply_v: float, plate_ohm: float,
     return _electrodes(op, ik, plate_supply_v, s_supply, plate_ohm, screen_ohm, cathode_ohm,
                        grid_v)
 
-
-def stage_fields(op: TypicalOperation, plate_supply_v: float, plate_ohm: float,
-                 cathode_ohm: float, grid_v: float, screen_supply_v: float, screen_ohm: float,
-                 emission: float = 1.0) -> StageDC:
-    """solve_stage with every argument named (for the worst-case corner evaluator)."""
-    return solve_stage(op, plate_supply_v, plate_ohm, cathode_ohm, grid_v, screen_supply_v,
-                       screen_ohm, emission)
