@@ -89,6 +89,23 @@ def pair_model(ctx: Context):
     return fn, sp, text, keys
 
 
+def faulty_pair_readings(ctx: Context, **changes) -> dict[str, float]:
+    """The pair's chart readings with parts changed (a fault model): ``top_ohm=math.inf``
+    (transformer pair's bias feed open), ``bottom_ohm=0`` (bias shorted), ``load_ohm=math.inf``
+    (complementary: driver feed open), ``midpoint_fraction=0.1`` (lower half leaking)."""
+    if not is_pair(ctx.p):
+        return {}
+    fn, sp, _, _ = pair_model(ctx)
+    r = fn(**({k: s.nominal for k, s in sp.items()} | changes))
+    comp = ctx.p.output_stage == "complementary"
+    out = {"bias.output.idle_ma": r.idle_ma, "bias.output.bases_v": r.bases_v,
+           "bias.output.ic_ma": r.ic_ma, "bias.output.ve_v": r.ve_v,
+           "bias.output.vb_v": r.bases_v / 2.0 if comp else r.bases_v}
+    if comp:
+        out.update({"bias.output.midpoint_v": r.midpoint_v, "bias.output.vc_v": r.midpoint_v})
+    return out
+
+
 def _half(b):
     from faultwise.calc.tolerance import Band
 

@@ -8,6 +8,9 @@ family's typical circuit in :mod:`faultwise.stage_typical`) and the tube's handb
 operation; the band is the worst case over the supply band, the resistors (+-10 %, a
 transformer primary's DC +-50 %), the tube-to-tube spread (+-20 %) and the grid's state.
 Voltages are to B- (series-string) or chassis (transformer), as magnitudes.
+
+Fault models: :func:`faulty_stage_readings` gives a stage's chart readings with a part
+changed (``screen_ohm=math.inf``, ``emission=0.4`` ...), from the same model as the bands.
 """
 
 from __future__ import annotations
@@ -119,10 +122,11 @@ def add_tube_stages(ctx: Context) -> None:
         _add_stage(ctx, tube, op, op_typical, nodes, sim)
 
 
-def _add_stage(ctx: Context, tube, op, op_typical: bool, nodes: dict, sim) -> None:
-    from faultwise.calc.tolerance import worst_case_fields
+def stage_model(ctx: Context, tube, op, nodes: dict):
+    """(function of the spreads -> StageDC, spreads, circuit, typical keys, grid state, plate
+    node, screen node) for one tube: what the chart's band and a fault model both evaluate."""
     from faultwise.calc.tube_stage import solve_stage
-    from faultwise.stage_typical import GRID_STATE, OSC_GRID_MA
+    from faultwise.stage_typical import OSC_GRID_MA
 
     kind = role_kind(tube.role, op)
     circuit, used = stage_circuit(ctx, tube, kind)
@@ -136,6 +140,41 @@ def _add_stage(ctx: Context, tube, op, op_typical: bool, nodes: dict, sim) -> No
         if kind == "converter":   # oscillator grid: grid-leak bias, Ig1 scales with the current
             dc = replace(dc, grid_v=-OSC_GRID_MA * dc.cathode_ma / op.cathode_ma * rg1 / 1000.0)
         return dc
+
+    return stage, sp, circuit, used, state, pnode, snode
+
+
+def faulty_stage_readings(ctx: Context, role: str, **changes) -> dict[str, float]:
+    """Chart readings of one tube stage with parts changed (a fault model), as magnitudes.
+
+    ``changes`` override the nominal inputs: ``screen_ohm=math.inf`` (screen resistor open),
+    ``plate_ohm=math.inf``, ``cathode_ohm=math.inf``, ``emission=0.4`` (worn tube),
+    ``grid_v=+2.0`` (a leaky coupling capacitor), ``scale=0.8`` (supply 20 % low).
+    """
+    from faultwise.expect_supply import simulate_supply
+
+    tube = ctx.p.tube(role)
+    if tube is None:
+        return {}
+    op, _ = stage_operation(ctx, tube)
+    sim = simulate_supply(ctx)
+    if op is None or sim is None:
+        return {}
+    nodes = {"first": sim.bands["rectifier_out_v"], "second": sim.bands["filtered_v"]}
+    stage, sp, *_ = stage_model(ctx, tube, op, nodes)
+    dc = stage(**({k: s.nominal for k, s in sp.items()} | changes))
+    fields = [f for f in STAGE_FIELDS if not (f == "screen_v" and op.is_triode)]
+    return {f"stage.{role}.{f}": abs(getattr(dc, f)) for f in fields}
+
+
+def _add_stage(ctx: Context, tube, op, op_typical: bool, nodes: dict, sim) -> None:
+    from faultwise.calc.tolerance import worst_case_fields
+    from faultwise.stage_typical import GRID_STATE, OSC_GRID_MA
+
+    stage, sp, circuit, used, state, pnode, snode = stage_model(ctx, tube, op, nodes)
+    kind = role_kind(tube.role, op)
+    p_nom, s_nom = pnode.nominal, snode.nominal
+    rg1 = circuit.grid_ohm
 
     bands = worst_case_fields(stage, sp)
     nom = stage(**{k: s.nominal for k, s in sp.items()})

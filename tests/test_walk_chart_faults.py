@@ -13,6 +13,8 @@ import math
 from dataclasses import replace
 from pathlib import Path
 
+import pytest
+
 from faultwise.expect import expect
 from faultwise.expect_context import Context
 from faultwise.graph import load_knowledge
@@ -29,25 +31,14 @@ def nominal_readings(expectations: dict) -> dict:
 
 
 def test_open_if_screen_resistor_from_the_chart_readings():
-    from faultwise.calc.tube_stage import solve_stage
-    from faultwise.expect_stages import stage_circuit, stage_operation
-    from faultwise.expect_supply import simulate_supply
+    from faultwise.expect_stages import faulty_stage_readings
 
     profile = load_profile(SETS / "demo-5-tube-table.yaml")
     exp = expect(profile)
-    ctx = Context(profile, None)
-    tube = profile.tube("if")
-    op, _ = stage_operation(ctx, tube)
-    circuit, _ = stage_circuit(ctx, tube, "if")
-    sim = simulate_supply(ctx)
-    supply = sim.bands["filtered_v"].nominal
-    faulty = solve_stage(op, supply, circuit.plate_ohm, circuit.cathode_ohm, 0.0, supply,
-                         math.inf)
-    readings = nominal_readings(exp)
-    readings.update({"stage.if.plate_v": faulty.plate_v, "stage.if.screen_v": faulty.screen_v,
-                     "stage.if.cathode_v": faulty.cathode_v,
-                     "stage.if.cathode_ma": faulty.cathode_ma})
-    assert faulty.screen_v == 0.0 and faulty.cathode_ma == 0.0
+    faulty = faulty_stage_readings(Context(profile, None), "if", screen_ohm=math.inf)
+    assert faulty["stage.if.screen_v"] == 0.0 and faulty["stage.if.cathode_ma"] == 0.0
+    assert faulty["stage.if.plate_v"] > exp["stage.if.plate_v"].low   # the plate keeps its B+
+    readings = nominal_readings(exp) | faulty
     result = auto_walk(KNOWLEDGE, profile, "dead-lights-on", readings,
                        {"if.inject-if-grid": "nothing"}, expectations=exp)
     assert result.conclusion is not None
@@ -56,20 +47,27 @@ def test_open_if_screen_resistor_from_the_chart_readings():
     assert "if.if-screen-v" in asked
 
 
+def test_healthy_stage_readings_equal_the_chart_nominals():
+    from faultwise.expect_stages import faulty_stage_readings
+
+    profile = load_profile(SETS / "demo-230v-transformer.yaml")
+    exp = expect(profile)
+    for role in ("converter", "if", "detector", "output"):
+        for name, value in faulty_stage_readings(Context(profile, None), role).items():
+            assert value == pytest.approx(exp[name].nominal, rel=1e-9, abs=1e-12), name
+
+
 def test_portable_output_pair_lost_its_bias():
-    from faultwise.expect_output_pair import pair_model
+    from faultwise.expect_output_pair import faulty_pair_readings
 
     profile = load_profile(SETS / "demo-ge-pnp-portable.yaml")
     assert profile.output_stage == "push-pull-transformer"
     exp = expect(profile)
-    fn, sp, _, _ = pair_model(Context(profile, None))
-    lost = fn(**{k: s.nominal for k, s in sp.items()} | {"top_ohm": math.inf})
-    readings = nominal_readings(exp)
-    readings.update({"bias.output.idle_ma": lost.idle_ma, "bias.output.bases_v": lost.bases_v,
-                     "bias.output.ic_ma": lost.ic_ma, "bias.output.vb_v": lost.bases_v,
-                     "bias.output.ve_v": lost.ve_v,
-                     "supply.standby_ma": exp["supply.standby_ma"].nominal
-                     - exp["bias.output.idle_ma"].nominal})
+    lost = faulty_pair_readings(Context(profile, None), top_ohm=math.inf)
+    assert lost["bias.output.idle_ma"] == 0.0
+    readings = nominal_readings(exp) | lost
+    readings["supply.standby_ma"] = (exp["supply.standby_ma"].nominal
+                                     - exp["bias.output.idle_ma"].nominal)
     result = auto_walk(KNOWLEDGE, profile, "distorted-audio", readings,
                        {"audio.tr-distortion-kind": "audio"}, expectations=exp)
     assert result.conclusion is not None
