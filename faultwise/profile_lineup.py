@@ -56,7 +56,7 @@ def read_tubes(r: ProfileReader, data: dict, family: str, table) -> list[Tube]:
             role=role, type=known.name if known else normalise_name(typed),
             heater_v=heater_v if heater_v is not None else known.heater_v,
             heater_a=heater_a if heater_a is not None else known.heater_a,
-            cathode_ohm=r.number(item, "cathode_ohm", path),
+            cathode_ohm=r.number(item, "cathode_ohm", path, strict=role in OUTPUT_ROLES),
             cathode_ma=r.number(item, "cathode_ma", path),
             plate_ohm=r.number(item, "plate_ohm", path, strict=False),
             screen_ohm=r.number(item, "screen_ohm", path, strict=False),
