@@ -62,8 +62,8 @@ def socket_svg(base: str, pins: dict[int, str], title: str) -> str:
 
 def lead_svg(readings: dict[str, str], title: str) -> str:
     """A transistor symbol with its base, collector and emitter readings written at the leads."""
-    parts = ['<svg xmlns="http://www.w3.org/2000/svg" width="300" height="200" '
-             f'viewBox="0 0 300 200" role="img" aria-label="{escape(title)}">',
+    parts = ['<svg xmlns="http://www.w3.org/2000/svg" width="340" height="200" '
+             f'viewBox="-50 0 340 200" role="img" aria-label="{escape(title)}">',
              '<circle cx="130" cy="100" r="38" fill="#f4f1ea" stroke="#555"/>',
              '<line x1="40" y1="100" x2="115" y2="100" stroke="#333" stroke-width="2"/>',
              '<line x1="115" y1="75" x2="115" y2="125" stroke="#333" stroke-width="4"/>',
@@ -105,7 +105,9 @@ def chart_html(profile, rows: list[ChartRow], tube_table=None) -> str:
                         labels.setdefault(int(p), f"{r.electrode} {_n(r.nominal)} V")
                     else:
                         labels.setdefault(p, f"{_n(r.nominal)} V")
-        if profile.line_powered and group[0].role != "supply":
+        if group[0].role == "supply":
+            drawing = ""
+        elif profile.line_powered:
             tube_type = device.split(" ", 1)[1]
             data = lookup(tube_type, table) if table is not None else None
             drawing = socket_svg(data.base if data else "octal", labels, device)
