@@ -129,10 +129,11 @@ def _num(x, digits: int = 1) -> str:
     return "-" if x is None else f"{x:.{digits}f}"
 
 
-def review_html(review, shop: str = "Larkspur Lane Radio Works") -> str:
-    """The shop review as one printable page with inline SVG charts."""
+def review_html(review, shop: str = "") -> str:
+    """The shop review as one printable page with inline SVG charts; ``shop``: the configured
+    shop name (none shown when empty)."""
     since = f" since {_e(review.since)}" if review.since else ""
-    b = [f"<h1>Shop review</h1><div class=\"shop\">{_e(shop)}</div>",
+    b = ["<h1>Shop review</h1>" + (f"<div class=\"shop\">{_e(shop)}</div>" if shop else ""),
          f"<p class=\"meta\">{review.cases} closed cases{since}; "
          f"{len(review.damaged)} damaged file(s).</p>"]
     if review.damaged:
