@@ -182,3 +182,54 @@ def test_cli_customer_copy_uses_the_configured_shop(tmp_path, job):
     assert out.returncode == 0 and "Test Shop Ltd" in page.read_text(encoding="utf-8")
     bench = run()
     assert "| 1 |" in bench.stdout and "`audio.tf-hum-volume-zero`" in bench.stdout
+
+
+# ----------------------------------------------------------- other jobs, same model
+
+KB_REVIEW = Path(__file__).parent / "fixtures" / "kb_review"
+
+
+def test_skipped_check_keeps_its_place_in_walk_order():
+    from review_case_factory import make_case
+
+    kb = load_knowledge(KB_REVIEW)
+    case = make_case("s1", symptom="hum-loud", checks=[("supply.first-cap-esr", "good")],
+                     skips=[("supply.second-cap-esr", "No ESR meter on this bench today.")],
+                     fault="supply.dry-first-cap", closing=[("supply.leakage-check", "0.1")])
+    r = job_report(case, kb)
+    assert [s.number for s in r.steps] == [1, 2, 3]
+    skipped = r.steps[1]
+    assert skipped.skipped and skipped.answer == "not made: No ESR meter on this bench today."
+    only_skip = make_case("s2", symptom="hum-loud", skips=[("supply.second-cap-esr", "")])
+    assert job_report(only_skip, kb).stages == {}          # a check not made clears nothing
+    assert _md_step_numbers(bench_markdown(r)) == [1, 2, 3]
+
+
+@pytest.mark.parametrize("family, closing, state, words", [
+    ("transistor", [], "not needed", "runs from batteries"),
+    ("series-string", [], "not recorded", "not ready to go back"),
+    ("series-string", [("supply.leakage-check", "0.2")], "passed", "plug one way"),
+])
+def test_customer_safety_line_per_family(family, closing, state, words):
+    from review_case_factory import make_case
+
+    kb = load_knowledge(KB_REVIEW)
+    case = make_case("f1", symptom="hum-loud", family=family, closing=closing,
+                     fault="supply.dry-first-cap")
+    r = job_report(case, kb)
+    assert r.leakage_state == state
+    md = customer_markdown(r)
+    assert words in md
+    assert "live" not in md and "line-connected" not in md
+
+
+def test_failed_leakage_check_is_not_passed_in_either_copy():
+    from review_case_factory import make_case
+
+    kb = load_knowledge(KB_REVIEW)
+    case = make_case("f2", symptom="hum-loud", fault="supply.dry-first-cap",
+                     closing=[("supply.leakage-check", "2.5")])
+    case["events"][-2]["outcome"] = "high"            # 2.5 V > 0.75 V, as the walk classifies
+    r = job_report(case, kb)
+    assert r.leakage_state == "failed"
+    assert "NOT passed" in customer_markdown(r) and "NOT passed" in bench_markdown(r)
