@@ -38,8 +38,8 @@ def _probe(skip: tuple[str, ...] = NOT_DOMAIN) -> dict:
 def test_domain_modules_do_not_import_textual_or_rich():
     result = _probe()
     # The probe must have imported the domain, or it proves nothing.
-    assert "faultwise.profile" in result["modules"]
-    assert "faultwise.nodes" in result["modules"]
+    assert "faultwise.profile.model" in result["modules"]
+    assert "faultwise.graph.nodes" in result["modules"]
     assert not any(m.startswith("faultwise.tui") for m in result["modules"])
     assert result["ui"] == [], f"domain imports pulled in {result['ui'][:5]}"
 

@@ -1,8 +1,8 @@
 """SQLite index beside the cases: one compact summary per case file, keyed by its stat.
 
 ``<cases>/.faultwise-index.sqlite`` maps each ``*.json`` file name to (size, mtime in
-ns, inode) and the summary of :func:`faultwise.casesummary.summarise` (or the reason the
-file is damaged, from :func:`faultwise.cases.read_case_bytes`). A scan stats every file
+ns, inode) and the summary of :func:`faultwise.cases.summary.summarise` (or the reason the
+file is damaged, from :func:`faultwise.cases.store.read_case_bytes`). A scan stats every file
 (``os.scandir``) and parses only those whose stat differs from the index, so a review of
 an unchanged folder reads the index alone.
 
@@ -23,9 +23,9 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Callable
 
-from faultwise.cases import read_case_bytes
-from faultwise.casesummary import SUMMARY_VERSION, summarise
-from faultwise.errors import DamagedCaseError
+from faultwise.cases.store import read_case_bytes
+from faultwise.cases.summary import SUMMARY_VERSION, summarise
+from faultwise.core.errors import DamagedCaseError
 
 INDEX_NAME = ".faultwise-index.sqlite"
 SCHEMA = f"faultwise-index/1+summary/{SUMMARY_VERSION}"

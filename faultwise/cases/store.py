@@ -22,7 +22,8 @@ from dataclasses import dataclass
 from datetime import UTC, datetime
 from pathlib import Path
 
-from faultwise.errors import CaseError, CaseLockedError, DamagedCaseError
+from faultwise.core.errors import CaseError, CaseLockedError, DamagedCaseError
+from faultwise.core.workspace import check_bench
 
 CASE_FORMAT = "faultwise-case/1"
 FORMAT_PREFIX = "faultwise-case/"
@@ -34,7 +35,6 @@ EVENT_KEYS = ("n", "at", "type", "phase", "node", "expect", "band", "raw", "valu
 TEMP_SUFFIX = ".fwtmp"
 # \Z, not "$" (which lets a final newline through); lengths keep names under NAME_MAX.
 _ID_RE = re.compile(r"^[A-Za-z0-9_-]{1,120}\Z")
-_BENCH_RE = re.compile(r"^[A-Za-z0-9_-]{1,40}\Z")
 _TEMP_RE = re.compile(r"^\.(?P<id>[A-Za-z0-9_-]+)\.(?P<host>[A-Za-z0-9_-]*)\.(?P<pid>\d+)\."
                       r"[0-9a-f]+" + re.escape(TEMP_SUFFIX) + "$")
 
@@ -150,7 +150,7 @@ def read_case_bytes(raw: bytes, file="case") -> dict:
             raise _damage(file, f"missing or bad key '{key}'")
     if not all(isinstance(e, dict) for e in data["events"]):
         raise _damage(file, "missing or bad key 'events'")
-    from faultwise.case_schema import case_problem
+    from faultwise.cases.schema import case_problem
 
     problem = case_problem(data)
     if problem:
@@ -329,18 +329,6 @@ class OpenCase:
 
 
 # -------------------------------------------------------------------------------- store
-
-def check_bench(bench) -> str:
-    """The bench name, if it is safe in a case id and a file name; CaseError otherwise."""
-    bench = str(bench)
-    if not _BENCH_RE.match(bench):
-        from faultwise.safe_text import one_line
-
-        raise CaseError(f"the bench name '{one_line(bench)}' may hold only letters, digits, "
-                        "'-' and '_'", key="bench",
-                        hint="use a short name such as B1 (40 characters at most)")
-    return bench
-
 
 class CaseStore:
     """The cases folder of a workspace, used by one bench."""
@@ -546,7 +534,7 @@ class CaseStore:
         if isinstance(profile, Mapping):
             profile_data, family = dict(profile), str(profile.get("family", ""))
         else:
-            from faultwise.profile import profile_to_dict
+            from faultwise.profile.model import profile_to_dict
 
             profile_data, family = profile_to_dict(profile), profile.family
         now = self.clock()

@@ -7,7 +7,7 @@ import sys
 
 
 def register(subparsers) -> None:
-    from faultwise.cli import add_workspace_options
+    from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser(
         "report", help="the job report for one case",
@@ -24,22 +24,22 @@ def register(subparsers) -> None:
 def run(args: argparse.Namespace) -> int:
     from pathlib import Path
 
-    from faultwise.errors import FaultwiseError, KnowledgeError
-    from faultwise.report import find_case, job_report, job_report_markdown, read_case
-    from faultwise.workspace import workspace_from_args
+    from faultwise.core.errors import FaultwiseError, KnowledgeError
+    from faultwise.report.job import find_case, job_report, job_report_markdown, read_case
+    from faultwise.core.workspace import workspace_from_args
 
     ws = workspace_from_args(args)
     case = read_case(find_case(args.case, ws.cases_dir))
     knowledge = None
     try:
-        from faultwise.graph import load_knowledge
+        from faultwise.graph.knowledge import load_knowledge
 
         knowledge = load_knowledge(ws.knowledge_dir)
     except KnowledgeError as exc:
         print(f"faultwise: note: titles come from the case only ({exc})", file=sys.stderr)
     report = job_report(case, knowledge)
     if args.html:
-        from faultwise.report_html import job_report_html
+        from faultwise.report.html_report import job_report_html
 
         try:
             Path(args.html).write_text(job_report_html(report), encoding="utf-8")

@@ -18,7 +18,7 @@ import re
 from dataclasses import dataclass
 from decimal import Decimal
 
-from faultwise.errors import InputError
+from faultwise.core.errors import InputError
 
 # IEC 60063 (secondary sources): mantissas of one decade
 SERIES: dict[str, tuple[float, ...]] = {

@@ -18,7 +18,7 @@ import re
 from dataclasses import dataclass
 from decimal import Decimal, InvalidOperation
 
-from faultwise.errors import InputError
+from faultwise.core.errors import InputError
 
 MAX_TEXT = 64
 

@@ -9,12 +9,14 @@ bundled knowledge, ``./cases`` and bench ``B1``.
 from __future__ import annotations
 
 import os
+import re
 from dataclasses import dataclass
 from pathlib import Path
 
-from faultwise.errors import FaultwiseError
+from faultwise.core.errors import CaseError, FaultwiseError
 
 CONFIG_NAME = "faultwise.yaml"
+_BENCH_RE = re.compile(r"^[A-Za-z0-9_-]{1,40}\Z")
 
 
 def bundled_knowledge_dir() -> Path:
@@ -22,6 +24,18 @@ def bundled_knowledge_dir() -> Path:
     from importlib.resources import files
 
     return Path(str(files("faultwise.knowledge")))
+
+
+def check_bench(bench) -> str:
+    """The bench name, if it is safe in a case id and a file name; CaseError otherwise."""
+    bench = str(bench)
+    if not _BENCH_RE.match(bench):
+        from faultwise.core.safe_text import one_line
+
+        raise CaseError(f"the bench name '{one_line(bench)}' may hold only letters, digits, "
+                        "'-' and '_'", key="bench",
+                        hint="use a short name such as B1 (40 characters at most)")
+    return bench
 
 
 @dataclass(frozen=True)
@@ -40,7 +54,7 @@ def _config(cwd: Path) -> dict:
     path = cwd / CONFIG_NAME
     if not path.is_file():
         return {}
-    from faultwise.yamlload import load_yaml_file
+    from faultwise.core.yamlload import load_yaml_file
 
     data = load_yaml_file(path)
     if not isinstance(data, dict):
@@ -74,8 +88,6 @@ def resolve_workspace(knowledge: str | os.PathLike | None = None,
     cdir = Path(c).expanduser()
     if not cdir.is_absolute():
         cdir = cwd / cdir
-    from faultwise.cases import check_bench
-
     check_bench(b)
     if not kdir.is_dir():
         raise FaultwiseError("the knowledge folder does not exist", file=str(kdir),

@@ -13,7 +13,7 @@ from pathlib import Path
 
 import yaml
 
-from faultwise.errors import FaultwiseError
+from faultwise.core.errors import FaultwiseError
 
 try:  # the C parser is about ten times faster
     from yaml import CSafeLoader as _BaseLoader

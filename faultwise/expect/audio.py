@@ -2,8 +2,8 @@
 
 from __future__ import annotations
 
-from faultwise.expect_context import Context, basis_num as _n
-from faultwise.expect_supply import simulate_supply
+from faultwise.expect.context import Context, basis_num as _n
+from faultwise.expect.supply import simulate_supply
 
 PLATE_FRACTION = 0.9
 """Share of a beam/pentode output tube's cathode current that flows to the plate when the

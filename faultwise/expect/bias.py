@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from faultwise.expect_context import Context, basis_num as _n
+from faultwise.expect.context import Context, basis_num as _n
 
 ROLE_STAGE = {"rf": "antenna", "converter": "oscillator", "mixer": "if",
               "oscillator": "oscillator", "if": "if", "if2": "if", "if3": "if",

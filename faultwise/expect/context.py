@@ -1,8 +1,36 @@
-"""What the expectation builders share: the build context and the basis number format."""
+"""What the expectation builders share: the Expected record, the build context and the basis
+number format."""
 
 from __future__ import annotations
 
-from faultwise.expect import Expected
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class Expected:
+    """What one test point should read on this set.
+
+    ``low``/``high`` bound the normal band (worst case over the stated tolerances);
+    ``basis`` is the arithmetic with this set's numbers and says where the band comes from;
+    ``typical`` is true when it rests on a value the profile did not give.
+    ``absent_below``: a reading at or below this magnitude is classified ``absent``
+    (0 for limits such as leakage, where zero is normal).
+    """
+
+    name: str
+    title: str
+    stage: str
+    nominal: float
+    low: float
+    high: float
+    unit: str
+    basis: str
+    typical: bool = False
+    absent_below: float = 0.0
+
+    def to_json(self) -> dict:
+        return {"nominal": self.nominal, "low": self.low, "high": self.high,
+                "unit": self.unit, "basis": self.basis, "typical": self.typical}
 
 
 def basis_num(x: float) -> str:
@@ -27,13 +55,13 @@ class Context:
     @property
     def table(self):
         if self._table is None:
-            from faultwise.tubes import load_tube_table
+            from faultwise.profile.tubes import load_tube_table
 
             self._table = load_tube_table()
         return self._table
 
     def tube_type(self, type_name: str):
-        from faultwise.tubes import lookup
+        from faultwise.profile.tubes import lookup
 
         return lookup(type_name, self.table)
 

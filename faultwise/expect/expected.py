@@ -9,39 +9,12 @@ The builders live beside this module, one file per part of the set: ``expect_sup
 (line, leakage, rectifier and filter), ``expect_heaters``, ``expect_audio`` (output stage,
 speaker), ``expect_bias`` (battery and transistor bias), ``expect_signal`` (detector, IF,
 oscillator activity) and ``expect_tuning`` (tuning, antenna); they share
-:class:`faultwise.expect_context.Context`.
+:class:`faultwise.expect.context.Context`.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
-
-@dataclass(frozen=True)
-class Expected:
-    """What one test point should read on this set.
-
-    ``low``/``high`` bound the normal band (worst case over the stated tolerances);
-    ``basis`` is the arithmetic with this set's numbers and says where the band comes from;
-    ``typical`` is true when it rests on a value the profile did not give.
-    ``absent_below``: a reading at or below this magnitude is classified ``absent``
-    (0 for limits such as leakage, where zero is normal).
-    """
-
-    name: str
-    title: str
-    stage: str
-    nominal: float
-    low: float
-    high: float
-    unit: str
-    basis: str
-    typical: bool = False
-    absent_below: float = 0.0
-
-    def to_json(self) -> dict:
-        return {"nominal": self.nominal, "low": self.low, "high": self.high,
-                "unit": self.unit, "basis": self.basis, "typical": self.typical}
+from faultwise.expect.context import Expected
 
 
 __all__ = ["Expected", "STAGES", "expectation_names", "expect"]
@@ -50,13 +23,13 @@ STAGES = ("supply", "audio", "detector", "if", "oscillator", "antenna")
 
 
 def _tube_roles() -> tuple[str, ...]:
-    from faultwise.profile import TUBE_ROLES
+    from faultwise.profile.model import TUBE_ROLES
 
     return TUBE_ROLES
 
 
 def _transistor_roles() -> tuple[str, ...]:
-    from faultwise.profile import TRANSISTOR_ROLES
+    from faultwise.profile.model import TRANSISTOR_ROLES
 
     return TRANSISTOR_ROLES
 
@@ -70,7 +43,7 @@ def expectation_names(family: str) -> frozenset[str]:
               "detector.time_constant_us", "detector.avc_v", "output.reflected_ohm",
               "output.voice_coil_ohm"}
     if family == "transistor":
-        from faultwise.expect_bias import BIAS_FIELDS
+        from faultwise.expect.bias import BIAS_FIELDS
 
         names = common | {"supply.battery_v", "supply.standby_ma", "oscillator.emitter_shift_v"}
         for role in _transistor_roles():
@@ -94,16 +67,16 @@ def expectation_names(family: str) -> frozenset[str]:
 def expect(profile, *, tube_table=None) -> dict[str, Expected]:
     """Every expectation this profile allows, keyed by name, in stage order.
 
-    ``tube_table``: a :class:`faultwise.tubes.TubeTable` for rectifier and output-tube data
+    ``tube_table``: a :class:`faultwise.profile.tubes.TubeTable` for rectifier and output-tube data
     (default: the bundled table, read once and cached).
     """
-    from faultwise.expect_audio import add_output_tube, add_speaker
-    from faultwise.expect_bias import add_battery, add_bias
-    from faultwise.expect_context import Context
-    from faultwise.expect_heaters import add_heaters
-    from faultwise.expect_signal import add_detector, add_if_strip, add_oscillator
-    from faultwise.expect_supply import add_mains, add_rectifier
-    from faultwise.expect_tuning import add_antenna, add_tuning
+    from faultwise.expect.audio import add_output_tube, add_speaker
+    from faultwise.expect.bias import add_battery, add_bias
+    from faultwise.expect.context import Context
+    from faultwise.expect.heaters import add_heaters
+    from faultwise.expect.signal import add_detector, add_if_strip, add_oscillator
+    from faultwise.expect.supply import add_mains, add_rectifier
+    from faultwise.expect.tuning import add_antenna, add_tuning
 
     ctx = Context(profile, tube_table)
     if profile.line_powered:

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from faultwise.expect_context import Context, basis_num as _n
+from faultwise.expect.context import Context, basis_num as _n
 
 
 def add_heaters(ctx: Context) -> None:

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from faultwise.expect_context import Context, basis_num as _n
+from faultwise.expect.context import Context, basis_num as _n
 
 
 def add_mains(ctx: Context) -> None:
@@ -73,7 +73,7 @@ def simulate_supply(ctx: Context) -> SimulatedSupply | None:
         return ctx.supply_sim
     from faultwise.calc import rectifier as r
     from faultwise.calc.tolerance import electrolytic_uf, load_ma, resistor_ohm
-    from faultwise.errors import ProfileError
+    from faultwise.core.errors import ProfileError
 
     p, s = ctx.p, ctx.p.supply
     need = (s.circuit, s.rectifier, s.surge_ohm, s.first_cap_uf, s.filter_ohm, s.second_cap_uf,

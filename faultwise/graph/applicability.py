@@ -22,9 +22,9 @@ from __future__ import annotations
 from collections.abc import Callable, Mapping
 from types import MappingProxyType
 
-from faultwise.nodes import Check, Fault, Suspects
-from faultwise.profile import (CIRCUITS, MATERIALS, POLARITIES, RECTIFIERS, TRANSISTOR_ROLES,
-                               TUBE_ROLES)
+from faultwise.graph.nodes import Check, Fault, Suspects
+from faultwise.profile.model import (CIRCUITS, MATERIALS, POLARITIES, RECTIFIERS, TRANSISTOR_ROLES,
+                                     TUBE_ROLES)
 
 YES_NO = ("yes", "no")
 

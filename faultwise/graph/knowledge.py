@@ -1,18 +1,18 @@
 """Knowledge folder (YAML) -> :class:`Knowledge`: frozen nodes plus a networkx view on demand.
 
 Reads ``symptoms.yaml``, ``cautions.yaml``, ``graph/*.yaml`` and the optional ``learned.yaml``
-through :mod:`faultwise.yamlload` (safe, line numbers kept) and builds the model of
-:mod:`faultwise.nodes` (schema: DEVELOPERS.md, "Knowledge schema"). Nothing in the files is
+through :mod:`faultwise.core.yamlload` (safe, line numbers kept) and builds the model of
+:mod:`faultwise.graph.nodes` (schema: DEVELOPERS.md, "Knowledge schema"). Nothing in the files is
 evaluated. Structural problems raise :class:`KnowledgeError` naming file, line and node;
 the loader collects every structural problem it can before raising the first one, and
 ``err.problems`` lists them all (``faultwise lint`` shows them). Graph-level checks
-(targets, cycles, reachability, expectation names) are :mod:`faultwise.lint`'s job.
+(targets, cycles, reachability, expectation names) are :mod:`faultwise.graph.lint`'s job.
 
 networkx is imported only by :meth:`Knowledge.digraph` and :meth:`Knowledge.faults_under`.
 
-The per-file parsing lives beside this module: :mod:`faultwise.graph_parse` (graph files
-into nodes), :mod:`faultwise.knowledge_parse` (symptoms, cautions, learned counts) and
-:mod:`faultwise.knowledge_reader` (the located field reader and problem list they share);
+The per-file parsing lives beside this module: :mod:`faultwise.graph.parse` (graph files
+into nodes), :mod:`faultwise.graph.knowledge_parse` (symptoms, cautions, learned counts) and
+:mod:`faultwise.graph.reader` (the located field reader and problem list they share);
 their schema constants are re-exported here.
 """
 
@@ -23,18 +23,17 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Iterable
 
-from faultwise.errors import KnowledgeError
-from faultwise.graph_parse import (  # the graph-file schema, re-exported
-    DEFAULT_MINUTES, GRAPH_FILE_KEYS, GRAPH_FORMAT, INVESTIGATION_KEYS, KEYS, OTHERWISE,
-    SIGNATURE_KEYS, read_graph_file,
-)
-from faultwise.knowledge_parse import (  # the other files' schema, re-exported
-    CAUTION_KEYS, CAUTIONS_FORMAT, DEFAULT_PRIOR_STRENGTH, LEARNED_FORMAT, SETTINGS_KEYS,
-    SYMPTOM_KEYS, SYMPTOMS_FORMAT, read_cautions, read_learned, read_symptoms,
-)
-from faultwise.knowledge_reader import LoadNote, Problems
-from faultwise.nodes import (CLEARED, STAGES, Caution, Check, Fault, Learned, Located, Node,
-                             Suspects, Symptom)
+from faultwise.core.errors import KnowledgeError
+from faultwise.graph.parse import (DEFAULT_MINUTES, GRAPH_FILE_KEYS, GRAPH_FORMAT,  # the graph-file schema, re-exported
+                                   INVESTIGATION_KEYS, KEYS, OTHERWISE, SIGNATURE_KEYS,
+                                   read_graph_file)
+from faultwise.graph.knowledge_parse import (CAUTION_KEYS, CAUTIONS_FORMAT, DEFAULT_PRIOR_STRENGTH,  # the other files' schema, re-exported
+                                             LEARNED_FORMAT, SETTINGS_KEYS, SYMPTOM_KEYS,
+                                             SYMPTOMS_FORMAT, read_cautions, read_learned,
+                                             read_symptoms)
+from faultwise.graph.reader import LoadNote, Problems
+from faultwise.graph.nodes import (CLEARED, STAGES, Caution, Check, Fault, Learned, Located, Node,
+                                   Suspects, Symptom)
 
 __all__ = [
     "GRAPH_FORMAT", "SYMPTOMS_FORMAT", "CAUTIONS_FORMAT", "LEARNED_FORMAT",

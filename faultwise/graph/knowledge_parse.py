@@ -1,7 +1,7 @@
 """The knowledge folder's other files: ``symptoms.yaml``, ``cautions.yaml``, ``learned.yaml``.
 
 Each problem is reported located (file, line, node, key) into the loader's
-:class:`faultwise.knowledge_reader.Problems`.
+:class:`faultwise.graph.reader.Problems`.
 """
 
 from __future__ import annotations
@@ -9,8 +9,8 @@ from __future__ import annotations
 from pathlib import Path
 from types import MappingProxyType
 
-from faultwise.knowledge_reader import ID_RE, KnowledgeReader, Problems, key_line, read_yaml
-from faultwise.nodes import FAMILIES, Caution, Learned, Located, Symptom
+from faultwise.graph.reader import ID_RE, KnowledgeReader, Problems, key_line, read_yaml
+from faultwise.graph.nodes import FAMILIES, Caution, Learned, Located, Symptom
 
 SYMPTOMS_FORMAT = "faultwise-symptoms/1"
 CAUTIONS_FORMAT = "faultwise-cautions/1"

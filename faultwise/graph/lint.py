@@ -14,8 +14,8 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Callable, Iterable
 
-from faultwise.graph import Knowledge, LoadResult, edges_of, load_all
-from faultwise.nodes import CLEARED, FAMILIES, STAGES, Check, Fault, Suspects
+from faultwise.graph.knowledge import Knowledge, LoadResult, edges_of, load_all
+from faultwise.graph.nodes import CLEARED, FAMILIES, STAGES, Check, Fault, Suspects
 
 # DESIGN section 6: the symptom ids are a contract.
 SYMPTOM_IDS = ("dead-nothing-lights", "dead-lights-on", "hum-loud", "noise-no-stations",
@@ -105,7 +105,7 @@ class _Lint:
 
     def _matchers(self, names: NamesFn | None) -> dict[str, Callable[[str], bool]] | None:
         if names is None:
-            from faultwise.expect import expectation_names as names
+            from faultwise.expect.expected import expectation_names as names
         out = {}
         try:
             for family in FAMILIES:
@@ -113,7 +113,7 @@ class _Lint:
         except NotImplementedError:
             self.warn(str(self.k.root), None, None, "expectation names are not available yet, "
                       "so 'expect' and signature names were not checked",
-                      "run lint again once faultwise.expect.expectation_names exists")
+                      "run lint again once faultwise.expect.expected.expectation_names exists")
             return None
         return out
 
@@ -468,7 +468,7 @@ def _summary(k: Knowledge | None, result: LoadResult) -> dict:
 
 
 def lint(path: str | Path, expectation_names: NamesFn | None = None) -> LintReport:
-    """Check a knowledge folder; ``expectation_names`` defaults to faultwise.expect's."""
+    """Check a knowledge folder; ``expectation_names`` defaults to faultwise.expect.expected's."""
     path = Path(path)
     result = load_all(path)
     load_errors = [Finding(e.file or str(path), e.line, e.node,

@@ -20,7 +20,7 @@ import re
 from dataclasses import dataclass
 from typing import Iterable, Mapping
 
-from faultwise.nodes import Symptom
+from faultwise.graph.nodes import Symptom
 
 # Words that carry no complaint ("the radio", "it is").
 STOP_WORDS = frozenset("""

@@ -38,7 +38,7 @@ class Check:
     gives. ``unable`` is where a skipped check goes (default: ``cleared``, the next suspect).
     ``closing``: done before any case of these families is closed (the leakage check).
     ``when``: conditions on the set (key -> any of these values) for the check to apply;
-    empty: it applies to every set of its families (see :mod:`faultwise.applicability`).
+    empty: it applies to every set of its families (see :mod:`faultwise.graph.applicability`).
     """
 
     id: str

@@ -1,8 +1,8 @@
 """Graph files (``graph/<stage>.yaml``) -> nodes: per-node parsing and structural checks.
 
 Each problem is reported located (file, line, node, key) into the loader's
-:class:`faultwise.knowledge_reader.Problems`; graph-level checks (targets, cycles,
-reachability, expectation names) are :mod:`faultwise.lint`'s job.
+:class:`faultwise.graph.reader.Problems`; graph-level checks (targets, cycles,
+reachability, expectation names) are :mod:`faultwise.graph.lint`'s job.
 """
 
 from __future__ import annotations
@@ -10,11 +10,11 @@ from __future__ import annotations
 from pathlib import Path
 from types import MappingProxyType
 
-from faultwise.applicability import WHEN_KEYS
-from faultwise.knowledge_reader import (ID_RE, KnowledgeReader, Problems, is_number, key_line,
-                                        key_text, read_yaml)
-from faultwise.nodes import (CLEARED, FAMILIES, MEASURE_OUTCOMES, STAGES, Check, Escalate, Fault,
-                             Investigation, Located, Node, Signature, Suspects)
+from faultwise.graph.applicability import WHEN_KEYS
+from faultwise.graph.reader import (ID_RE, KnowledgeReader, Problems, is_number, key_line,
+                                    key_text, read_yaml)
+from faultwise.graph.nodes import (CLEARED, FAMILIES, MEASURE_OUTCOMES, STAGES, Check, Escalate,
+                                   Fault, Investigation, Located, Node, Signature, Suspects)
 
 GRAPH_FORMAT = "faultwise-graph/1"
 DEFAULT_MINUTES = 1.0        # cost of a check that does not say (lint warns)

@@ -2,8 +2,8 @@
 
 :class:`KnowledgeReader` reads one raw mapping and reports each problem located at its key
 into :class:`Problems`, so that one run of the loader reports them all; :class:`LoadNote`
-is what the loader noticed that is not an error. Used by :mod:`faultwise.graph_parse`
-(graph files) and :mod:`faultwise.knowledge_parse` (symptoms, cautions, learned counts).
+is what the loader noticed that is not an error. Used by :mod:`faultwise.graph.parse`
+(graph files) and :mod:`faultwise.graph.knowledge_parse` (symptoms, cautions, learned counts).
 """
 
 from __future__ import annotations
@@ -13,9 +13,9 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Mapping
 
-from faultwise.errors import FaultwiseError, KnowledgeError
-from faultwise.nodes import FAMILIES
-from faultwise.yamlload import load_yaml_file
+from faultwise.core.errors import FaultwiseError, KnowledgeError
+from faultwise.graph.nodes import FAMILIES
+from faultwise.core.yamlload import load_yaml_file
 
 ID_RE = re.compile(r"^[a-z0-9][a-z0-9_.-]*$")
 

@@ -2,15 +2,15 @@
 
 :class:`ProfileReader` reads one profile mapping and raises ProfileError located by file,
 line and key; it also records which dotted keys were filled with a typical value. Used by
-:mod:`faultwise.profile` and the section readers (:mod:`faultwise.profile_sections`,
-:mod:`faultwise.profile_lineup`).
+:mod:`faultwise.profile.model` and the section readers (:mod:`faultwise.profile.sections`,
+:mod:`faultwise.profile.lineup`).
 """
 
 from __future__ import annotations
 
 import math
 
-from faultwise.errors import InputError, ProfileError
+from faultwise.core.errors import InputError, ProfileError
 
 _UNIT_OF_SUFFIX = (("_khz", "kHz"), ("_ohm", "ohm"), ("_uf", "uF"), ("_pf", "pF"),
                    ("_uh", "uH"), ("_hz", "Hz"), ("_ma", "mA"), ("_v", "V"), ("_a", "A"))
@@ -57,7 +57,7 @@ class ProfileReader:
 
     @staticmethod
     def line(container, key=None) -> int | None:
-        from faultwise.yamlload import line_of
+        from faultwise.core.yamlload import line_of
 
         if key is None:
             line = getattr(container, "line", 0)
@@ -111,7 +111,7 @@ class ProfileReader:
                              f"write a number in {unit}" + (" or text with a unit"
                                                             if unit != "ratio" else ""))
         if isinstance(value, str):
-            from faultwise.units import parse_reading
+            from faultwise.core.units import parse_reading
 
             try:
                 number = parse_reading(value, unit)
@@ -196,6 +196,6 @@ def join_key(path: str, key: str) -> str:
 
 
 def item_line(rows, i: int) -> int | None:
-    from faultwise.yamlload import line_of
+    from faultwise.core.yamlload import line_of
 
     return line_of(rows, i)

@@ -1,6 +1,6 @@
 """Profile section readers for the lineup: the tubes with their heaters, and the transistors.
 
-Each reader takes the :class:`faultwise.profile_fields.ProfileReader` of the profile being
+Each reader takes the :class:`faultwise.profile.fields.ProfileReader` of the profile being
 read and raises ProfileError located by file, line and key.
 """
 
@@ -8,16 +8,16 @@ from __future__ import annotations
 
 import math
 
-from faultwise.profile import (OUTPUT_ROLES, MATERIALS, POLARITIES, TRANSISTOR_ROLES, TUBE_ROLES,
-                               Bias, Transistor, Tube)
-from faultwise.profile_fields import (TRANSISTOR_KEYS, TUBE_KEYS, BIAS_KEYS, ProfileReader,
+from faultwise.profile.model import (OUTPUT_ROLES, MATERIALS, POLARITIES, TRANSISTOR_ROLES,
+                                     TUBE_ROLES, Bias, Transistor, Tube)
+from faultwise.profile.fields import (TRANSISTOR_KEYS, TUBE_KEYS, BIAS_KEYS, ProfileReader,
                                       item_line, nearest)
-from faultwise.profile_typical import (TYPICAL_BETA, TYPICAL_MATERIAL, TYPICAL_OUTPUT,
+from faultwise.profile.typical import (TYPICAL_BETA, TYPICAL_MATERIAL, TYPICAL_OUTPUT,
                                        TYPICAL_POLARITY, typical_bias)
 
 
 def read_tubes(r: ProfileReader, data: dict, family: str, table) -> list[Tube]:
-    from faultwise.tubes import lookup, normalise_name
+    from faultwise.profile.tubes import lookup, normalise_name
 
     rows = r.sequence(data.get("tubes"), "tubes", r.line(data, "tubes"))
     if not rows:
@@ -73,7 +73,7 @@ def _check_role_fits(r: ProfileReader, item: dict, path: str, role: str, known) 
 
 def fill_output_tubes(r: ProfileReader, tubes: list[Tube], family: str, table) -> list[Tube]:
     """Cathode resistor and current of the output tube(s) from the table's typical operation."""
-    from faultwise.tubes import lookup
+    from faultwise.profile.tubes import lookup
 
     out = []
     for tube in tubes:

@@ -5,21 +5,20 @@ the unit that ends the field name. ``typical`` holds the dotted keys (``supply.s
 ``tubes.output.cathode_ohm``, ``transistors.if.beta``) that were filled with the family's
 typical value because the profile did not give them.
 
-The loader and validator (``load_profile``, ``profile_from_dict``) are below the model.
-They read through :class:`faultwise.profile_fields.ProfileReader`; the section readers are in
-:mod:`faultwise.profile_sections` (band, IF, gang, supply, audio, the typical list) and
-:mod:`faultwise.profile_lineup` (tubes, heaters, transistors), the typical values in
-:mod:`faultwise.profile_typical` (re-exported here).
+The writer ``profile_to_dict`` is at the end; the loader and validator (``load_profile``,
+``profile_from_dict``) are in :mod:`faultwise.profile.load`. They read through
+:class:`faultwise.profile.fields.ProfileReader`; the section readers are in
+:mod:`faultwise.profile.sections` (band, IF, gang, supply, audio, the typical list) and
+:mod:`faultwise.profile.lineup` (tubes, heaters, transistors), the typical values in
+:mod:`faultwise.profile.typical` (re-exported here).
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from pathlib import Path
 
-from faultwise.errors import FaultwiseError, ProfileError
-from faultwise.profile_fields import BIAS_KEYS, SECTION_KEYS, TOP_KEYS, ProfileReader
-from faultwise.profile_typical import (  # re-exported: the typical tables
+from faultwise.profile.fields import BIAS_KEYS, SECTION_KEYS
+from faultwise.profile.typical import (  # re-exported: the typical tables
     SCREEN_SHARE, TYPICAL_BAND_KHZ, TYPICAL_BATTERY_V, TYPICAL_BETA, TYPICAL_BIAS,
     TYPICAL_GANG_PF, TYPICAL_IF_KHZ, TYPICAL_MAINS_HZ, TYPICAL_MAINS_V, TYPICAL_MATERIAL,
     TYPICAL_OUTPUT, TYPICAL_POLARITY, TYPICAL_SPEAKER_OHM, TYPICAL_STAGE_MA, TYPICAL_SUPPLY,
@@ -28,9 +27,8 @@ from faultwise.profile_typical import (  # re-exported: the typical tables
 __all__ = [
     "FAMILIES", "LINE_FAMILIES", "TUBE_ROLES", "RECTIFIERS", "CIRCUITS", "FORMAT",
     "TRANSISTOR_ROLES", "MATERIALS", "POLARITIES", "OUTPUT_ROLES",
-    "Tube", "Bias", "Transistor", "Supply", "Audio", "Profile",
-    "profile_from_dict", "load_profile", "profile_to_dict",
-    # the typical tables, from faultwise.profile_typical
+    "Tube", "Bias", "Transistor", "Supply", "Audio", "Profile", "profile_to_dict",
+    # the typical tables, from faultwise.profile.typical
     "TYPICAL_MAINS_V", "TYPICAL_MAINS_HZ", "TYPICAL_BAND_KHZ", "TYPICAL_IF_KHZ",
     "TYPICAL_GANG_PF", "TYPICAL_BATTERY_V", "TYPICAL_SUPPLY", "TYPICAL_STAGE_MA",
     "TYPICAL_OUTPUT", "SCREEN_SHARE", "TYPICAL_SPEAKER_OHM", "TYPICAL_BETA",
@@ -145,90 +143,7 @@ POLARITIES = ("pnp", "npn")
 OUTPUT_ROLES = ("output", "output2")
 
 
-# --- entry points ------------------------------------------------------------------------
-
-def profile_from_dict(data, source: str = "<profile>", knowledge_dir=None) -> Profile:
-    """Validate a profile mapping (from YAML or a case file) and fill the family's typicals."""
-    from faultwise.profile_lineup import (check_series_string, fill_output_tubes, heater_winding,
-                                          read_transistors, read_tubes)
-    from faultwise.profile_sections import read_audio, read_common, read_supply, read_typical_list
-
-    r = ProfileReader(str(source))
-    data = r.mapping(data, "", r.line(data) if isinstance(data, dict) else None)
-    if not data:
-        raise r.error("the set profile is empty", None, None,
-                      "write at least label, family and the tube or transistor lineup")
-    r.keys(data, TOP_KEYS, "")
-    fmt = data.get("format")
-    if fmt is not None and fmt != FORMAT:
-        raise r.error(f"unknown format '{fmt}'", "format", r.line(data, "format"),
-                      f"write format: {FORMAT} (or leave it out)")
-    label = r.text(data, "label", "", required=True)
-    family = r.choice(data, "family", "", FAMILIES, required=True)
-    fields = read_common(r, data, family)
-    tube_family = family in LINE_FAMILIES
-    if tube_family:
-        for key in ("battery", "transistors"):
-            r.forbid(data, key, "", f"a {family} set is line-powered with tubes",
-                     "remove it, or make the family transistor")
-        if family == "series-string":
-            r.forbid(data, "heater_winding_v", "", "a series-string set has no heater winding",
-                     "remove it, or make the family transformer")
-        from faultwise.tubes import load_tube_table
-
-        table = load_tube_table(knowledge_dir)
-        mains = r.mapping(data.get("mains"), "mains", r.line(data, "mains"))
-        r.keys(mains, SECTION_KEYS["mains"], "mains")
-        mains_v = r.fill(r.number(mains, "volts_v", "mains"), TYPICAL_MAINS_V, "mains.volts_v")
-        mains_hz = r.fill(r.number(mains, "freq_hz", "mains"), TYPICAL_MAINS_HZ, "mains.freq_hz")
-        tubes = read_tubes(r, data, family, table)
-        winding = None
-        if family == "series-string":
-            check_series_string(r, data, tubes, mains_v, "mains.volts_v" in r.typical)
-        else:
-            winding = heater_winding(r, data, tubes)
-        tubes = fill_output_tubes(r, tubes, family, table)
-        supply = read_supply(r, data, family, tubes, table)
-        audio = read_audio(r, data, family, tubes, table)
-        profile = Profile(label=label, family=family, mains_v=mains_v, mains_hz=mains_hz,
-                          tubes=tuple(tubes), heater_winding_v=winding, supply=supply,
-                          audio=audio, source=str(source), **fields)
-    else:
-        for key in ("mains", "tubes", "heater_winding_v", "supply"):
-            r.forbid(data, key, "", "a transistor set runs from its battery",
-                     "remove it, or make the family series-string or transformer")
-        battery = r.mapping(data.get("battery"), "battery", r.line(data, "battery"))
-        r.keys(battery, SECTION_KEYS["battery"], "battery")
-        battery_v = r.fill(r.number(battery, "volts_v", "battery"), TYPICAL_BATTERY_V,
-                           "battery.volts_v")
-        transistors = read_transistors(r, data, battery_v)
-        audio = read_audio(r, data, family, [], None)
-        profile = Profile(label=label, family=family, battery_v=battery_v,
-                          transistors=tuple(transistors), audio=audio, source=str(source),
-                          **fields)
-    declared = read_typical_list(r, data, profile)
-    return _replace(profile, typical=frozenset(r.typical | declared))
-
-
-def _replace(profile: Profile, **changes) -> Profile:
-    from dataclasses import replace
-
-    return replace(profile, **changes)
-
-
-def load_profile(path, knowledge_dir=None) -> Profile:
-    """Read, validate and complete a set profile YAML file; ProfileError located on a fault."""
-    from faultwise.yamlload import load_yaml_file
-
-    try:
-        data = load_yaml_file(Path(path))
-    except ProfileError:
-        raise
-    except FaultwiseError as exc:
-        raise ProfileError(exc.message, file=exc.file or str(path), line=exc.line, key=exc.key,
-                           hint=exc.hint) from None
-    return profile_from_dict(data, source=str(path), knowledge_dir=knowledge_dir)
-
+# --- writer ----------------------------------------------------------------------------
 
 def profile_to_dict(profile: Profile, with_typical: bool = True) -> dict:
     """The contract shape (DESIGN section 4), every value included, plus ``typical: [keys]``."""

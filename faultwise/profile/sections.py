@@ -1,6 +1,6 @@
 """Profile section readers: band, IF and gang; supply and its loads; audio; the typical list.
 
-Each reader takes the :class:`faultwise.profile_fields.ProfileReader` of the profile being
+Each reader takes the :class:`faultwise.profile.fields.ProfileReader` of the profile being
 read and raises ProfileError located by file, line and key.
 """
 
@@ -8,10 +8,10 @@ from __future__ import annotations
 
 import math
 
-from faultwise.profile import (CIRCUITS, OUTPUT_ROLES, RECTIFIERS, Audio, Profile, Supply, Tube,
-                               profile_to_dict)
-from faultwise.profile_fields import SECTION_KEYS, ProfileReader, item_line, nearest, what_of
-from faultwise.profile_typical import (SCREEN_SHARE, TYPICAL_BAND_KHZ, TYPICAL_GANG_PF,
+from faultwise.profile.model import (CIRCUITS, OUTPUT_ROLES, RECTIFIERS, Audio, Profile, Supply,
+                                     Tube, profile_to_dict)
+from faultwise.profile.fields import SECTION_KEYS, ProfileReader, item_line, nearest, what_of
+from faultwise.profile.typical import (SCREEN_SHARE, TYPICAL_BAND_KHZ, TYPICAL_GANG_PF,
                                        TYPICAL_IF_KHZ, TYPICAL_OUTPUT, TYPICAL_SPEAKER_OHM,
                                        TYPICAL_STAGE_MA, TYPICAL_SUPPLY)
 
@@ -47,7 +47,7 @@ def read_common(r: ProfileReader, data: dict, family: str) -> dict:
 
 
 def read_supply(r: ProfileReader, data: dict, family: str, tubes: list[Tube], table) -> Supply:
-    from faultwise.tubes import lookup
+    from faultwise.profile.tubes import lookup
 
     sup = r.mapping(data.get("supply"), "supply", r.line(data, "supply"))
     r.keys(sup, SECTION_KEYS["supply"], "supply")
@@ -107,7 +107,7 @@ def read_supply(r: ProfileReader, data: dict, family: str, tubes: list[Tube], ta
 def _loads(r: ProfileReader, sup: dict, family: str, tubes: list[Tube],
            table) -> tuple[float, float]:
     """DC load on the first capacitor and the part of it through the filter resistor."""
-    from faultwise.tubes import lookup
+    from faultwise.profile.tubes import lookup
 
     small = sum(TYPICAL_STAGE_MA[family].get(t.role, 0.0) for t in tubes
                 if t.role not in OUTPUT_ROLES)
@@ -133,7 +133,7 @@ def _loads(r: ProfileReader, sup: dict, family: str, tubes: list[Tube],
 
 
 def read_audio(r: ProfileReader, data: dict, family: str, tubes: list[Tube], table) -> Audio:
-    from faultwise.tubes import lookup
+    from faultwise.profile.tubes import lookup
 
     aud = r.mapping(data.get("audio"), "audio", r.line(data, "audio"))
     r.keys(aud, SECTION_KEYS["audio"], "audio")

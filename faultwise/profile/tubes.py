@@ -14,7 +14,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
 
-from faultwise.errors import FaultwiseError, KnowledgeError
+from faultwise.core.errors import FaultwiseError, KnowledgeError
 
 FORMAT = "faultwise-tubes/1"
 BASES = ("7-pin miniature", "9-pin miniature", "octal", "loctal", "4-pin", "6-pin")
@@ -128,7 +128,7 @@ def _bad(message: str, source: str, line: int | None, key: str, hint: str) -> Kn
 
 
 def _line(container, key) -> int | None:
-    from faultwise.yamlload import line_of
+    from faultwise.core.yamlload import line_of
 
     return line_of(container, key)
 
@@ -256,7 +256,7 @@ def parse_tube_table(data, source: str = "<tubes>") -> TubeTable:
 
 @lru_cache(maxsize=16)
 def _load_cached(path: str, mtime_ns: int, size: int) -> TubeTable:
-    from faultwise.yamlload import load_yaml_file
+    from faultwise.core.yamlload import load_yaml_file
 
     try:
         data = load_yaml_file(path)
@@ -271,7 +271,7 @@ def _load_cached(path: str, mtime_ns: int, size: int) -> TubeTable:
 def load_tube_table(knowledge_dir: str | Path | None = None) -> TubeTable:
     """Read ``<knowledge_dir>/tubes.yaml`` (default: the bundled knowledge), cached per file."""
     if knowledge_dir is None:
-        from faultwise.workspace import bundled_knowledge_dir
+        from faultwise.core.workspace import bundled_knowledge_dir
 
         knowledge_dir = bundled_knowledge_dir()
     path = Path(knowledge_dir) / "tubes.yaml"

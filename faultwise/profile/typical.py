@@ -1,7 +1,7 @@
 """Typical values by family: what fills a profile field the profile does not give.
 
 The tables and the typical transistor bias divider, used by the profile readers
-(:mod:`faultwise.profile_sections`, :mod:`faultwise.profile_lineup`).
+(:mod:`faultwise.profile.sections`, :mod:`faultwise.profile.lineup`).
 """
 
 from __future__ import annotations
@@ -73,7 +73,7 @@ def typical_bias(material: str, role: str, battery_v: float) -> tuple[float, ...
     The base keeps the divider voltage of the 9 V design, Vth = 9 V * Rb / (Rt + Rb), so
     Rt' = Rb * (Vbatt / Vth - 1), rounded to the IEC 60063 E24 series.
     """
-    from faultwise.codes import nearest_preferred
+    from faultwise.core.codes import nearest_preferred
 
     top, bottom, emitter, collector = TYPICAL_BIAS[material][ROLE_GROUP[role]]
     vth = TYPICAL_BATTERY_V * bottom / (top + bottom)

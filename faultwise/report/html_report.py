@@ -9,9 +9,10 @@ from __future__ import annotations
 
 from html import escape
 
-from faultwise.report import (LEAKAGE_STATEMENT, NOT_LINE_CONNECTED, SAFETY_STATEMENT, JobReport,
-                              ReportStep, band_text, minutes_text, reading_text, when_text)
-from faultwise.svg import bar_chart_svg, column_chart_svg, stage_map_svg
+from faultwise.report.job import (LEAKAGE_STATEMENT, NOT_LINE_CONNECTED, SAFETY_STATEMENT,
+                                  JobReport, ReportStep, band_text, minutes_text, reading_text,
+                                  when_text)
+from faultwise.report.svg import bar_chart_svg, column_chart_svg, stage_map_svg
 
 CSS = """
 body { font-family: sans-serif; color: #1d1d1d; margin: 24px auto; max-width: 900px;
@@ -43,7 +44,7 @@ def _page(title: str, body: list[str]) -> str:
 
 
 def _e(text) -> str:
-    from faultwise.safe_text import shown_text
+    from faultwise.core.safe_text import shown_text
 
     return escape(shown_text(text))
 

@@ -3,7 +3,7 @@
 The job report reads the case file as recorded: the band of each reading is the band
 written into the case when the reading was taken, not one computed again. The knowledge,
 when given, only supplies titles and the fault's repair steps. HTML forms of both are in
-:mod:`faultwise.report_html`.
+:mod:`faultwise.report.html_report`.
 """
 
 from __future__ import annotations
@@ -13,7 +13,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Mapping
 
-from faultwise.nodes import STAGES
+from faultwise.graph.nodes import STAGES
 
 SHOP = "Larkspur Lane Radio Works"
 LINE_FAMILIES = ("series-string", "transformer")
@@ -80,7 +80,7 @@ class JobReport:
 
 def find_case(ref: str, cases_dir: str | os.PathLike) -> Path:
     """A case id or a path -> the case file's path; CaseError when there is none."""
-    from faultwise.errors import CaseError
+    from faultwise.core.errors import CaseError
 
     path = Path(ref)
     if path.is_file():
@@ -95,8 +95,8 @@ def find_case(ref: str, cases_dir: str | os.PathLike) -> Path:
 
 def read_case(path: str | os.PathLike) -> dict:
     """Read one case file; DamagedCaseError (file, reason) when it cannot be read."""
-    from faultwise.cases import read_case_bytes
-    from faultwise.errors import CaseError
+    from faultwise.cases.store import read_case_bytes
+    from faultwise.core.errors import CaseError
 
     path = Path(path)
     try:
@@ -210,7 +210,7 @@ def number(value: float, unit: str = "") -> str:
     """A value with its unit for display (units.format_reading where it knows the unit)."""
     if unit:
         try:
-            from faultwise.units import format_reading
+            from faultwise.core.units import format_reading
 
             return format_reading(float(value), unit)
         except Exception:  # an unknown unit recorded by an older version: show it plainly
@@ -235,7 +235,7 @@ def band_text(band: Mapping | None) -> str:
 
 def when_text(iso: str) -> str:
     """``2026-12-01T09:30:00+00:00`` -> ``2026-12-01 09:30 +00:00``; other text as it is."""
-    from faultwise.casesummary import parse_time
+    from faultwise.cases.summary import parse_time
 
     t = parse_time(iso)
     if t is None:
@@ -261,7 +261,7 @@ def minutes_text(minutes: float | None) -> str:
 
 def _md(text: str) -> str:
     """Case text made safe inside a Markdown table cell or line (no control characters)."""
-    from faultwise.safe_text import one_line
+    from faultwise.core.safe_text import one_line
 
     return one_line(text).replace("\\", "\\\\").replace("|", "\\|") \
         .replace("<", "&lt;").replace(">", "&gt;")

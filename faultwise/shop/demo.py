@@ -18,7 +18,7 @@ from dataclasses import dataclass
 from datetime import datetime, timedelta, timezone
 from pathlib import Path
 
-from faultwise.errors import FaultwiseError
+from faultwise.core.errors import FaultwiseError
 
 SHOP = "Larkspur Lane Radio Works"
 BENCHES = ("B1", "B2", "B3")
@@ -80,7 +80,7 @@ class DemoSummary:
 
 
 def _profiles(knowledge_dir: Path):
-    from faultwise.profile import load_profile
+    from faultwise.profile.load import load_profile
 
     by_family: dict[str, list] = {}
     for path in sorted((knowledge_dir / "sets").glob("*.yaml")):
@@ -92,9 +92,9 @@ def _profiles(knowledge_dir: Path):
 def _shop_weights(knowledge, symptom: str, profile) -> dict[str, float]:
     """The invented shop's fault mix for this set: the graph's probabilities, with the
     middle-ranked fault raised to twice the likeliest (this shop's own common fault)."""
-    from faultwise.applicability import applying_faults
-    from faultwise.expect import expect
-    from faultwise.rank import fault_probabilities
+    from faultwise.graph.applicability import applying_faults
+    from faultwise.expect.expected import expect
+    from faultwise.walk.rank import fault_probabilities
 
     probs = fault_probabilities(knowledge, symptom, profile.family, counts={})
     fits = applying_faults(knowledge, profile, expect(profile))
@@ -108,8 +108,8 @@ def _shop_weights(knowledge, symptom: str, profile) -> dict[str, float]:
 
 def _reading_text(expected, outcome: str, rng: random.Random) -> str:
     """What a tech would type for a reading of this class, with a meter's scatter."""
-    from faultwise.units import format_reading
-    from faultwise.walk import representative_value
+    from faultwise.core.units import format_reading
+    from faultwise.walk.state import representative_value
 
     value = representative_value(expected, outcome)
     if outcome == "normal":
@@ -122,7 +122,7 @@ def _reading_text(expected, outcome: str, rng: random.Random) -> str:
 
 def _answer(walk, fault, rng: random.Random, skip_ok: bool) -> None:
     """Answer the current check as the fault's signature implies."""
-    from faultwise.walk import classify
+    from faultwise.walk.state import classify
 
     prompt = walk.prompt()
     check = prompt.node
@@ -174,7 +174,7 @@ def _finish_checks(walk, rng, clock: _Clock, case, phase: str) -> None:
             expected = prompt.expected
             if expected.low <= 0.0:          # a limit such as the leakage check
                 value = expected.high * rng.uniform(0.05, 0.5)
-                from faultwise.units import format_reading
+                from faultwise.core.units import format_reading
 
                 walk.answer(format_reading(value, expected.unit))
             else:
@@ -188,7 +188,7 @@ def _finish_checks(walk, rng, clock: _Clock, case, phase: str) -> None:
 
 def _one_case(store, knowledge, profiles, rng: random.Random, clock: _Clock, plan: str,
               reopened_from=None, forced=None):
-    from faultwise.walk import Walk
+    from faultwise.walk.state import Walk
 
     if forced is None:
         family = rng.choices(list(FAMILY_MIX), weights=list(FAMILY_MIX.values()))[0]
@@ -250,8 +250,8 @@ def _one_case(store, knowledge, profiles, rng: random.Random, clock: _Clock, pla
 def generate(knowledge_dir: Path, cases_dir: Path, *, seed: int = 7, closed: int = 200,
              open_cases: int = 3, force: bool = False) -> DemoSummary:
     """Write the demo cases into ``cases_dir`` (refuses a folder holding cases unless ``force``)."""
-    from faultwise.cases import CaseStore
-    from faultwise.graph import load_knowledge
+    from faultwise.cases.store import CaseStore
+    from faultwise.graph.knowledge import load_knowledge
 
     cases_dir = Path(cases_dir)
     existing = sorted(cases_dir.glob("*.json")) if cases_dir.is_dir() else []

@@ -17,8 +17,8 @@ from datetime import datetime, timezone
 from pathlib import Path
 from typing import Iterable, Mapping
 
-from faultwise.errors import FaultwiseError
-from faultwise.review import fault_counts
+from faultwise.core.errors import FaultwiseError
+from faultwise.shop.review import fault_counts
 
 LEARNED_FORMAT = "faultwise-learned/1"
 LEARNED_NAME = "learned.yaml"
@@ -126,8 +126,8 @@ def write_learned(knowledge_dir: str | os.PathLike, learning: Learning,
 
 def learn_changes(knowledge, learning: Learning) -> list[PairChange]:
     """Per pair with old or new counts: count changes and every suspects order that moves."""
-    from faultwise.rank import rank_investigations
-    from faultwise.review import _suspects_lists
+    from faultwise.walk.rank import rank_investigations
+    from faultwise.shop.review import _suspects_lists
 
     old = knowledge.learned.counts
     pairs = sorted({(s, f) for s in old for f in old[s]} |

@@ -18,8 +18,8 @@ from collections.abc import Iterable, Mapping
 from dataclasses import dataclass
 from pathlib import Path
 
-from faultwise.errors import DamagedCaseError, FaultwiseError
-from faultwise.nodes import MEASURE_OUTCOMES
+from faultwise.core.errors import DamagedCaseError, FaultwiseError
+from faultwise.graph.nodes import MEASURE_OUTCOMES
 
 
 @dataclass(frozen=True)
@@ -89,7 +89,7 @@ def _recorded_inputs(events: list[Mapping]) -> tuple[dict, dict]:
 
 def _give(walk, event: Mapping, readings: Mapping, observations: Mapping) -> None:
     """Give one recorded answer again to the walk's current check."""
-    from faultwise.walk import auto_answer, representative_value
+    from faultwise.walk.state import auto_answer, representative_value
 
     if event.get("type") == "skip":
         walk.skip(str(event.get("reason") or ""))
@@ -121,8 +121,8 @@ def _at(path: tuple[tuple[str, str], ...], step: int) -> str | None:
 def replay_case(knowledge, data: Mapping, *, expectations: Mapping | None = None,
                 file: str = "") -> ReplayResult:
     """Re-walk one case's recorded answers against this knowledge; see the module doc."""
-    from faultwise.profile import profile_from_dict
-    from faultwise.walk import Walk, auto_answer
+    from faultwise.profile.load import profile_from_dict
+    from faultwise.walk.state import Walk, auto_answer
 
     case_id = str(data.get("id") or file)
     s = data.get("set") if isinstance(data.get("set"), dict) else {}
@@ -176,7 +176,7 @@ def replay_case(knowledge, data: Mapping, *, expectations: Mapping | None = None
 
 def replay_files(knowledge, paths: Iterable[Path]) -> ReplayReport:
     """Replay every case file; damaged files are named, unreplayable cases listed, none written."""
-    from faultwise.cases import read_case_bytes
+    from faultwise.cases.store import read_case_bytes
 
     results, damaged, failed = [], [], []
     for path in paths:

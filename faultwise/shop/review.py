@@ -1,7 +1,7 @@
 """Shop review: what the closed cases say about the graph (DESIGN section 9).
 
 Per symptom and family: cases, fault shares (raw counts, and smoothed with the graph's
-priors as Dirichlet pseudo-counts through :mod:`faultwise.rank`), mean checks and minutes
+priors as Dirichlet pseudo-counts through :mod:`faultwise.walk.rank`), mean checks and minutes
 to the fault, the expected minutes of the current order (priors only) against the order the
 data supports (priors + counts), and checks whose outcome never varied. Over the shop:
 checks most often skipped, off-graph findings grouped by similarity (rapidfuzz), faults
@@ -31,8 +31,8 @@ from dataclasses import dataclass
 from datetime import date
 from typing import Iterable, Mapping
 
-from faultwise.casesummary import pairs
-from faultwise.errors import FaultwiseError, KnowledgeError
+from faultwise.cases.summary import pairs
+from faultwise.core.errors import FaultwiseError, KnowledgeError
 
 REOPEN_DAYS = 30
 STEADY_MIN_CASES = 3
@@ -219,7 +219,7 @@ def _suspects_lists(knowledge, symptom: str, family: str) -> list[str]:
 def list_orders(knowledge, symptom: str, family: str,
                 counts: Mapping[str, int]) -> list[ListOrder]:
     """Every reachable suspects list, ordered by priors only and by priors + counts."""
-    from faultwise.rank import expected_cost, fault_probabilities, rank_investigations
+    from faultwise.walk.rank import expected_cost, fault_probabilities, rank_investigations
 
     probs = fault_probabilities(knowledge, symptom, family, counts)
     out = []
@@ -264,7 +264,7 @@ def review_pair(knowledge, symptom: str, family: str, cases: list[Mapping],
     orders: list[ListOrder] = []
     note = ""
     if knowledge is not None:
-        from faultwise.rank import fault_probabilities
+        from faultwise.walk.rank import fault_probabilities
 
         try:
             smoothed = fault_probabilities(knowledge, symptom, family, counts)
@@ -395,7 +395,7 @@ def review_summaries(summaries: Iterable[Mapping], knowledge=None, *, since: dat
                      damaged: Iterable = (), reopen_days: float = REOPEN_DAYS,
                      min_cases: int = STEADY_MIN_CASES,
                      similarity: float = SIMILARITY) -> Review:
-    """The whole review from case summaries (:func:`faultwise.casesummary.summarise`)."""
+    """The whole review from case summaries (:func:`faultwise.cases.summary.summarise`)."""
     summaries = list(summaries)
     cases = selected_cases(summaries, since)
     by_pair: dict[tuple[str, str], list] = defaultdict(list)
@@ -421,7 +421,7 @@ def review_summaries(summaries: Iterable[Mapping], knowledge=None, *, since: dat
 
 
 def review_scan(scan, knowledge=None, *, since: date | None = None, **options) -> Review:
-    """Review the result of :func:`faultwise.index.scan_cases`, with its read counts."""
+    """Review the result of :func:`faultwise.cases.index.scan_cases`, with its read counts."""
     from dataclasses import replace
 
     review = review_summaries(scan.summaries, knowledge, since=since, damaged=scan.damaged,
@@ -433,7 +433,7 @@ def review_scan(scan, knowledge=None, *, since: date | None = None, **options) -
 def review_folder(cases_dir: str | os.PathLike, knowledge=None, *, since: date | None = None,
                   use_index: bool = True, progress=None, **options) -> Review:
     """Scan a cases folder through its index and review it; damaged files are listed."""
-    from faultwise.index import scan_cases
+    from faultwise.cases.index import scan_cases
 
     scan = scan_cases(cases_dir, use_index=use_index, progress=progress)
     return review_scan(scan, knowledge, since=since, **options)

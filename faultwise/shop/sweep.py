@@ -3,7 +3,7 @@
 For every fault with a signature, every symptom in its ``priors`` whose walk can reach it
 (``Knowledge.faults_for``) and every family it applies to, the sweep picks the first demo
 set of that family (file order) on which the fault applies (its ``when`` holds, see
-:mod:`faultwise.applicability`; a fault that applies on none of them is listed under
+:mod:`faultwise.graph.applicability`; a fault that applies on none of them is listed under
 ``no_set`` for that family, not walked), turns the signature into readings for that set
 (a class becomes a number from the set's band through ``walk.representative_value``;
 numbers are used as written; every other reading is nominal and every other observation
@@ -17,7 +17,7 @@ walk uses them), renormalised over the faults swept in the pair. The overall fig
 plain means over the pairs. Baseline orders re-walk every signature with the suspects
 taken in another order (through the walk's ``order`` hook), to show what p/c ranking buys.
 
-No printing, no UI imports; ``faultwise.sweep_report`` formats the result.
+No printing, no UI imports; ``faultwise.shop.sweep_report`` formats the result.
 """
 
 from __future__ import annotations
@@ -30,8 +30,8 @@ from dataclasses import dataclass, field
 from datetime import datetime
 from pathlib import Path
 
-from faultwise.errors import FaultwiseError
-from faultwise.nodes import FAMILIES, MEASURE_OUTCOMES, Fault
+from faultwise.core.errors import FaultwiseError
+from faultwise.graph.nodes import FAMILIES, MEASURE_OUTCOMES, Fault
 
 #: stage order of the speaker-back baseline: signal tracing from the speaker towards the aerial,
 #: then the supply last (common practice, no source).
@@ -279,7 +279,7 @@ def baseline_orders(knowledge, seed: int = RANDOM_SEED) -> dict[str, OrderFn]:
 
 def walk_has_order_hook() -> bool:
     """Whether ``walk.auto_walk`` takes ``order=`` (needed for the baselines)."""
-    from faultwise import walk
+    from faultwise.walk import state as walk
 
     return "order" in inspect.signature(walk.auto_walk).parameters
 
@@ -292,13 +292,13 @@ def _tube_dir(knowledge_dir: Path) -> Path | None:
 
 def load_demo_sets(sets_dir, knowledge_dir=None) -> dict[str, list[DemoSet]]:
     """Every set profile in ``sets_dir`` (sorted by file name), by family, with its expectations."""
-    from faultwise.expect import expect
-    from faultwise.profile import load_profile
+    from faultwise.expect.expected import expect
+    from faultwise.profile.load import load_profile
 
     tubes = _tube_dir(Path(knowledge_dir)) if knowledge_dir else None
     table = None
     if tubes is not None:
-        from faultwise.tubes import load_tube_table
+        from faultwise.profile.tubes import load_tube_table
 
         table = load_tube_table(tubes)
     out: dict[str, list[DemoSet]] = {}
@@ -317,7 +317,7 @@ def synthesise_readings(signature, expectations: Mapping) -> dict:
     A name the set has no expectation for keeps its class word (the walk then takes the
     word as the outcome).
     """
-    from faultwise.walk import representative_value
+    from faultwise.walk.state import representative_value
 
     out: dict = {}
     for name, spec in signature.readings.items():
@@ -368,7 +368,7 @@ def sweep_targets(knowledge, *, families: Iterable[str] = FAMILIES,
 
 def fault_applies_on(knowledge, fault_id: str, demo: DemoSet) -> bool:
     """Whether the fault applies on this demo set (family and ``when``)."""
-    from faultwise.applicability import node_applies
+    from faultwise.graph.applicability import node_applies
 
     return node_applies(knowledge.node(fault_id), demo.profile, demo.expectations)
 
@@ -383,7 +383,7 @@ def sets_for_fault(knowledge, fault_id: str, demos: Sequence[DemoSet], *,
 def walk_signature(knowledge, fault_id: str, symptom: str, demo: DemoSet, *,
                    order: OrderFn | None = None, counts: Mapping | None = None) -> SweepWalk:
     """Walk one fault's signature for one symptom on one demo set."""
-    from faultwise.walk import auto_walk
+    from faultwise.walk.state import auto_walk
 
     fault = knowledge.node(fault_id)
     readings = synthesise_readings(fault.signature, demo.expectations)
@@ -417,7 +417,7 @@ def _per_fault(walks: Iterable[SweepWalk], attr: str) -> dict[str, float]:
 def pair_figures(knowledge, symptom: str, family: str, walks: Sequence[SweepWalk],
                  baseline_walks: Mapping[str, Sequence[SweepWalk]]) -> PairFigures:
     """Prior-weighted means of one pair's walks (weights: fault_probabilities, renormalised)."""
-    from faultwise.rank import fault_probabilities
+    from faultwise.walk.rank import fault_probabilities
 
     probs = fault_probabilities(knowledge, symptom, family)
     swept = sorted({w.fault for w in walks})
@@ -510,7 +510,7 @@ def learning_check(knowledge, cases_dir, sets: Mapping[str, Sequence[DemoSet]],
     The earlier part is the first floor(n/2) cases by opened time (id breaks ties), the later
     part the rest. None when fewer than two such cases exist.
     """
-    from faultwise.cases import CaseStore
+    from faultwise.cases.store import CaseStore
 
     folder = Path(cases_dir)
     if not folder.is_dir():

@@ -1,14 +1,8 @@
-"""Text and JSON forms of a :class:`faultwise.sweep.SweepReport` (no printing here)."""
+"""Text and JSON forms of a :class:`faultwise.shop.sweep.SweepReport` (no printing here)."""
 
 from __future__ import annotations
 
-from faultwise.sweep import (
-    BASELINES,
-    LearningCheck,
-    PairFigures,
-    SweepReport,
-    SweepWalk,
-)
+from faultwise.shop.sweep import BASELINES, LearningCheck, PairFigures, SweepReport, SweepWalk
 
 
 def _r(x: float | None, digits: int = 3) -> float | None:

@@ -10,7 +10,7 @@ pseudo-counts ``alpha_f = S * w_f / sum(w)`` (S = ``knowledge.prior_strength`` e
 cases) and the shop's closed cases add their counts ``n_f``: ``p_f = (alpha_f + n_f) / (S + N)``.
 
 Profile-aware ranking: ``applies(node_id) -> bool`` (from
-:func:`faultwise.applicability.applies_predicate`) drops the investigations whose target does
+:func:`faultwise.graph.applicability.applies_predicate`) drops the investigations whose target does
 not apply to the set on the bench (a suspects list applies when one of its investigations
 does, recursively) and sums an investigation's probability over the faults under it that
 apply; the shares are then renormalised over the investigations left, as before.
@@ -23,8 +23,8 @@ import math
 from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, field
 
-from faultwise.errors import KnowledgeError
-from faultwise.nodes import Check, Investigation, Suspects
+from faultwise.core.errors import KnowledgeError
+from faultwise.graph.nodes import Check, Investigation, Suspects
 
 
 @dataclass(frozen=True)

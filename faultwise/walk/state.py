@@ -7,14 +7,14 @@ against a changed graph uses the same code. Same graph, same priors and same ans
 the same walk: the only thing that varies is the time stamp of each event.
 
 Phases: ``diagnose`` (checks routed by the graph; suspects ordered by p/c, see
-:mod:`faultwise.rank`) -> ``repair`` (a fault was concluded, or an off-graph finding
+:mod:`faultwise.walk.rank`) -> ``repair`` (a fault was concluded, or an off-graph finding
 recorded) -> ``verify`` (the fault's verify checks, classified, not routed) -> ``closing``
 (the knowledge's closing checks for the family: the leakage check of line-powered sets)
 -> ``done`` (closed with an outcome).
 
 Applicability (DEVELOPERS.md, "Walk"): a node applies to this walk when the set's family is
 in its families, a measurement's expectation name is among the walk's expectations, and
-its ``when`` holds for the profile (:mod:`faultwise.applicability`). Ranking drops the
+its ``when`` holds for the profile (:mod:`faultwise.graph.applicability`). Ranking drops the
 suspects that do not apply and counts only the faults that do. When an outcome (or an
 ``unable`` or ``exhausted`` route) leads into a check that does not apply, the walk follows
 that check's ``unable`` route (default ``cleared``) without recording any event; a route
@@ -33,16 +33,9 @@ from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, field
 from datetime import UTC, datetime
 
-from faultwise.errors import InputError, KnowledgeError, WalkError
-from faultwise.nodes import (
-    CLEARED,
-    MEASURE_OUTCOMES,
-    Caution,
-    Check,
-    Escalate,
-    Fault,
-    Suspects,
-)
+from faultwise.core.errors import InputError, KnowledgeError, WalkError
+from faultwise.graph.nodes import (CLEARED, MEASURE_OUTCOMES, Caution, Check, Escalate, Fault,
+                                   Suspects)
 
 PHASES = ("diagnose", "repair", "verify", "closing", "done")
 OUTCOMES = ("repaired", "returned-unrepaired", "waiting-parts")
@@ -234,11 +227,11 @@ class Walk:
             raise InputError(f"the symptom '{symptom}' does not apply to {self.family} sets",
                              key="symptom", hint="pick a symptom listed for this family")
         if expectations is None:
-            from faultwise.expect import expect
+            from faultwise.expect.expected import expect
 
             expectations = expect(profile)
         self.expectations = dict(expectations)
-        from faultwise.applicability import applies_predicate
+        from faultwise.graph.applicability import applies_predicate
 
         self._applies = applies_predicate(knowledge, profile, self.expectations)
         self.counts = dict(counts if counts is not None
@@ -421,7 +414,7 @@ class Walk:
         check, expected = self._asked_check()
         text = "" if text is None else str(text)
         if check.is_measurement and expected is not None:
-            from faultwise.units import parse_reading
+            from faultwise.core.units import parse_reading
 
             try:
                 value = parse_reading(text, expected.unit)
@@ -814,7 +807,7 @@ class Walk:
 
     def _ranked(self, frame) -> list:
         """The frame's not-cleared investigations, best first (p/c, or the ``order`` hook)."""
-        from faultwise.rank import rank_investigations
+        from faultwise.walk.rank import rank_investigations
 
         ranked = rank_investigations(self.knowledge, frame.suspects, self.symptom, self.family,
                                      frame.cleared, self.counts, applies=self._applies)
@@ -858,7 +851,7 @@ def resolve_choice(text: str, choices: tuple[tuple[str, str], ...], node: str | 
 
 def walk_from_case(knowledge, data: Mapping, **kwargs) -> Walk:
     """Rebuild the walk recorded in a case file's data (profile copied into the case)."""
-    from faultwise.profile import profile_from_dict
+    from faultwise.profile.load import profile_from_dict
 
     s = data.get("set") or {}
     profile = profile_from_dict(s.get("profile") or {}, s.get("source") or str(data.get("id")))
@@ -869,7 +862,7 @@ def walk_from_case(knowledge, data: Mapping, **kwargs) -> Walk:
 def auto_answer(walk: Walk, readings: Mapping | None = None,
                 observations: Mapping | None = None) -> dict:
     """Answer the asked check the way ``walk --answers`` does; returns the event."""
-    from faultwise.units import format_reading, parse_reading
+    from faultwise.core.units import format_reading, parse_reading
 
     readings = readings or {}
     observations = observations or {}
