@@ -246,8 +246,8 @@ def mutated_profile(draw):
 def test_mutated_profile_through_expect(data):
     """Every profile the loader accepts gives finite bands that contain their nominal or
     says why not with a located error; nothing else escapes expect()."""
-    from faultwise.expect.expected import expect
-    from faultwise.profile.load import profile_from_dict
+    from faultwise.expect import expect
+    from faultwise.profile import profile_from_dict
 
     try:
         profile = profile_from_dict(data, source="mutated.yaml")
