@@ -1,4 +1,4 @@
-"""Push-pull output pairs (faultwise.calc.push_pull, faultwise.expect_output_pair).
+"""Push-pull output pairs (faultwise.calc.push_pull, faultwise.expect.output_pair).
 
 Hand-worked examples from the diode law and the Thevenin divider (textbooks), and the rule
 the issue sets: a pair with its bias network opened reads absent or low on idle current and
@@ -58,8 +58,8 @@ def test_complementary_pair_hand_worked():
 
 @pytest.mark.parametrize("stage", ["push-pull-transformer", "complementary"])
 def test_open_bias_reads_absent_healthy_reads_normal(stage):
-    from faultwise.expect_context import Context
-    from faultwise.expect_output_pair import pair_model
+    from faultwise.expect.context import Context
+    from faultwise.expect.output_pair import pair_model
 
     for name in ("demo-ge-pnp-portable.yaml", "demo-si-npn-portable.yaml"):
         p = replace(load_profile(SETS / name), output_stage=stage)

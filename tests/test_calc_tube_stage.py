@@ -1,6 +1,6 @@
 """Tube stage DC (faultwise.calc.tube_stage) against handbook typical operation and hand work.
 
-Each model is anchored on ONE handbook operating point (faultwise.stage_typical); the checks
+Each model is anchored on ONE handbook operating point (faultwise.expect.stage_typical); the checks
 below compare it with a DIFFERENT handbook line of the same type, or with a hand-worked load
 line, so they test the law and the circuit solution, not the anchor.
 """
@@ -12,7 +12,7 @@ import math
 import pytest
 
 from faultwise.calc.tube_stage import TypicalOperation, law_ma, solve_stage
-from faultwise.stage_typical import OPERATION
+from faultwise.expect.stage_typical import OPERATION
 
 AV6 = OPERATION["6AV6"]
 BA6 = OPERATION["6BA6"]

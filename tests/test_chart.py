@@ -1,4 +1,4 @@
-"""The voltage chart (faultwise.chart, faultwise.chart_html, expect --chart) on every demo set."""
+"""The voltage chart (faultwise.expect.chart, faultwise.report.chart_html, expect --chart) on every demo set."""
 
 from __future__ import annotations
 
@@ -9,8 +9,8 @@ from pathlib import Path
 
 import pytest
 
-from faultwise.chart import chart_rows, render_chart
-from faultwise.chart_html import chart_html
+from faultwise.expect.chart import chart_rows, render_chart
+from faultwise.report.chart_html import chart_html
 from faultwise.expect import expect
 from faultwise.profile import load_profile
 

@@ -4,10 +4,10 @@ from __future__ import annotations
 
 import pytest
 
-from faultwise.errors import ProfileError
+from faultwise.core.errors import ProfileError
 from faultwise.expect import expect
 from faultwise.profile import load_profile, profile_from_dict, profile_to_dict
-from faultwise.yamlload import load_yaml_text
+from faultwise.core.yamlload import load_yaml_text
 
 BASE = """\
 label: t

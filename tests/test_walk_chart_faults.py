@@ -16,11 +16,11 @@ from pathlib import Path
 import pytest
 
 from faultwise.expect import expect
-from faultwise.expect_context import Context
-from faultwise.graph import load_knowledge
+from faultwise.expect.context import Context
+from faultwise.graph.knowledge import load_knowledge
 from faultwise.profile import load_profile
 from faultwise.walk import auto_walk
-from faultwise.workspace import bundled_knowledge_dir
+from faultwise.core.workspace import bundled_knowledge_dir
 
 SETS = Path(__file__).resolve().parents[1] / "knowledge" / "sets"
 KNOWLEDGE = load_knowledge(bundled_knowledge_dir())
@@ -31,7 +31,7 @@ def nominal_readings(expectations: dict) -> dict:
 
 
 def test_open_if_screen_resistor_from_the_chart_readings():
-    from faultwise.expect_stages import faulty_stage_readings
+    from faultwise.expect.stages import faulty_stage_readings
 
     profile = load_profile(SETS / "demo-5-tube-table.yaml")
     exp = expect(profile)
@@ -48,7 +48,7 @@ def test_open_if_screen_resistor_from_the_chart_readings():
 
 
 def test_healthy_stage_readings_equal_the_chart_nominals():
-    from faultwise.expect_stages import faulty_stage_readings
+    from faultwise.expect.stages import faulty_stage_readings
 
     profile = load_profile(SETS / "demo-230v-transformer.yaml")
     exp = expect(profile)
@@ -58,7 +58,7 @@ def test_healthy_stage_readings_equal_the_chart_nominals():
 
 
 def test_portable_output_pair_lost_its_bias():
-    from faultwise.expect_output_pair import faulty_pair_readings
+    from faultwise.expect.output_pair import faulty_pair_readings
 
     profile = load_profile(SETS / "demo-ge-pnp-portable.yaml")
     assert profile.output_stage == "push-pull-transformer"

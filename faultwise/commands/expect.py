@@ -13,7 +13,7 @@ LEGEND = (f"{TYPICAL_MARK} rests on a typical value the profile did not give (or
 
 
 def register(subparsers) -> None:
-    from faultwise.cli import add_workspace_options
+    from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser("expect", help="expected readings for a set profile",
                               description="Compute what each test point of the set should read, "
@@ -29,23 +29,24 @@ def register(subparsers) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from faultwise.expect import expect
-    from faultwise.profile import load_profile, profile_to_dict
+    from faultwise.expect.expected import expect
+    from faultwise.profile.load import load_profile
+    from faultwise.profile.model import profile_to_dict
 
     knowledge = None
     if getattr(args, "knowledge", None):
-        from faultwise.workspace import resolve_workspace
+        from faultwise.core.workspace import resolve_workspace
 
         knowledge = resolve_workspace(args.knowledge).knowledge_dir
     profile = load_profile(args.profile, knowledge_dir=knowledge)
     table = None
     if knowledge is not None:
-        from faultwise.tubes import load_tube_table
+        from faultwise.profile.tubes import load_tube_table
 
         table = load_tube_table(knowledge)
     expectations = expect(profile, tube_table=table)
     if args.html and not args.chart:
-        from faultwise.errors import InputError
+        from faultwise.core.errors import InputError
 
         raise InputError("--html goes with --chart", key="--html",
                          hint="write: faultwise expect PROFILE --chart --html FILE")
@@ -63,12 +64,12 @@ def run(args: argparse.Namespace) -> int:
 def _chart(args, profile, expectations, table) -> int:
     from pathlib import Path
 
-    from faultwise.chart import chart_rows, render_chart
+    from faultwise.expect.chart import chart_rows, render_chart
 
     rows = chart_rows(profile, expectations, table)
     if args.html:
-        from faultwise.chart_html import chart_html
-        from faultwise.errors import FaultwiseError
+        from faultwise.report.chart_html import chart_html
+        from faultwise.core.errors import FaultwiseError
 
         try:
             Path(args.html).write_text(chart_html(profile, rows, table), encoding="utf-8")
@@ -93,8 +94,8 @@ def render_table(profile, expectations: dict, width: int | None = None) -> list[
     import shutil
     import textwrap
 
-    from faultwise.expect import STAGES
-    from faultwise.expect_context import basis_num as _num
+    from faultwise.expect.expected import STAGES
+    from faultwise.expect.context import basis_num as _num
 
     width = width or max(60, min(shutil.get_terminal_size((100, 24)).columns, 120))
     rows = list(expectations.values())

@@ -12,9 +12,9 @@ from __future__ import annotations
 
 import pytest
 
-from faultwise.errors import KnowledgeError
-from faultwise.tubes import BASE_PINS, load_tube_table, missing_electrodes, parse_tube_table
-from faultwise.yamlload import load_yaml_text
+from faultwise.core.errors import KnowledgeError
+from faultwise.profile.tubes import BASE_PINS, load_tube_table, missing_electrodes, parse_tube_table
+from faultwise.core.yamlload import load_yaml_text
 
 TABLE = load_tube_table()
 
