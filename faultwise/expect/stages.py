@@ -187,11 +187,11 @@ def _add_stage(ctx: Context, tube, op, op_typical: bool, nodes: dict, sim) -> No
              + f", cathode {_n(circuit.cathode_ohm)} ohm")
     law = (f"Ik = {_n(op.cathode_ma)} mA x (Vscreen/{_n(op.screen_v)} V)^1.5 (self-biased "
            "converter, all voltages scale)" if op.gm_ma_v is None else
-           f"Ik from the 3/2-power law through {op.source.split(' (')[-1].rstrip(')')}: "
+           f"Ik from the 3/2-power law through the typical operation "
            f"{_n(op.plate_v)} V plate" + ("" if op.is_triode else f", {_n(op.screen_v)} V screen")
            + f", {_n(op.grid_v)} V grid, {_n(op.cathode_ma)} mA, gm {_n(op.gm_ma_v)} mA/V, "
            f"mu {_n(op.mu)}")
-    head = (f"{tube.type} {kind}: {parts}; {law} ({op.source.split(' (')[0]}); solved with the "
+    head = (f"{tube.type} {kind}: {parts}; {law} (source: {op.source}); solved with the "
             f"cathode and screen drops: Ik = {_n(nom.cathode_ma)} mA")
     band = ("band: worst case over " + ", ".join(s.rule for s in sp.values() if s.rule)
             + (f"; used typical {', '.join(used)} (family circuit)" if used else ""))
