@@ -60,11 +60,22 @@ def meter_hint(app, prompt) -> str:
 
     try:
         quantity = quantity_for(prompt.expected)
-    except MeterError:
-        return "Meter: this reading is typed (the meter cannot take it)."
+    except MeterError as exc:
+        return f"Meter: type this reading ({exc.message})."
     hold = " until stable (three agreeing samples)" if state.hold else ""
     return (f"Meter {state.meter.spec}: F10 reads {quantity.title}{hold}; ctrl+t: hold "
             f"{'off' if state.hold else 'on'}.")
+
+
+def _meter_can_take(expected) -> bool:
+    from faultwise.meter.base import MeterError
+    from faultwise.meter.fit import quantity_for
+
+    try:
+        quantity_for(expected)
+    except MeterError:
+        return False
+    return True
 
 
 class MeterKeys:
@@ -81,7 +92,8 @@ class MeterKeys:
         if action in ("meter_read", "meter_hold"):
             prompt = self.walk.prompt()
             return (meter_state(self.bench) is not None and prompt is not None
-                    and prompt.kind == "check" and prompt.is_measurement)
+                    and prompt.kind == "check" and prompt.is_measurement
+                    and _meter_can_take(prompt.expected))
         return super().check_action(action, parameters)
 
     # ------------------------------------------------------------------ actions

@@ -68,7 +68,7 @@ class CheckPanel(Vertical):
     CheckPanel #answer { margin-top: 1; background: $panel-lighten-1; }
     CheckPanel #answer-error { color: $error; height: auto; }
     CheckPanel #check-warning { color: $warning; height: auto; }
-    CheckPanel #meter-line { color: $text-muted; height: auto; }
+    CheckPanel #meter-line { color: $text-muted; height: auto; display: none; }
     """
 
     class Answered(Message):
