@@ -33,6 +33,7 @@ class MeterState:
     meter: Any
     hold: bool = False
     busy: bool = False
+    identity: str | None = None       # the meter's own name, once it has answered
 
 
 def meter_state(bench) -> MeterState | None:
@@ -62,9 +63,11 @@ def meter_hint(app, prompt) -> str:
         quantity = quantity_for(prompt.expected)
     except MeterError as exc:
         return f"Meter: type this reading ({exc.message})."
-    hold = " until stable (three agreeing samples)" if state.hold else ""
-    return (f"Meter {state.meter.spec}: F10 reads {quantity.title}{hold}; ctrl+t: hold "
-            f"{'off' if state.hold else 'on'}.")
+    name = state.identity or state.meter.spec
+    if state.hold:
+        return (f"Meter {name}: F10 reads {quantity.title} until three samples agree; "
+                "ctrl+t: one sample.")
+    return f"Meter {name}: F10 reads {quantity.title}; ctrl+t: hold until stable."
 
 
 def _meter_can_take(expected) -> bool:
@@ -150,8 +153,8 @@ class MeterKeys:
         from faultwise.tui.screens.caution import CautionScreen
 
         def done(ok: bool | None) -> None:
-            if not ok:
-                self.notify("The meter was not read; type the reading.", timeout=4)
+            if not ok:                  # "Leave the case", as for any other caution
+                self.leave_case(saved=True)
                 return
             state = meter_state(self.bench)
 
@@ -222,5 +225,7 @@ class MeterKeys:
         except Exception as exc:
             panel.show_error(internal_error(exc))
             return
+        if state is not None:
+            state.identity = sample.meter
         self.notify(f"From the meter: {sample.shown()}", timeout=3, markup=False)
         self.commit(self.show_prompt)

@@ -126,7 +126,9 @@ async def test_meter_reading_recorded_with_value_unit_meter_and_time(meter_app, 
         assert "Meter" in footer_keys(app)
         await meter_key(pilot, "ctrl+t")
         assert app.bench.meter.hold
-        assert "until stable" in str(app.screen.query_one("#meter-line").render())
+        line = str(app.screen.query_one("#meter-line").render())
+        assert "until three samples agree" in line
+        assert IDN in line                       # the meter's own name once it answered
         await meter_key(pilot)
         event = last_answer(cases_dir)
         assert (event["phase"], event["node"]) == ("verify", "supply.rectifier-out")
@@ -211,3 +213,25 @@ async def test_a_unit_that_does_not_fit_is_refused(meter_app, cases_dir):
         assert "reads ohms" in error and "DC volts" in error and "Not recorded" in error
         assert app.screen.query_one("#check-title") is not None
         assert "first filter" in str(app.screen.query_one("#check-title").render())
+
+
+async def test_declining_the_meter_caution_leaves_the_case(meter_app, cases_dir):
+    """As with every caution: 'Leave the case' leaves it, and nothing is read or recorded."""
+    app = meter_app
+    async with app.run_test(size=(100, 32)) as pilot:
+        await new_case(pilot)
+        await acknowledge_cautions(pilot)
+        await pilot.press("1")
+        await pilot.pause()
+        await acknowledge_cautions(pilot)
+        before = read_case(cases_dir)
+        await pilot.press("f10")
+        await pilot.pause()
+        assert app.screen.id == "caution"
+        await pilot.press("ctrl+l")
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+        assert app.screen.id == "start"
+        after = read_case(cases_dir)
+        assert after["events"] == before["events"]
+        assert "meter-link" not in after["acknowledged"]
