@@ -218,3 +218,33 @@ def test_samples_json_shape():
     assert sample(1.5, "V", "DC").to_json() == {"value": 1.5, "unit": "V", "mode": "DC",
                                                 "meter": "m", "at": AT}
     assert set(QUANTITIES) == {"dc-v", "ac-v", "ohm", "dc-a", "ac-a", "freq"}
+
+
+# ----------------------------------------------------------------------------- properties
+
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.floats(min_value=-999.0, max_value=999.0, allow_nan=False),
+       st.sampled_from([("", 1.0), ("m", 1e-3), ("k", 1e3), ("M", 1e6)]),
+       st.sampled_from(["V", "A", "Ω", "Hz"]), st.integers(min_value=0, max_value=5),
+       st.sampled_from(["", " DC", " AC RMS", " AUTO", " DC HOLD"]))
+def test_sigrok_line_round_trip(mantissa, prefix, unit, decimals, flags):
+    """A line written as libsigrok writes it (value to N decimals, prefix, unit, flags)
+    reads back to the value printed, in base units, with one count of resolution."""
+    number = f"{mantissa:.{decimals}f}"
+    s = parse_analog_line(f"P1: {number} {prefix[0]}{unit}{flags}", "m", AT)
+    assert s.value == pytest.approx(float(number) * prefix[1], rel=1e-9, abs=1e-12)
+    assert s.resolution == pytest.approx(10.0 ** -decimals * prefix[1])
+    assert s.mode == ("AC" if "AC" in flags else "DC" if "DC" in flags else "")
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.text(max_size=60))
+def test_sigrok_parser_never_fails_but_with_a_meter_error(text):
+    try:
+        parse_analog_line(text, "m", AT)
+    except MeterError:
+        pass
