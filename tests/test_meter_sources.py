@@ -236,3 +236,14 @@ def test_meter_command_stops_cleanly_on_ctrl_c(tmp_path, lan_meter):
     out, err = proc.communicate(timeout=30)
     assert proc.returncode == 0
     assert "stopped after" in err and "Traceback" not in err
+
+
+@pytest.mark.skipif(shutil.which("sigrok-cli") is None, reason="sigrok-cli is not installed")
+def test_meter_command_with_the_sigrok_demo_driver(tmp_path):
+    done = run_meter(["--meter", "sigrok:demo", "--count", "1"], tmp_path)
+    assert done.returncode == 0, done.stderr
+    assert "V DC" in done.stdout and "demo: " in done.stdout
+    # the demo driver's channels read volts: asking for ohms is the dial's mistake
+    done = run_meter(["--meter", "sigrok:demo", "--quantity", "ohm"], tmp_path)
+    assert done.returncode == 1 and "not resistance" in done.stderr
+    assert "Traceback" not in done.stderr

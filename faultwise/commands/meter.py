@@ -65,6 +65,8 @@ def run(args: argparse.Namespace) -> int:
             if samples and args.interval:
                 time.sleep(args.interval)
             sample = meter.read(quantity)
+            if quantity is not None and not meter.can_select:
+                _check_dial(sample, quantity)
             samples.append(sample)
             if not args.json:
                 print(sample_line(len(samples), sample), flush=True)
@@ -77,3 +79,14 @@ def run(args: argparse.Namespace) -> int:
     if args.json:
         print(json.dumps([s.to_json() for s in samples], indent=2, ensure_ascii=False))
     return 0
+
+
+def _check_dial(sample, quantity) -> None:
+    """A meter whose function is set on its dial (sigrok) must read what --quantity asks."""
+    from faultwise.meter import MeterRefused
+
+    if sample.unit != quantity.unit or (sample.mode and quantity.mode
+                                        and sample.mode != quantity.mode):
+        raise MeterRefused(f"the meter reads {sample.mode} {sample.unit}".replace("  ", " ")
+                           + f", not {quantity.title}",
+                           hint=f"turn its dial to {quantity.title}")
