@@ -8,6 +8,16 @@ bundled knowledge, ``./cases`` and bench ``B1``.
 The bench meter (key ``meter``, option ``--meter``, ``FAULTWISE_METER``; default ``manual``)
 resolves the same way; its format is in :mod:`faultwise.meter.config`. ``--meter`` and the
 environment replace the source and keep the options (time-out, backend) of the file.
+
+The shop that prints the reports comes only from ``faultwise.yaml`` (no default: a report
+shows no shop name when it is unset)::
+
+    shop:
+      name: Larkspur Lane Radio Works           # one line
+      contact: 14 Larkspur Lane, tel. 0100 555 0199   # may span lines
+      terms: Parts and labour are guaranteed for 90 days.   # printed on the customer copy
+
+Every key is optional. A wrong key or value is a located error (file, line, key).
 """
 
 from __future__ import annotations
@@ -20,6 +30,9 @@ from faultwise.errors import FaultwiseError
 from faultwise.meter.config import MeterConfig
 
 CONFIG_NAME = "faultwise.yaml"
+CONFIG_KEYS = ("knowledge", "cases", "bench", "shop", "meter")
+SHOP_KEYS = ("name", "contact", "terms")
+SHOP_LIMITS = {"name": 80, "contact": 300, "terms": 1200}   # characters; the page must hold them
 
 
 def bundled_knowledge_dir() -> Path:
@@ -30,11 +43,21 @@ def bundled_knowledge_dir() -> Path:
 
 
 @dataclass(frozen=True)
+class Shop:
+    """The shop named on the reports (``faultwise.yaml``, key ``shop``); empty when unset."""
+
+    name: str = ""
+    contact: str = ""
+    terms: str = ""
+
+
+@dataclass(frozen=True)
 class Workspace:
     knowledge_dir: Path
     cases_dir: Path
     bench: str
     meter: MeterConfig = MeterConfig()
+    shop: Shop = Shop()
 
     @property
     def sets_dir(self) -> Path:
@@ -46,23 +69,28 @@ def _config(cwd: Path) -> dict:
     path = cwd / CONFIG_NAME
     if not path.is_file():
         return {}
-    from faultwise.yamlload import load_yaml_file
+    from faultwise.yamlload import line_of, load_yaml_file
 
     data = load_yaml_file(path)
+    if data is None:
+        return {}
     if not isinstance(data, dict):
         raise FaultwiseError("the config file must be a mapping", file=str(path),
-                             hint="write keys knowledge, cases, bench and meter")
-    unknown = set(data) - {"knowledge", "cases", "bench", "meter"}
+                             hint="write keys " + ", ".join(CONFIG_KEYS))
+    unknown = sorted(str(k) for k in set(data) - set(CONFIG_KEYS))
     if unknown:
-        key = sorted(unknown)[0]
-        from faultwise.yamlload import line_of
-
-        raise FaultwiseError("unknown key in the config file", file=str(path), key=key,
-                             line=line_of(data, key),
-                             hint="use only knowledge, cases, bench and meter")
+        key = unknown[0]
+        raise FaultwiseError("unknown key in the config file", file=str(path),
+                             line=line_of(data, key), key=key,
+                             hint="use only " + ", ".join(CONFIG_KEYS))
+    for key in ("knowledge", "cases", "bench"):
+        value = data.get(key)
+        if value is not None and not isinstance(value, str):
+            raise FaultwiseError(f"'{key}' must be a text", file=str(path),
+                                 line=line_of(data, key), key=key,
+                                 hint="write a folder path or a bench name")
     if "meter" in data:
         from faultwise.meter.config import parse_meter_setting
-        from faultwise.yamlload import line_of
 
         try:
             data["meter"] = parse_meter_setting(data["meter"], file=str(path), line_of=line_of)
@@ -73,6 +101,45 @@ def _config(cwd: Path) -> dict:
     return data
 
 
+def _text(value, key: str, path: Path, line: int | None) -> str:
+    """A shop field as text: strings and plain numbers (a phone number) are accepted."""
+    if isinstance(value, bool) or not isinstance(value, (str, int, float)):
+        raise FaultwiseError(f"'shop.{key}' must be a text", file=str(path), line=line,
+                             key=f"shop.{key}", hint="write it as one line of text, quoted "
+                             "if it holds a colon")
+    text = str(value).strip()
+    if key == "name" and "\n" in text:
+        raise FaultwiseError("the shop name must be one line", file=str(path), line=line,
+                             key="shop.name", hint="put the address under 'contact'")
+    if len(text) > SHOP_LIMITS[key]:
+        raise FaultwiseError(f"'shop.{key}' is too long ({len(text)} characters, at most "
+                             f"{SHOP_LIMITS[key]})", file=str(path), line=line,
+                             key=f"shop.{key}", hint="shorten it so the report fits its page")
+    return text
+
+
+def shop_from_config(conf: dict, cwd: Path) -> Shop:
+    """The ``shop`` mapping of the config file; FaultwiseError (file, line, key) when wrong."""
+    raw = conf.get("shop")
+    if raw is None:
+        return Shop()
+    from faultwise.yamlload import line_of
+
+    path = cwd / CONFIG_NAME
+    if not isinstance(raw, dict):
+        raise FaultwiseError("'shop' must be a mapping", file=str(path),
+                             line=line_of(conf, "shop"), key="shop",
+                             hint="write name, contact and terms under it")
+    unknown = sorted(str(k) for k in set(raw) - set(SHOP_KEYS))
+    if unknown:
+        raise FaultwiseError("unknown key under 'shop'", file=str(path),
+                             line=line_of(raw, unknown[0]), key=f"shop.{unknown[0]}",
+                             hint="use only " + ", ".join(SHOP_KEYS))
+    fields = {key: _text(raw[key], key, path, line_of(raw, key))
+              for key in SHOP_KEYS if raw.get(key) is not None}
+    return Shop(**fields)
+
+
 def resolve_workspace(knowledge: str | os.PathLike | None = None,
                       cases: str | os.PathLike | None = None,
                       bench: str | None = None,
@@ -80,7 +147,7 @@ def resolve_workspace(knowledge: str | os.PathLike | None = None,
     """Pick the knowledge folder, cases folder, bench name and meter for this run."""
     cwd = Path.cwd() if cwd is None else cwd
     env = os.environ
-    conf = _config(cwd)      # read even with every folder given: the meter's options
+    conf = _config(cwd)          # always read: the shop and the meter's options
     k = knowledge or env.get("FAULTWISE_KNOWLEDGE") or conf.get("knowledge")
     c = cases or env.get("FAULTWISE_CASES") or conf.get("cases") or "cases"
     b = bench or env.get("FAULTWISE_BENCH") or conf.get("bench") or "B1"
@@ -101,7 +168,8 @@ def resolve_workspace(knowledge: str | os.PathLike | None = None,
     meter_config = with_spec(conf.get("meter") or MeterConfig(), env.get("FAULTWISE_METER"),
                              key="FAULTWISE_METER")
     meter_config = with_spec(meter_config, meter)
-    return Workspace(knowledge_dir=kdir, cases_dir=cdir, bench=str(b), meter=meter_config)
+    return Workspace(knowledge_dir=kdir, cases_dir=cdir, bench=str(b),
+                     shop=shop_from_config(conf, cwd), meter=meter_config)
 
 
 def workspace_from_args(args) -> Workspace:
