@@ -358,6 +358,7 @@ class _Lint:
                         "list the parts, or write 'parts: []' when none are needed")
             self._verify(node)
             self._signature(node)
+            self._model(node)
             for sid in node.priors:
                 if sid not in k.symptoms:
                     self.at(node, f"'priors' names the unknown symptom '{sid}'",
@@ -387,6 +388,13 @@ class _Lint:
             if covered and family not in covered:
                 self.at(node, f"no verify check applies to {family} sets",
                         "add one, or narrow the fault's 'families'")
+
+    def _model(self, node: Fault) -> None:
+        """Every model entry names a target of the vocabulary with a change it takes."""
+        from faultwise.fault_models import model_problems
+
+        for target, message, hint in model_problems(node.model, node.families):
+            self.at(node, f"model '{target}': {message}", hint)
 
     def _signature(self, node: Fault) -> None:
         k = self.k

@@ -112,6 +112,8 @@ class Fault:
     """A conclusion: what is wrong, how to repair it, and how to prove the repair.
 
     ``when``: conditions on the set for the fault to apply, as on :class:`Check`.
+    ``model``: the change the fault makes to the set's profile or calc model, target ->
+    change (:mod:`faultwise.fault_models`); empty when the calc engine cannot compute it.
     """
 
     id: str
@@ -128,6 +130,7 @@ class Fault:
     when: Mapping[str, tuple[str, ...]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "fault"
+    model: Mapping[str, str] = field(default_factory=lambda: _frozen({}))   # fault_models
 
 
 @dataclass(frozen=True)
