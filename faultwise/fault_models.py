@@ -36,6 +36,7 @@ heaters.dropper                 open                series-string dropping resis
 heaters.winding                 open                heater winding of a transformer set
 heater.<role>                   open                one tube's heater
 tube.<role>.emission            xK open             a tube's emission (open: a dead tube)
+tube.<role>.screen              open                a pentode's screen feed (resistor) open
 tube.output.cathode_ohm         xK open short       output tube cathode resistor
 output.primary                  open short          output transformer primary
 speaker.voice_coil              open                voice coil
@@ -95,6 +96,7 @@ TARGETS: dict[str, tuple[str, ...]] = {
     "heaters.winding": ("open",),
     "heater.<tube>": ("open",),
     "tube.<tube>.emission": ("scale", "open"),
+    "tube.<tube>.screen": ("open",),
     "tube.output.cathode_ohm": ("scale", "open", "short"),
     "output.primary": ("open", "short"),
     "speaker.voice_coil": ("open",),

@@ -44,6 +44,9 @@ from faultwise.fault_models import LEAKY_ICBO_MA, OPEN_OHM, SHORT_OHM, Change, p
 
 VCE_SAT_V = 0.2
 """Collector-emitter voltage of a saturated small-signal transistor (as calc.bias)."""
+SCREEN_OPEN_CURRENT = 0.05
+"""A pentode with no screen voltage passes a few per cent of its plate current (tube curves,
+from memory)."""
 OPEN_READ = 1e9
 """What a power-off resistance reading of an open winding or heater is taken to be: infinite."""
 
@@ -96,6 +99,8 @@ def fold(changes: tuple[Change, ...]) -> State:
             st.rect_drop *= k
         elif c.target == "tube.output.cathode_ohm":
             st.cathode, st.cathode_scale = ("" if kind == "scale" else kind), k
+        elif head == "tube" and p[2] == "screen":
+            st.emission[p[1]] = st.emission.get(p[1], 1.0) * SCREEN_OPEN_CURRENT
         elif head == "tube":
             st.emission[p[1]] = st.emission.get(p[1], 1.0) * (0.0 if kind == "open" else k)
         elif c.target == "output.primary":
