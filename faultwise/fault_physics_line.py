@@ -190,9 +190,6 @@ def line_readings(profile, st, healthy, table) -> dict[str, float]:
 
 
 def _output_stage(profile, st, healthy, out, k_current: float, screen_v) -> None:
-    from faultwise.calc.audio import primary_drop_v
-    from faultwise.expect_audio import PLATE_FRACTION
-
     t = profile.tube("output")
     if t is None:
         return
@@ -220,9 +217,8 @@ def _output_stage(profile, st, healthy, out, k_current: float, screen_v) -> None
         if st.primary == "open":
             out["output.plate_v"] = 0.0
             return
-        prim = healthy["output.primary_ohm"].nominal if "output.primary_ohm" in healthy else 0.0
+        # the healthy drop across the primary (the engine's own), scaled by the plate current
+        drop = healthy["supply.rectifier_out_v"].nominal - healthy["output.plate_v"].nominal
         if st.primary == "short":
-            prim *= 0.05
-        ma = (t.cathode_ma or 0.0) * PLATE_FRACTION * k_current
-        out["output.plate_v"] = max(bplus - primary_drop_v(ma, prim), 0.0)
-
+            drop *= 0.05
+        out["output.plate_v"] = max(bplus - drop * k_current, 0.0)
