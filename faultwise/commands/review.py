@@ -116,7 +116,7 @@ def run(args: argparse.Namespace) -> int:
     if args.html:
         from faultwise.report_html import review_html
 
-        page = review_html(review)
+        page = review_html(review, ws.shop.name)
         if args.inject:
             page = _with_inject(page, ws, knowledge)
         try:
