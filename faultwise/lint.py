@@ -475,6 +475,17 @@ def _summary(k: Knowledge | None, result: LoadResult) -> dict:
             "files": sum(len(v) for v in result.stage_files.values())}
 
 
+def _inject_known(k: Knowledge, path: Path, run) -> None:
+    """inject_known.yaml (faults readings cannot find): every entry must check out."""
+    from faultwise.errors import FaultwiseError
+    from faultwise.inject_known import load_known
+
+    try:
+        load_known(k, path)
+    except FaultwiseError as e:
+        run.errors.append(Finding(e.file or str(path), e.line, e.node, e.message, e.hint or ""))
+
+
 def lint(path: str | Path, expectation_names: NamesFn | None = None) -> LintReport:
     """Check a knowledge folder; ``expectation_names`` defaults to faultwise.expect's."""
     path = Path(path)
@@ -512,6 +523,7 @@ def lint(path: str | Path, expectation_names: NamesFn | None = None) -> LintRepo
         run.priors()
     run.phrasings()
     run.learned()
+    _inject_known(k, path, run)
     summary = _summary(k, result)
     summary.update(errors=len(run.errors), warnings=len(run.warnings))
     return LintReport(run.errors, run.warnings, summary)

@@ -8,7 +8,9 @@ fault's priors whose walk for the family can reach the fault is walked: reading 
 answered with the faulty nominal value, observation checks from the fault's signature
 (missing: the normal choice), exactly as the sweep's walk does (``walk.auto_walk``). The
 walk is then *found* (concluded this fault), *wrong* (concluded another) or *missed* (ran
-out: escalated or every suspect cleared).
+out: escalated or every suspect cleared). A miss listed in ``inject_known.yaml``
+(:mod:`faultwise.inject_known`: the physical reason and the check that finds the fault) is
+*explained*, reported but not a failure.
 
 A second pass answers every reading with a value drawn uniformly within the faulty band
 (``random.Random(f"{seed}:{set}:{fault}")``): it shows which faults a real part's spread
@@ -98,7 +100,10 @@ class InjectReport:
     skipped: tuple[tuple[str, str, str], ...]     # (set, fault, reason)
     optimal: tuple[OptimalRow, ...]
     seed: int = SEED
-    per_set: Mapping = field(default_factory=dict)
+    known: Mapping = field(default_factory=dict)   # (set, fault) -> inject_known.Known
+
+    def is_known(self, w: InjectWalk) -> bool:
+        return (w.set_name, w.fault) in self.known and w.concluded is None and not w.error
 
     @property
     def found(self) -> int:
@@ -110,7 +115,13 @@ class InjectReport:
 
     @property
     def missed(self) -> tuple[InjectWalk, ...]:
-        return tuple(w for w in self.walks if w.concluded is None and not w.error)
+        return tuple(w for w in self.walks if w.concluded is None and not w.error
+                     and not self.is_known(w))
+
+    @property
+    def explained(self) -> tuple[InjectWalk, ...]:
+        """Misses listed in inject_known.yaml (physical reason, the check that finds them)."""
+        return tuple(w for w in self.walks if self.is_known(w))
 
     @property
     def healthy_blamed(self) -> tuple[HealthyWalk, ...]:
@@ -163,7 +174,8 @@ def modelled_faults(knowledge) -> list[Fault]:
 # ------------------------------------------------------------------------------ sweeping
 
 def run_inject(knowledge, sets: Mapping[str, Sequence], *, seed: int = SEED, tube_table=None,
-               band_pass: bool = True, optimal: bool = True) -> InjectReport:
+               band_pass: bool = True, optimal: bool = True,
+               known: Mapping | None = None) -> InjectReport:
     """Inject, walk and bound (see the module doc)."""
     from faultwise.applicability import node_applies
     from faultwise.fault_models import applies_to, parse_model
@@ -213,7 +225,8 @@ def run_inject(knowledge, sets: Mapping[str, Sequence], *, seed: int = SEED, tub
     rows = optimal_rows(knowledge, demos, walks, outcomes_by) if optimal else ()
     faults_walked = len({w.fault for w in walks})
     return InjectReport(tuple(d.name for d in demos), len(faults), faults_walked, tuple(walks),
-                        tuple(band_walks), tuple(healthy), tuple(skipped), tuple(rows), seed)
+                        tuple(band_walks), tuple(healthy), tuple(skipped), tuple(rows), seed,
+                        dict(known or {}))
 
 
 def _healthy_walk(knowledge, demo, sym: str) -> HealthyWalk:

@@ -25,6 +25,11 @@ def inject_to_dict(rep) -> dict:
                       for w in rep.wrong],
             "missed": [{"set": w.set_name, "fault": w.fault, "symptom": w.symptom,
                         "escalate": w.escalate} for w in rep.missed],
+            "explained": [{"set": w.set_name, "fault": w.fault, "symptom": w.symptom,
+                           "escalate": w.escalate,
+                           "found_by": rep.known[(w.set_name, w.fault)].found_by,
+                           "reason": rep.known[(w.set_name, w.fault)].reason}
+                          for w in rep.explained],
             "healthy_walks": len(rep.healthy),
             "healthy_blamed": [{"set": h.set_name, "symptom": h.symptom,
                                 "concluded": h.concluded} for h in rep.healthy_blamed],
@@ -63,13 +68,17 @@ def _result(w) -> str:
 def inject_text(rep) -> str:
     lines = [f"Injected sweep: {rep.faults} of {rep.modelled_faults} modelled faults walked on "
              f"{len(rep.sets)} sets; {len(rep.walks)} walks, {rep.found} found, "
-             f"{len(rep.wrong)} wrong, {len(rep.missed)} missed."]
+             f"{len(rep.wrong)} wrong, {len(rep.missed)} missed, {len(rep.explained)} explained "
+             "(readings alone cannot find them: inject_known.yaml)."]
     for w in rep.wrong:
         lines.append(f"  WRONG  {w.set_name}  {w.fault} ({w.symptom}): concluded "
                      f"{w.concluded or w.error}")
     for w in rep.missed:
         lines.append(f"  MISSED {w.set_name}  {w.fault} ({w.symptom}): ran out at "
                      f"{w.escalate or 'cleared'}")
+    for (set_name, fault), k in sorted(rep.known.items()):
+        if any(w.set_name == set_name and w.fault == fault for w in rep.explained):
+            lines.append(f"  known  {set_name}  {fault}: found by {k.found_by}")
     lines.append(f"Healthy sets: {len(rep.healthy)} complaint walks, "
                  f"{len(rep.healthy_blamed)} blamed a part.")
     for h in rep.healthy_blamed:
@@ -101,6 +110,7 @@ def inject_text(rep) -> str:
                      f"the optimum; worst: {worst.symptom} ({worst.family}), ratio "
                      f"{worst.ratio or 0:.3f}")
     return "\n".join(plain(x) for x in lines) + "\n"
+
 
 
 def failure_sentence(rep) -> str:

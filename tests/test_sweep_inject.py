@@ -32,7 +32,8 @@ def test_json_contract_on_the_transistor_sets():
                 "healthy_blamed"):
         assert key in inj
     assert inj["sets"] == 2 and inj["walks"] > 0
-    assert inj["found"] + len(inj["wrong"]) + len(inj["missed"]) == inj["walks"]
+    assert inj["found"] + len(inj["wrong"]) + len(inj["missed"]) + len(inj["explained"]) \
+        == inj["walks"]
     assert inj["healthy_blamed"] == []
     for row in doc["optimal"]:
         assert set(row) >= {"symptom", "family", "minutes", "optimal_minutes", "ratio"}
@@ -94,3 +95,25 @@ def test_html_table_per_complaint():
         assert f"<h3>{sym}</h3>" in html
     assert html.count("<table>") == len({r.symptom for r in rep.optimal})
     assert "worst:" in inject_text(rep)
+
+
+def test_known_misses_are_explained_and_checked(tmp_path):
+    from faultwise.errors import FaultwiseError
+    from faultwise.inject_known import load_known
+    from faultwise.lint import lint
+
+    k = load_knowledge(KNOWLEDGE)
+    known = load_known(k, KNOWLEDGE)
+    sets = load_demo_sets(KNOWLEDGE / "sets", KNOWLEDGE)
+    one = {"transistor": [d for d in sets["transistor"] if d.name == "demo-si-npn-portable.yaml"]}
+    plain = run_inject(k, one, band_pass=False, optimal=False)
+    explained = run_inject(k, one, band_pass=False, optimal=False, known=known)
+    assert explained.explained and len(plain.missed) == len(explained.missed) + len(explained.explained)
+    for w in explained.explained:
+        assert (w.set_name, w.fault) in known
+    kb = _copy(tmp_path)
+    path = kb / "inject_known.yaml"
+    path.write_text(path.read_text().replace("found_by: if.tr-gain-test", "found_by: if.tr-if-peak"))
+    with pytest.raises(FaultwiseError, match="cannot reach"):
+        load_known(load_knowledge(kb), kb)
+    assert any("cannot reach" in e.message for e in lint(kb).errors)

@@ -76,7 +76,10 @@ def _with_inject(page: str, ws, knowledge) -> str:
     from faultwise.sweep_inject_report import inject_html
 
     sets = load_demo_sets(_sets_dir(ws, None), ws.knowledge_dir)
-    section = inject_html(run_inject(knowledge, sets, band_pass=False, tube_table=_tube_table(ws)))
+    from faultwise.inject_known import load_known
+
+    section = inject_html(run_inject(knowledge, sets, band_pass=False, tube_table=_tube_table(ws),
+                                     known=load_known(knowledge, ws.knowledge_dir)))
     mark = "<h2>Safety</h2>"
     return page.replace(mark, section + mark, 1) if mark in page else page + section
 

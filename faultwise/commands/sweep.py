@@ -99,7 +99,10 @@ def run_inject_command(args, ws, knowledge, sets) -> int:
     if args.family:
         sets = {f: v for f, v in sets.items() if f == args.family}
     seed = SEED if args.seed is None else args.seed
-    report = run_inject(knowledge, sets, seed=seed, tube_table=_tube_table(ws))
+    from faultwise.inject_known import load_known
+
+    report = run_inject(knowledge, sets, seed=seed, tube_table=_tube_table(ws),
+                        known=load_known(knowledge, ws.knowledge_dir))
     if not report.walks:
         raise FaultwiseError("no modelled fault could be injected", file=str(ws.knowledge_dir),
                              hint="give faults a 'model:' and put set profiles in the sets folder")
