@@ -235,9 +235,6 @@ def applies_to(changes, profile) -> str:
         have = profile.tube(role) if kind == "tube" else profile.transistor(role)
         if have is None:
             return f"the set has no {role} {kind}"
-    for c in changes:
-        if c.target == "heaters.dropper" and profile.family == "series-string":
-            continue
-        if c.target in ("heaters.dropper",):
-            return "only a series-string set has a dropping resistor"
+    if any(c.target == "heaters.dropper" for c in changes) and profile.family != "series-string":
+        return "only a series-string set has a dropping resistor"
     return ""

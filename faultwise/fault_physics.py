@@ -37,7 +37,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Mapping
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 
 from faultwise.expect import Expected
 from faultwise.fault_models import LEAKY_ICBO_MA, OPEN_OHM, SHORT_OHM, Change, parse_model
@@ -66,7 +66,7 @@ class State:
     second_short: bool = False
     filter_open: bool = False
     surge_open: bool = False
-    emission: dict = None
+    emission: dict = field(default_factory=dict)       # tube role -> emission factor
     cathode: str = ""                  # '', open, short
     cathode_scale: float = 1.0
     primary: str = ""
@@ -76,12 +76,13 @@ class State:
     signal: float = 1.0
     avc: float = 1.0
     if_peak: float = 1.0
-    transistors: dict = None           # role -> {field: change}
-    profile_scale: dict = None         # profile path -> factor
+    transistors: dict = field(default_factory=dict)    # role -> {field: Change}
+    profile_scale: dict = field(default_factory=dict)  # profile field -> factor
 
 
 def fold(changes: tuple[Change, ...]) -> State:
-    st = State(emission={}, transistors={}, profile_scale={})
+    """The model's changes as one :class:`State` (an open capacitor keeps 1 % of its value)."""
+    st = State()
     for c in changes:
         p, kind, k = c.parts, c.kind, c.factor
         head = p[0]
@@ -253,11 +254,7 @@ def inject(profile, model: Mapping, healthy: Mapping[str, Expected], *,
     else:
         values.update(_battery_readings(profile, st, healthy))
     # signal readings (both families)
-    sig = st.signal * (1.0 if st.osc > 0 else 0.0) * st.avc
-    if profile.line_powered:
-        sig *= values.pop("_gain", 1.0)
-    else:
-        sig *= values.pop("_gain", 1.0)
+    sig = st.signal * (1.0 if st.osc > 0 else 0.0) * st.avc * values.pop("_gain", 1.0)
     if "detector.avc_v" in healthy:
         values["detector.avc_v"] = healthy["detector.avc_v"].nominal * sig
     if "if.peak_khz" in healthy and st.if_peak != 1.0:
