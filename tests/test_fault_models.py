@@ -16,14 +16,14 @@ from pathlib import Path
 import pytest
 
 from faultwise.expect import expect
-from faultwise.fault_models import TARGETS, model_problems, parse_change
-from faultwise.fault_physics import inject
+from faultwise.expect.fault_models import TARGETS, model_problems, parse_change
+from faultwise.expect.fault_physics import inject
 from faultwise.graph import load_knowledge
-from faultwise.lint import lint
-from faultwise.nodes import Fault
+from faultwise.graph.lint import lint
+from faultwise.graph.nodes import Fault
 from faultwise.profile import load_profile
 from faultwise.walk import classify
-from faultwise.workspace import bundled_knowledge_dir
+from faultwise.core.workspace import bundled_knowledge_dir
 
 
 KB = Path(__file__).parent / "fixtures" / "kb_small"

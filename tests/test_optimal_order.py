@@ -17,7 +17,7 @@ import math
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from faultwise.optimal_order import HEALTHY, Problem, bound, optimal_minutes, policy_minutes
+from faultwise.shop.optimal_order import HEALTHY, Problem, bound, optimal_minutes, policy_minutes
 
 
 def single_outcome_problem(weights, costs):

@@ -12,9 +12,9 @@ from pathlib import Path
 import pytest
 
 from faultwise.graph import load_knowledge
-from faultwise.sweep import load_demo_sets
-from faultwise.sweep_inject import run_inject
-from faultwise.workspace import bundled_knowledge_dir
+from faultwise.shop.sweep import load_demo_sets
+from faultwise.shop.sweep_inject import run_inject
+from faultwise.core.workspace import bundled_knowledge_dir
 
 KNOWLEDGE = bundled_knowledge_dir()
 
@@ -85,7 +85,7 @@ def test_bad_sets_folder_is_a_located_error(tmp_path):
 
 
 def test_html_table_per_complaint():
-    from faultwise.sweep_inject_report import inject_html, inject_text
+    from faultwise.shop.sweep_inject_report import inject_html, inject_text
 
     k = load_knowledge(KNOWLEDGE)
     sets = load_demo_sets(KNOWLEDGE / "sets", KNOWLEDGE)
@@ -98,9 +98,9 @@ def test_html_table_per_complaint():
 
 
 def test_known_misses_are_explained_and_checked(tmp_path):
-    from faultwise.errors import FaultwiseError
-    from faultwise.inject_known import load_known
-    from faultwise.lint import lint
+    from faultwise.core.errors import FaultwiseError
+    from faultwise.graph.inject_known import load_known
+    from faultwise.graph.lint import lint
 
     k = load_knowledge(KNOWLEDGE)
     known = load_known(k, KNOWLEDGE)

@@ -71,12 +71,12 @@ def _learn_text(learning, changes, path, dry_run: bool) -> str:
 def _with_inject(page: str, ws, knowledge) -> str:
     """The review page with the injected sweep's tables before its safety section."""
     from faultwise.commands.sweep import _sets_dir, _tube_table
-    from faultwise.sweep import load_demo_sets
-    from faultwise.sweep_inject import run_inject
-    from faultwise.sweep_inject_report import inject_html
+    from faultwise.shop.sweep import load_demo_sets
+    from faultwise.shop.sweep_inject import run_inject
+    from faultwise.shop.sweep_inject_report import inject_html
 
     sets = load_demo_sets(_sets_dir(ws, None), ws.knowledge_dir)
-    from faultwise.inject_known import load_known
+    from faultwise.graph.inject_known import load_known
 
     section = inject_html(run_inject(knowledge, sets, band_pass=False, tube_table=_tube_table(ws),
                                      known=load_known(knowledge, ws.knowledge_dir)))

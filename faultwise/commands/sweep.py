@@ -92,14 +92,14 @@ def run(args: argparse.Namespace) -> int:
 
 def run_inject_command(args, ws, knowledge, sets) -> int:
     """``sweep --inject``: the injected sweep and the optimal-order bound."""
-    from faultwise.errors import FaultwiseError
-    from faultwise.sweep_inject import SEED, run_inject
-    from faultwise.sweep_inject_report import failure_sentence, inject_text, inject_to_dict
+    from faultwise.core.errors import FaultwiseError
+    from faultwise.shop.sweep_inject import SEED, run_inject
+    from faultwise.shop.sweep_inject_report import failure_sentence, inject_text, inject_to_dict
 
     if args.family:
         sets = {f: v for f, v in sets.items() if f == args.family}
     seed = SEED if args.seed is None else args.seed
-    from faultwise.inject_known import load_known
+    from faultwise.graph.inject_known import load_known
 
     report = run_inject(knowledge, sets, seed=seed, tube_table=_tube_table(ws),
                         known=load_known(knowledge, ws.knowledge_dir))
@@ -121,7 +121,7 @@ def run_inject_command(args, ws, knowledge, sets) -> int:
 def _tube_table(ws):
     from pathlib import Path
 
-    from faultwise.tubes import load_tube_table
+    from faultwise.profile.tubes import load_tube_table
 
     if (Path(ws.knowledge_dir) / "tubes.yaml").is_file():
         return load_tube_table(ws.knowledge_dir)

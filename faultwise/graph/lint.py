@@ -391,7 +391,7 @@ class _Lint:
 
     def _model(self, node: Fault) -> None:
         """Every model entry names a target of the vocabulary with a change it takes."""
-        from faultwise.fault_models import model_problems
+        from faultwise.expect.fault_models import model_problems
 
         for target, message, hint in model_problems(node.model, node.families):
             self.at(node, f"model '{target}': {message}", hint)
@@ -477,8 +477,8 @@ def _summary(k: Knowledge | None, result: LoadResult) -> dict:
 
 def _inject_known(k: Knowledge, path: Path, run) -> None:
     """inject_known.yaml (faults readings cannot find): every entry must check out."""
-    from faultwise.errors import FaultwiseError
-    from faultwise.inject_known import load_known
+    from faultwise.core.errors import FaultwiseError
+    from faultwise.graph.inject_known import load_known
 
     try:
         load_known(k, path)

@@ -30,9 +30,9 @@ def best_s(fn, runs: int) -> float:
 
 def main() -> int:
     from faultwise.graph import load_knowledge
-    from faultwise.sweep import load_demo_sets
-    from faultwise.sweep_inject import run_inject
-    from faultwise.workspace import bundled_knowledge_dir
+    from faultwise.shop.sweep import load_demo_sets
+    from faultwise.shop.sweep_inject import run_inject
+    from faultwise.core.workspace import bundled_knowledge_dir
 
     ap = argparse.ArgumentParser()
     ap.add_argument("knowledge", nargs="?")

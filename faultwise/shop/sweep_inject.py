@@ -1,15 +1,15 @@
 """The injected sweep: every modelled fault broken in every set's calc model, and walked.
 
 For every demo set (or every profile of ``--sets``) and every fault that carries a
-``model`` (:mod:`faultwise.fault_models`) and applies to the set (family, ``when``, and the
+``model`` (:mod:`faultwise.expect.fault_models`) and applies to the set (family, ``when``, and the
 roles the model names), the faulty set's readings are computed with the same engine
-(:func:`faultwise.fault_physics.inject` on the set's expectations). Every symptom in the
+(:func:`faultwise.expect.fault_physics.inject` on the set's expectations). Every symptom in the
 fault's priors whose walk for the family can reach the fault is walked: reading checks are
 answered with the faulty nominal value, observation checks from the fault's signature
 (missing: the normal choice), exactly as the sweep's walk does (``walk.auto_walk``). The
 walk is then *found* (concluded this fault), *wrong* (concluded another) or *missed* (ran
 out: escalated or every suspect cleared). A miss listed in ``inject_known.yaml``
-(:mod:`faultwise.inject_known`: the physical reason and the check that finds the fault) is
+(:mod:`faultwise.graph.inject_known`: the physical reason and the check that finds the fault) is
 *explained*, reported but not a failure.
 
 A second pass answers every reading with a value drawn uniformly within the faulty band
@@ -19,7 +19,7 @@ can hide; it is reported, not failed on.
 The healthy set: every complaint of the set's family walked with nominal readings and normal
 observations must end without blaming a part.
 
-The optimal-order bound per complaint and set (:mod:`faultwise.optimal_order`): hypotheses
+The optimal-order bound per complaint and set (:mod:`faultwise.shop.optimal_order`): hypotheses
 are the faults walked (weights ``rank.fault_probabilities``, renormalised) plus the healthy
 set; checks are those the complaint's walk can reach on this set, with the outcomes the
 walk saw (the same classification) and the checks' minutes. The walk's prior-weighted mean
@@ -32,8 +32,8 @@ import random
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 
-from faultwise.errors import FaultwiseError
-from faultwise.nodes import Check, Fault
+from faultwise.core.errors import FaultwiseError
+from faultwise.graph.nodes import Check, Fault
 
 SEED = 1962
 
@@ -135,7 +135,7 @@ class InjectReport:
 # ------------------------------------------------------------------------------- walking
 
 def _walk(knowledge, demo, symptom, readings, observations):
-    from faultwise.walk import auto_walk
+    from faultwise.walk.state import auto_walk
 
     return auto_walk(knowledge, demo.profile, symptom, readings, observations,
                      expectations=demo.expectations)
@@ -177,9 +177,9 @@ def run_inject(knowledge, sets: Mapping[str, Sequence], *, seed: int = SEED, tub
                band_pass: bool = True, optimal: bool = True,
                known: Mapping | None = None) -> InjectReport:
     """Inject, walk and bound (see the module doc)."""
-    from faultwise.applicability import node_applies
-    from faultwise.fault_models import applies_to, parse_model
-    from faultwise.fault_physics import inject
+    from faultwise.graph.applicability import node_applies
+    from faultwise.expect.fault_models import applies_to, parse_model
+    from faultwise.expect.fault_physics import inject
 
     faults = modelled_faults(knowledge)
     parsed = {}
@@ -254,7 +254,7 @@ def reachable_checks(knowledge, symptom: str, family: str) -> list[str]:
 
 def check_outcome(check: Check, fault: Fault | None, faulty: Mapping | None, healthy: Mapping) -> str:
     """The outcome a check gives on the broken set (fault None: the healthy set)."""
-    from faultwise.walk import classify
+    from faultwise.walk.state import classify
 
     if check.is_measurement:
         if fault is None:
@@ -267,10 +267,10 @@ def check_outcome(check: Check, fault: Fault | None, faulty: Mapping | None, hea
 
 def set_problem(knowledge, demo, symptom: str, fault_ids: Sequence[str], faulty_by: Mapping):
     """The optimal-order problem of one complaint on one set (weights from the walk's ranking)."""
-    from faultwise.applicability import applies_predicate
-    from faultwise.optimal_order import HEALTHY, Problem
-    from faultwise.rank import fault_probabilities
-    from faultwise.sweep import renormalised
+    from faultwise.graph.applicability import applies_predicate
+    from faultwise.shop.optimal_order import HEALTHY, Problem
+    from faultwise.walk.rank import fault_probabilities
+    from faultwise.shop.sweep import renormalised
 
     probs = fault_probabilities(knowledge, symptom, demo.family)
     weights = renormalised(probs, fault_ids)
@@ -289,8 +289,8 @@ def set_problem(knowledge, demo, symptom: str, fault_ids: Sequence[str], faulty_
 
 
 def optimal_rows(knowledge, demos, walks, faulty_by_set) -> list[OptimalRow]:
-    from faultwise.optimal_order import bound
-    from faultwise.sweep import entropy_bits, weighted_mean
+    from faultwise.shop.optimal_order import bound
+    from faultwise.shop.sweep import entropy_bits, weighted_mean
 
     by_set = {d.name: d for d in demos}
     groups: dict = {}

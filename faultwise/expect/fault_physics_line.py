@@ -1,11 +1,11 @@
-"""The broken line set's readings: supply, heaters and tube stages (see :mod:`faultwise.fault_physics`)."""
+"""The broken line set's readings: supply, heaters and tube stages (see :mod:`faultwise.expect.fault_physics`)."""
 
 from __future__ import annotations
 
 import math
 from dataclasses import replace
 
-from faultwise.fault_models import SHORT_OHM
+from faultwise.expect.fault_models import SHORT_OHM
 
 BLEED_MA = 0.01
 """Load left on the supply when every tube is cold: the meter and leakage (a token 10 uA)."""
@@ -20,8 +20,8 @@ ZERO_BIAS_CURRENT = 1.8
 def _circuit(profile, st, table, *, load_ma=None, filter_load_ma=None):
     """The nominal RectifierCircuit of this profile with the model's value changes."""
     from faultwise.calc import rectifier as r
-    from faultwise.expect_context import Context
-    from faultwise.expect_supply import _rectifier_diode
+    from faultwise.expect.context import Context
+    from faultwise.expect.supply import _rectifier_diode
 
     s, scale = profile.supply, st.profile_scale
     ctx = Context(profile, table)

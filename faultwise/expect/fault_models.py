@@ -1,7 +1,7 @@
 """Fault models: what a fault does to the set, as a change to its profile or its calc model.
 
 A fault node may carry ``model:``, a mapping of *target* to *change*; the injected sweep
-(:mod:`faultwise.sweep_inject`) applies it with :func:`faultwise.fault_physics.inject` and
+(:mod:`faultwise.shop.sweep_inject`) applies it with :func:`faultwise.expect.fault_physics.inject` and
 answers the walk with the readings the broken set would give. The vocabulary is small and
 is data (:data:`TARGETS`); lint checks every model against it (:func:`model_problems`).
 
@@ -59,7 +59,7 @@ avc                             open xK             the AVC line (open: no AVC v
 if.peak                         xK                  the IF strip's peak moved (misaligned)
 ==============================  ==================  =============================================
 
-What the calc model does with them is in :mod:`faultwise.fault_physics`. A model naming a
+What the calc model does with them is in :mod:`faultwise.expect.fault_physics`. A model naming a
 role the set lacks does not apply to that set (the sweep skips the pair and says so).
 """
 
@@ -137,7 +137,7 @@ class Change:
 
 
 def _roles() -> dict[str, tuple[str, ...]]:
-    from faultwise.profile import TRANSISTOR_ROLES, TUBE_ROLES
+    from faultwise.profile.model import TRANSISTOR_ROLES, TUBE_ROLES
 
     return {"tube": TUBE_ROLES, "transistor": TRANSISTOR_ROLES, "gang": GANG_SECTIONS,
             "coil": COILS, "stage": SIGNAL_STAGES}

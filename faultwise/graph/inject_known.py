@@ -1,6 +1,6 @@
 """Faults the readings alone cannot find: ``<knowledge>/inject_known.yaml``.
 
-The injected sweep (:mod:`faultwise.sweep_inject`) fails on every modelled fault it does not
+The injected sweep (:mod:`faultwise.shop.sweep_inject`) fails on every modelled fault it does not
 find, except those listed here with the physical reason and the check that does find them.
 Each entry::
 
@@ -19,8 +19,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from pathlib import Path
 
-from faultwise.errors import FaultwiseError
-from faultwise.nodes import Check, Fault
+from faultwise.core.errors import FaultwiseError
+from faultwise.graph.nodes import Check, Fault
 
 FILE_NAME = "inject_known.yaml"
 FORMAT = "faultwise-inject-known/1"
@@ -36,7 +36,7 @@ class Known:
 
 def load_known(knowledge, knowledge_dir) -> dict[tuple[str, str], Known]:
     """{(set file name, fault id): entry}; empty when the file does not exist."""
-    from faultwise.yamlload import line_of, load_yaml_file
+    from faultwise.core.yamlload import line_of, load_yaml_file
 
     path = Path(knowledge_dir) / FILE_NAME
     if not path.is_file():

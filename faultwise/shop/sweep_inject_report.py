@@ -1,10 +1,10 @@
-"""Formatting of the injected sweep (:mod:`faultwise.sweep_inject`): JSON, text, HTML table."""
+"""Formatting of the injected sweep (:mod:`faultwise.shop.sweep_inject`): JSON, text, HTML table."""
 
 from __future__ import annotations
 
 from html import escape
 
-from faultwise.safe_text import one_line as plain
+from faultwise.core.safe_text import one_line as plain
 
 
 def _r(x: float | None, nd: int = 2):

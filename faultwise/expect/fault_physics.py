@@ -1,4 +1,4 @@
-"""The broken set's readings: a fault model (:mod:`faultwise.fault_models`) applied to the calc model.
+"""The broken set's readings: a fault model (:mod:`faultwise.expect.fault_models`) applied to the calc model.
 
 :func:`inject` returns, for every expectation name of the healthy set, what the meter reads
 on the set with the fault: an :class:`~faultwise.expect.Expected` whose ``nominal`` is the
@@ -39,8 +39,8 @@ import math
 from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
 
-from faultwise.expect import Expected
-from faultwise.fault_models import LEAKY_ICBO_MA, OPEN_OHM, SHORT_OHM, Change, parse_model
+from faultwise.expect.expected import Expected
+from faultwise.expect.fault_models import LEAKY_ICBO_MA, OPEN_OHM, SHORT_OHM, Change, parse_model
 
 VCE_SAT_V = 0.2
 """Collector-emitter voltage of a saturated small-signal transistor (as calc.bias)."""
@@ -248,7 +248,7 @@ def inject(profile, model: Mapping, healthy: Mapping[str, Expected], *,
     out = dict(healthy)
     values: dict[str, float] = {}
     if profile.line_powered:
-        from faultwise.fault_physics_line import line_readings
+        from faultwise.expect.fault_physics_line import line_readings
 
         values.update(line_readings(profile, st, healthy, tube_table))
     else:
