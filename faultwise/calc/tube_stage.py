@@ -79,6 +79,8 @@ def anchor_drive_v(op: TypicalOperation) -> float:
 def law_ma(op: TypicalOperation, grid_k_v: float, ref_k_v: float, emission: float = 1.0) -> float:
     """Ik = emission Ik0 (D/D0)^1.5, D = (Vgk - Vg0) + (Vref,k - Vref0)/mu + D0 (Child-Langmuir)."""
     ref0 = op.plate_v if op.is_triode else op.screen_v
+    if ref_k_v <= 0.0:
+        return 0.0          # nothing accelerates the electrons: no current (Child-Langmuir)
     if op.gm_ma_v is None:
         drive, d0 = max(ref_k_v, 0.0) / ref0, 1.0
     else:

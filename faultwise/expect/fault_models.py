@@ -13,7 +13,8 @@ Changes:
   resistor), the meter's 10 Mohm input stands in for the open part.
 * ``short`` -- the part conducts with a small resistance (:data:`SHORT_OHM`); what limits
   the current is the rest of the circuit (the surge or filter resistor).
-* ``leaky`` -- a transistor with collector-base leakage (:data:`LEAKY_ICBO_MA`).
+* ``leaky`` -- a transistor with collector-base leakage (:data:`LEAKY_ICBO_MA`); a tube's
+  grid pulled positive through a leaky coupling capacitor (:data:`LEAKY_GRID_V`).
 * ``stopped`` -- the oscillator does not oscillate.
 
 Targets (``<role>`` is a tube or transistor role of the profile, e.g. ``output``, ``if``):
@@ -36,8 +37,12 @@ heaters.dropper                 open                series-string dropping resis
 heaters.winding                 open                heater winding of a transformer set
 heater.<role>                   open                one tube's heater
 tube.<role>.emission            xK open             a tube's emission (open: a dead tube)
-tube.<role>.screen              open                a pentode's screen feed (resistor) open
-tube.output.cathode_ohm         xK open short       output tube cathode resistor
+tube.<role>.screen_ohm          xK open short       a pentode's screen feed resistor
+tube.<role>.plate_ohm           xK open short       a stage's plate load (resistor, or the
+                                                    transformer primary's DC resistance)
+tube.<role>.cathode_ohm         xK open short       a stage's cathode resistor
+tube.<role>.grid                leaky               the control grid pulled positive by a leaky
+                                                    coupling capacitor (:data:`LEAKY_GRID_V`)
 output.primary                  open short          output transformer primary
 speaker.voice_coil              open                voice coil
 battery_v                       xK                  battery voltage (a flat battery: x0.7)
@@ -49,6 +54,9 @@ transistor.<role>.bottom_ohm    xK open short       bias divider, resistor to th
 transistor.<role>.emitter_ohm   xK open short       emitter resistor
 transistor.<role>.collector_ohm xK open             collector load (or the winding feeding it)
 transistor.<role>.beta          xK                  current gain
+output.bias                     open short          a push-pull pair's bias network: open (no
+                                                    base bias, no idle current) or shorted
+                                                    (bases at the emitter rail)
 oscillator                      stopped xK          oscillation (xK: amplitude, a weak converter)
 gang.oscillator, gang.antenna   short               a section of the tuning gang shorted
 coil.antenna, coil.if,          open                a coil or winding open
@@ -74,6 +82,10 @@ SHORT_OHM = 1.0
 common practice, no source)."""
 OPEN_OHM = 10e6
 """An open part seen through the meter: a digital meter's 10 Mohm input (trade)."""
+LEAKY_GRID_V = 2.0
+"""Grid of an output tube fed through a leaky coupling capacitor: the first audio plate's tens
+of volts divided by the capacitor's leakage (some megohms) and the grid resistor (under a
+megohm) put a volt or a few positive on the grid (common practice, no source)."""
 LEAKY_ICBO_MA = {"germanium": 0.1, "silicon": 0.01}
 """Collector-base leakage of a transistor called leaky at the bench: ten or more times a
 good small-signal part's few uA (germanium) or tens of nA (silicon) (from memory)."""
@@ -96,8 +108,10 @@ TARGETS: dict[str, tuple[str, ...]] = {
     "heaters.winding": ("open",),
     "heater.<tube>": ("open",),
     "tube.<tube>.emission": ("scale", "open"),
-    "tube.<tube>.screen": ("open",),
-    "tube.output.cathode_ohm": ("scale", "open", "short"),
+    "tube.<tube>.screen_ohm": ("scale", "open", "short"),
+    "tube.<tube>.plate_ohm": ("scale", "open", "short"),
+    "tube.<tube>.cathode_ohm": ("scale", "open", "short"),
+    "tube.<tube>.grid": ("leaky",),
     "output.primary": ("open", "short"),
     "speaker.voice_coil": ("open",),
     "battery_v": ("scale",),
@@ -108,6 +122,7 @@ TARGETS: dict[str, tuple[str, ...]] = {
     "transistor.<transistor>.emitter_ohm": ("scale", "open", "short"),
     "transistor.<transistor>.collector_ohm": ("scale", "open"),
     "transistor.<transistor>.beta": ("scale",),
+    "output.bias": ("open", "short"),
     "oscillator": ("stopped", "scale"),
     "gang.<gang>": ("short",),
     "coil.<coil>": ("open",),
@@ -117,7 +132,10 @@ TARGETS: dict[str, tuple[str, ...]] = {
 }
 #: which families each target can apply to (line sets have tubes, battery sets transistors).
 LINE_ONLY = ("supply.", "rectifier", "line", "heaters.", "heater.", "tube.", "output.primary")
-BATTERY_ONLY = ("battery", "transistor.")
+BATTERY_ONLY = ("battery", "transistor.", "output.bias")
+STAGE_PARTS = ("screen_ohm", "plate_ohm", "cathode_ohm", "grid")
+"""Tube targets the voltage chart's stage model computes (:mod:`faultwise.expect.stages`); a
+tube with no amplifying section (rectifier, tuning eye, ballast) has none of them."""
 
 CHANGE_WORDS = ("open", "short", "leaky", "stopped")
 _SCALE = re.compile(r"^x(\d+(?:\.\d*)?|\.\d+)$")
@@ -208,6 +226,15 @@ def model_problems(model: Mapping, families) -> list[tuple[str, str, str]]:
                     "'supply.first_cap_uf: x0.1', 'heater.output: open')")
             out.append((target, str(exc), hint))
             continue
+        bits = target.split(".")
+        if bits[0] == "tube" and len(bits) == 3 and bits[2] in STAGE_PARTS:
+            from faultwise.expect.stages import NO_STAGE_ROLES
+
+            if bits[1] in NO_STAGE_ROLES:
+                out.append((target, f"a {bits[1]} tube has no amplifier stage with a "
+                            f"'{bits[2]}'", "name the role of an amplifying tube (e.g. 'if', "
+                            "'output')"))
+                continue
         if not any(target_family_ok(target, f) for f in families):
             out.append((target, f"'{target}' names nothing in a set of the fault's families "
                         f"({', '.join(families)})", "use a target of the fault's families"))
@@ -235,6 +262,11 @@ def applies_to(changes, profile) -> str:
         have = profile.tube(role) if kind == "tube" else profile.transistor(role)
         if have is None:
             return f"the set has no {role} {kind}"
+    if any(c.target == "output.bias" for c in changes):
+        from faultwise.expect.output_pair import is_pair
+
+        if not is_pair(profile):
+            return "the set's output stage is not a push-pull pair"
     if any(c.target == "heaters.dropper" for c in changes) and profile.family != "series-string":
         return "only a series-string set has a dropping resistor"
     return ""

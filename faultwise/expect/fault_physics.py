@@ -40,7 +40,8 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
 
 from faultwise.expect.expected import Expected
-from faultwise.expect.fault_models import LEAKY_ICBO_MA, OPEN_OHM, SHORT_OHM, Change, parse_model
+from faultwise.expect.fault_models import (LEAKY_ICBO_MA, OPEN_OHM, SHORT_OHM, STAGE_PARTS, Change,
+                                           parse_model)
 
 VCE_SAT_V = 0.2
 """Collector-emitter voltage of a saturated small-signal transistor (as calc.bias)."""
@@ -77,6 +78,8 @@ class State:
     avc: float = 1.0
     if_peak: float = 1.0
     transistors: dict = field(default_factory=dict)    # role -> {field: Change}
+    stage: dict = field(default_factory=dict)          # tube role -> {part: Change}
+    pair_bias: str = ""                                # '', open, short (output.bias)
     profile_scale: dict = field(default_factory=dict)  # profile field -> factor
 
 
@@ -98,12 +101,14 @@ def fold(changes: tuple[Change, ...]) -> State:
             st.rect_open = True
         elif c.target == "rectifier.drop":
             st.rect_drop *= k
-        elif c.target == "tube.output.cathode_ohm":
-            st.cathode, st.cathode_scale = ("" if kind == "scale" else kind), k
-        elif head == "tube" and p[2] == "screen":
-            st.emission[p[1]] = st.emission.get(p[1], 1.0) * SCREEN_OPEN_CURRENT
+        elif head == "tube" and p[2] in STAGE_PARTS:
+            st.stage.setdefault(p[1], {})[p[2]] = c
+            if c.target == "tube.output.cathode_ohm":
+                st.cathode, st.cathode_scale = ("" if kind == "scale" else kind), k
         elif head == "tube":
             st.emission[p[1]] = st.emission.get(p[1], 1.0) * (0.0 if kind == "open" else k)
+        elif c.target == "output.bias":
+            st.pair_bias = kind
         elif c.target == "output.primary":
             st.primary = kind
         elif c.target == "speaker.voice_coil":
@@ -252,7 +257,7 @@ def inject(profile, model: Mapping, healthy: Mapping[str, Expected], *,
 
         values.update(line_readings(profile, st, healthy, tube_table))
     else:
-        values.update(_battery_readings(profile, st, healthy))
+        values.update(_battery_readings(profile, st, healthy, tube_table))
     # signal readings (both families)
     sig = st.signal * (1.0 if st.osc > 0 else 0.0) * st.avc * values.pop("_gain", 1.0)
     if "detector.avc_v" in healthy:
@@ -275,9 +280,10 @@ def inject(profile, model: Mapping, healthy: Mapping[str, Expected], *,
     return out
 
 
-def _battery_readings(profile, st: State, healthy) -> dict[str, float]:
+def _battery_readings(profile, st: State, healthy, table=None) -> dict[str, float]:
     from faultwise.calc.bias import divider_bias
     from faultwise.calc.tolerance import vbe_v
+    from faultwise.expect.output_pair import is_pair
 
     v = profile.battery_v or 0.0
     vb = v * st.profile_scale.get("battery_v", 1.0)
@@ -287,7 +293,10 @@ def _battery_readings(profile, st: State, healthy) -> dict[str, float]:
     vcc = 0.0 if st.battery_open else vb
     points = transistor_points(profile, st, vcc)
     standby = healthy["supply.standby_ma"].nominal if "supply.standby_ma" in healthy else 0.0
+    pair = is_pair(profile)
     for tr in profile.transistors:
+        if pair and tr.role in ("output", "output2"):
+            continue            # the pair's own model, below
         b = tr.bias
         good = divider_bias(v, b.top_ohm, b.bottom_ohm, b.emitter_ohm, b.collector_ohm,
                             tr.beta, vbe_v(tr.material).nominal)
@@ -295,6 +304,13 @@ def _battery_readings(profile, st: State, healthy) -> dict[str, float]:
         standby += pt.draw_ma - (good.ic_ma + good.divider_ma)
         for fld in ("vb_v", "ve_v", "ic_ma", "vc_v"):
             out[f"bias.{tr.role}.{fld}"] = getattr(pt, fld)
+    if pair:
+        from faultwise.expect.fault_physics_chart import pair_readings
+
+        got, idle = pair_readings(profile, st, healthy, table, vcc)
+        out.update(got)
+        if "bias.output.idle_ma" in healthy:
+            standby += idle - healthy["bias.output.idle_ma"].nominal
     if "supply.standby_ma" in healthy:
         out["supply.standby_ma"] = max(standby, 0.0)
     conv = profile.transistor("converter")

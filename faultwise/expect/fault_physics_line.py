@@ -6,6 +6,7 @@ import math
 from dataclasses import replace
 
 from faultwise.expect.fault_models import SHORT_OHM
+from faultwise.expect.fault_physics_chart import tube_stage_readings
 
 BLEED_MA = 0.01
 """Load left on the supply when every tube is cold: the meter and leakage (a token 10 uA)."""
@@ -171,10 +172,14 @@ def line_readings(profile, st, healthy, table) -> dict[str, float]:
     f_f = out.get("supply.filtered_v", f_h)
     ratio = (max(f_f, 0.0) / f_h) if f_h else 1.0
 
+    from faultwise.expect.fault_physics import SCREEN_OPEN_CURRENT
+
     def current(role: str) -> float:
         if role in cold or st.line_open:
             return 0.0
-        return st.emission.get(role, 1.0) * ratio ** 1.5
+        screen = st.stage.get(role, {}).get("screen_ohm")
+        starved = SCREEN_OPEN_CURRENT if screen is not None and screen.kind == "open" else 1.0
+        return st.emission.get(role, 1.0) * ratio ** 1.5 * starved
 
     _output_stage(profile, st, healthy, out, current("output"), f_f)
     if "oscillator.grid_v" in healthy:
@@ -186,6 +191,11 @@ def line_readings(profile, st, healthy, table) -> dict[str, float]:
         if profile.tube(role) is not None:
             gain *= min(current(role), 1.0) if role != "detector" else (0.0 if role in cold else 1.0)
     out["_gain"] = gain * (1.0 if st.osc > 0 else 0.0)
+    r_h = healthy["supply.rectifier_out_v"].nominal if "supply.rectifier_out_v" in healthy else None
+    r_f = out.get("supply.rectifier_out_v", r_h)
+    first = (max(r_f, 0.0) / r_h) if r_h else ratio
+    out.update(tube_stage_readings(profile, st, healthy, table, first_scale=first, scale=ratio,
+                                   cold=cold))
     return out
 
 

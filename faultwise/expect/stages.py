@@ -134,8 +134,11 @@ def stage_model(ctx: Context, tube, op, nodes: dict):
     p_nom, s_nom = pnode.nominal, snode.nominal
     rg1 = circuit.grid_ohm
 
-    def stage(scale, plate_ohm, screen_ohm, cathode_ohm, emission, grid_v):
-        dc = solve_stage(op, p_nom * scale, plate_ohm, cathode_ohm, grid_v, s_nom * scale,
+    def stage(scale, plate_ohm, screen_ohm, cathode_ohm, emission, grid_v, first_scale=None):
+        # first_scale: the first filter point moved on its own (a fault model; the bands
+        # move both points together through ``scale``)
+        p_scale = first_scale if first_scale is not None and circuit.supply == "first" else scale
+        dc = solve_stage(op, p_nom * p_scale, plate_ohm, cathode_ohm, grid_v, s_nom * scale,
                          screen_ohm, emission)
         if kind == "converter":   # oscillator grid: grid-leak bias, Ig1 scales with the current
             dc = replace(dc, grid_v=-OSC_GRID_MA * dc.cathode_ma / op.cathode_ma * rg1 / 1000.0)
@@ -144,12 +147,15 @@ def stage_model(ctx: Context, tube, op, nodes: dict):
     return stage, sp, circuit, used, state, pnode, snode
 
 
-def faulty_stage_readings(ctx: Context, role: str, **changes) -> dict[str, float]:
+def faulty_stage_readings(ctx: Context, role: str, *, factors=None, **changes) -> dict[str, float]:
     """Chart readings of one tube stage with parts changed (a fault model), as magnitudes.
 
     ``changes`` override the nominal inputs: ``screen_ohm=math.inf`` (screen resistor open),
     ``plate_ohm=math.inf``, ``cathode_ohm=math.inf``, ``emission=0.4`` (worn tube),
-    ``grid_v=+2.0`` (a leaky coupling capacitor), ``scale=0.8`` (supply 20 % low).
+    ``grid_v=+2.0`` (a leaky coupling capacitor), ``scale=0.8`` (supply 20 % low),
+    ``first_scale=1.1`` (the first filter point alone, for a stage fed from it).
+    ``factors`` multiply nominal inputs instead (``{"cathode_ohm": 3}``: the resistor drifted
+    to three times its value; ``{"grid_v": ...}`` is added, not multiplied).
     """
     from faultwise.expect.supply import simulate_supply
 
@@ -162,7 +168,10 @@ def faulty_stage_readings(ctx: Context, role: str, **changes) -> dict[str, float
         return {}
     nodes = {"first": sim.bands["rectifier_out_v"], "second": sim.bands["filtered_v"]}
     stage, sp, *_ = stage_model(ctx, tube, op, nodes)
-    dc = stage(**({k: s.nominal for k, s in sp.items()} | changes))
+    args = {k: s.nominal for k, s in sp.items()}
+    for k, f in (factors or {}).items():
+        args[k] = args[k] + f if k == "grid_v" else args[k] * f
+    dc = stage(**(args | changes))
     fields = [f for f in STAGE_FIELDS if not (f == "screen_v" and op.is_triode)]
     return {f"stage.{role}.{f}": abs(getattr(dc, f)) for f in fields}
 
