@@ -88,6 +88,20 @@ def tube_stage_readings(profile, st, healthy, table, *, first_scale: float, scal
     return out
 
 
+def grid_current_factor(profile, st, healthy, table, role: str) -> float:
+    """A positive grid's cathode current over the healthy one (the chart's stage model), for the
+    older names (``output.cathode_v``) that scale with the stage's current; 1 without one."""
+    from faultwise.expect.stages import faulty_stage_readings
+
+    c = st.stage.get(role, {}).get("grid")
+    name = f"stage.{role}.cathode_ma"
+    if c is None or name not in healthy or not healthy[name].nominal:
+        return 1.0
+    got = faulty_stage_readings(chart_context(profile, healthy, table), role,
+                                factors={"grid_v": LEAKY_GRID_V})
+    return got.get(name, healthy[name].nominal) / healthy[name].nominal
+
+
 def pair_readings(profile, st, healthy, table, vcc: float) -> tuple[dict[str, float], float]:
     """(bias.output.* readings, faulty idle current) of a push-pull pair on the broken set."""
     from faultwise.expect.output_pair import faulty_pair_readings

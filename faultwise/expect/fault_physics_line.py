@@ -6,7 +6,7 @@ import math
 from dataclasses import replace
 
 from faultwise.expect.fault_models import SHORT_OHM
-from faultwise.expect.fault_physics_chart import tube_stage_readings
+from faultwise.expect.fault_physics_chart import grid_current_factor, tube_stage_readings
 
 BLEED_MA = 0.01
 """Load left on the supply when every tube is cold: the meter and leakage (a token 10 uA)."""
@@ -181,7 +181,8 @@ def line_readings(profile, st, healthy, table) -> dict[str, float]:
         starved = SCREEN_OPEN_CURRENT if screen is not None and screen.kind == "open" else 1.0
         return st.emission.get(role, 1.0) * ratio ** 1.5 * starved
 
-    _output_stage(profile, st, healthy, out, current("output"), f_f)
+    k_out = current("output") * grid_current_factor(profile, st, healthy, table, "output")
+    _output_stage(profile, st, healthy, out, k_out, f_f)
     if "oscillator.grid_v" in healthy:
         osc = st.osc * (1.0 if current("converter") > 0 else 0.0) * \
             min(st.emission.get("converter", 1.0), 1.0) * ratio
