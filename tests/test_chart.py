@@ -63,3 +63,15 @@ def test_cli_chart_and_html(tmp_path):
     bad = subprocess.run([sys.executable, "-m", "faultwise", "expect", str(demo), "--html",
                           str(page)], capture_output=True, text=True)
     assert bad.returncode == 1 and "--chart" in bad.stderr and "Traceback" not in bad.stderr
+
+
+def test_grids_are_shown_negative_as_the_meter_reads_them():
+    """An oscillating converter's grid-leak bias and a detector triode's contact bias read
+    negative to B- (common practice, no source): the chart prints the sign, the band runs
+    from the more negative end, and plates and cathodes stay positive."""
+    profile = load_profile(next(p for p in SETS if "5-tube" in p.name))
+    lines = render_chart(profile, chart_rows(profile, expect(profile)))
+    osc = next(line for line in lines if "oscillator grid" in line)
+    assert re.search(r"-\d+(\.\d+)? V\s+-\d+(\.\d+)? to -\d", osc), osc
+    plate = next(line for line in lines if " plate " in line)
+    assert not re.search(r"\s-\d", plate), plate

@@ -111,10 +111,24 @@ def rows_for_stage(rows: list[ChartRow], stage: str) -> list[ChartRow]:
     return [r for r in rows if r.stage == stage]
 
 
+def negative_to_rail(r: ChartRow) -> bool:
+    """A tube's control or oscillator grid reads negative to B- or chassis (grid-leak,
+    contact or AVC bias; common practice, no source); the chart computes magnitudes."""
+    return r.name.startswith("stage.") and r.name.endswith(".grid_v")
+
+
+def _shown(r: ChartRow) -> tuple[str, str]:
+    """Expected value and band as the meter shows them, with the sign of a negative grid."""
+    if not negative_to_rail(r):
+        return f"{_n(r.nominal)} {r.unit}", f"{_n(r.low)}-{_n(r.high)}"
+    neg = (lambda x: f"-{_n(x)}" if x else "0")
+    return f"{neg(r.nominal)} {r.unit}", f"{neg(r.high)} to {neg(r.low)}"
+
+
 def render_chart(profile, rows: list[ChartRow], width: int = 80) -> list[str]:
     """Plain-text chart, at most ``width`` columns: device, pin, electrode, nominal, band."""
     lines = [f"Voltage chart: {profile.label}"[:width],
-             ("DC to B- (series-string) or chassis, set warm, off station, high-ohm meter"
+             ("DC to B- (series-string) or chassis, warm, off station; grids read negative"
               if profile.line_powered else
               "DC to the common rail (magnitudes), no signal, volume down")[:width],
              "* rests on a typical value: confirm it on the set where you can"[:width], ""]
@@ -124,8 +138,7 @@ def render_chart(profile, rows: list[ChartRow], width: int = 80) -> list[str]:
     for r in rows:
         device = r.device if r.device != last else ""
         last = r.device
-        expected = f"{_n(r.nominal)} {r.unit}"
-        band = f"{_n(r.low)}-{_n(r.high)}"
+        expected, band = _shown(r)
         mark = "*" if r.typical else ""
         line = (f"{device[:18]:<18}{r.pin[:5]:>5}  {r.electrode[:18]:<18}{expected[:10]:>10}  "
                 f"{band[:16]:<16} {mark}")
