@@ -141,3 +141,79 @@ def test_battery_circuit_open_leaves_the_cells_reading_normal():
     faulty = inject(p, {"battery": "open"}, healthy)
     assert faulty["supply.battery_v"].nominal == healthy["supply.battery_v"].nominal
     assert faulty["supply.standby_ma"].nominal == pytest.approx(0.0, abs=1e-9)
+
+
+# --------------------------------------------------------- the voltage chart of a broken set
+
+def test_open_screen_resistor_reads_absent_on_the_chart():
+    """Trade: an open screen resistor leaves the screen at nothing and the tube passes almost
+    no current (common practice, no source); the chart's engine must say so."""
+    p, healthy = _set("demo-5-tube-table.yaml")
+    for role in ("output", "if"):
+        faulty = inject(p, {f"tube.{role}.screen_ohm": "open"}, healthy)
+        for field in ("screen_v", "cathode_ma"):
+            name = f"stage.{role}.{field}"
+            assert classify(faulty[name].nominal, healthy[name]) == "absent", name
+
+
+def test_open_plate_load_reads_absent_at_the_first_audio_plate():
+    p, healthy = _set("demo-5-tube-table.yaml")
+    faulty = inject(p, {"tube.detector.plate_ohm": "open"}, healthy)
+    assert classify(faulty["stage.detector.plate_v"].nominal,
+                    healthy["stage.detector.plate_v"]) == "absent"
+
+
+def test_low_b_plus_lowers_every_stage():
+    """A filter resistor at three times its value: the filtered B+ falls, and every stage fed
+    from it reads lower (Ohm's law; the stage currents fall with their supply)."""
+    p, healthy = _set("demo-230v-transformer.yaml")
+    faulty = inject(p, {"supply.filter_ohm": "x3"}, healthy)
+    assert faulty["supply.filtered_v"].nominal < healthy["supply.filtered_v"].nominal
+    lowered = [n for n in healthy if n.startswith("stage.") and n.endswith(".screen_v")]
+    assert lowered
+    for name in lowered:
+        assert faulty[name].nominal < healthy[name].nominal, name
+
+
+def test_cold_tube_passes_no_current_on_the_chart():
+    p, healthy = _set("demo-230v-transformer.yaml")
+    faulty = inject(p, {"tube.if.emission": "open"}, healthy)
+    assert faulty["stage.if.cathode_ma"].nominal == 0.0
+    # no current, no drop in the screen resistor: the screen rises to its supply
+    assert faulty["stage.if.screen_v"].nominal > healthy["stage.if.screen_v"].high
+
+
+def test_positive_grid_reads_high_and_raises_the_current():
+    p, healthy = _set("demo-5-tube-table.yaml")
+    faulty = inject(p, {"tube.output.grid": "leaky"}, healthy)
+    assert classify(faulty["stage.output.grid_v"].nominal, healthy["stage.output.grid_v"]) == "high"
+    assert faulty["stage.output.cathode_ma"].nominal > healthy["stage.output.cathode_ma"].nominal
+    assert faulty["output.cathode_v"].nominal > healthy["output.cathode_v"].nominal
+
+
+@pytest.mark.parametrize("change", ["open", "short"])
+def test_push_pull_bias_network_fault_leaves_no_idle_current(change):
+    """Issue 11's check: a pair whose bias network is open (or shorted) reads absent on idle
+    current and base bias; the battery current falls by the pair's idle current."""
+    p, healthy = _set("demo-ge-pnp-portable.yaml")
+    faulty = inject(p, {"output.bias": change}, healthy)
+    for name in ("bias.output.idle_ma", "bias.output.bases_v"):
+        assert classify(faulty[name].nominal, healthy[name]) == "absent", name
+    drop = healthy["supply.standby_ma"].nominal - faulty["supply.standby_ma"].nominal
+    assert drop == pytest.approx(healthy["bias.output.idle_ma"].nominal, rel=1e-6)
+
+
+def test_flat_battery_lowers_the_pair_current():
+    p, healthy = _set("demo-si-npn-portable.yaml")
+    faulty = inject(p, {"battery_v": "x0.7"}, healthy)
+    assert faulty["bias.output.idle_ma"].nominal < healthy["bias.output.idle_ma"].nominal
+
+
+@pytest.mark.parametrize("model,families,why", [
+    ({"tube.rectifier.screen_ohm": "open"}, ("transformer",), "no amplifier stage"),
+    ({"output.bias": "open"}, ("series-string",), "names nothing"),
+    ({"tube.output.grid": "open"}, ("transformer",), "takes leaky"),
+])
+def test_lint_checks_the_chart_targets(model, families, why):
+    (_, message, _), = model_problems(model, families)
+    assert why in message
