@@ -46,8 +46,10 @@ tube.<role>.grid                leaky               the control grid pulled posi
 output.primary                  open short          output transformer primary
 speaker.voice_coil              open                voice coil
 battery_v                       xK                  battery voltage (a flat battery: x0.7)
-battery                         open                the battery circuit is broken: contacts,
-                                                    snap lead, switch, a cracked track
+battery                         open leaky          the battery circuit is broken: contacts,
+                                                    snap lead, switch, a cracked track; leaky:
+                                                    something across the supply draws
+                                                    :data:`LEAKY_SUPPLY_MA` (a leaky electrolytic)
 transistor.<role>               open short leaky    the transistor itself
 transistor.<role>.top_ohm       xK open short       bias divider, resistor to the supply
 transistor.<role>.bottom_ohm    xK open short       bias divider, resistor to the common rail
@@ -86,6 +88,9 @@ LEAKY_GRID_V = 2.0
 """Grid of an output tube fed through a leaky coupling capacitor: the first audio plate's tens
 of volts divided by the capacitor's leakage (some megohms) and the grid resistor (under a
 megohm) put a volt or a few positive on the grid (common practice, no source)."""
+LEAKY_SUPPLY_MA = 30.0
+"""A supply electrolytic leaky enough to run warm: a quarter watt or so at 9 V, about 30 mA
+(common practice, no source)."""
 LEAKY_ICBO_MA = {"germanium": 0.1, "silicon": 0.01}
 """Collector-base leakage of a transistor called leaky at the bench: ten or more times a
 good small-signal part's few uA (germanium) or tens of nA (silicon) (from memory)."""
@@ -115,7 +120,7 @@ TARGETS: dict[str, tuple[str, ...]] = {
     "output.primary": ("open", "short"),
     "speaker.voice_coil": ("open",),
     "battery_v": ("scale",),
-    "battery": ("open",),
+    "battery": ("open", "leaky"),
     "transistor.<transistor>": ("open", "short", "leaky"),
     "transistor.<transistor>.top_ohm": ("scale", "open", "short"),
     "transistor.<transistor>.bottom_ohm": ("scale", "open", "short"),

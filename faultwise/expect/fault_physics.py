@@ -40,7 +40,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
 
 from faultwise.expect.expected import Expected
-from faultwise.expect.fault_models import (LEAKY_ICBO_MA, OPEN_OHM, SHORT_OHM, STAGE_PARTS, Change,
+from faultwise.expect.fault_models import (LEAKY_ICBO_MA, LEAKY_SUPPLY_MA, OPEN_OHM, SHORT_OHM, STAGE_PARTS, Change,
                                            parse_model)
 
 VCE_SAT_V = 0.2
@@ -73,6 +73,7 @@ class State:
     primary: str = ""
     voice_coil_open: bool = False
     battery_open: bool = False
+    supply_leak: bool = False
     osc: float = 1.0
     signal: float = 1.0
     avc: float = 1.0
@@ -114,7 +115,10 @@ def fold(changes: tuple[Change, ...]) -> State:
         elif c.target == "speaker.voice_coil":
             st.voice_coil_open = True
         elif c.target == "battery":
-            st.battery_open = True
+            if kind == "leaky":
+                st.supply_leak = True
+            else:
+                st.battery_open = True
         elif head == "transistor":
             field = p[2] if len(p) > 2 else "self"
             st.transistors.setdefault(p[1], {})[field] = c
@@ -311,6 +315,8 @@ def _battery_readings(profile, st: State, healthy, table=None) -> dict[str, floa
         out.update(got)
         if "bias.output.idle_ma" in healthy:
             standby += idle - healthy["bias.output.idle_ma"].nominal
+    if st.supply_leak and v:
+        standby += LEAKY_SUPPLY_MA * vcc / v
     if "supply.standby_ma" in healthy:
         out["supply.standby_ma"] = max(standby, 0.0)
     conv = profile.transistor("converter")
