@@ -504,6 +504,9 @@ def lint(path: str | Path, expectation_names: NamesFn | None = None) -> LintRepo
         run.priors()
     run.phrasings()
     run.learned()
+    from faultwise.lint_text import text_rules
+
+    text_rules(run)
     summary = _summary(k, result)
     summary.update(errors=len(run.errors), warnings=len(run.warnings))
     return LintReport(run.errors, run.warnings, summary)

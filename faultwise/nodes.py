@@ -37,6 +37,8 @@ class Check:
     choice) to a target node id or ``cleared``. ``normal`` is the outcome a healthy set
     gives. ``unable`` is where a skipped check goes (default: ``cleared``, the next suspect).
     ``closing``: done before any case of these families is closed (the leakage check).
+    ``variants``: family -> {field: text} read from ``text_by_family`` (every node kind has
+    it): the text a walk of that family shows instead (see :mod:`faultwise.node_text`).
     ``when``: conditions on the set (key -> any of these values) for the check to apply;
     empty: it applies to every set of its families (see :mod:`faultwise.applicability`).
     """
@@ -56,6 +58,7 @@ class Check:
     unable: str | None = None
     closing: bool = False
     when: Mapping[str, tuple[str, ...]] = field(default_factory=lambda: _frozen({}))
+    variants: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "check"
 
@@ -91,6 +94,7 @@ class Suspects:
     investigations: tuple[Investigation, ...]
     exhausted: str = CLEARED
     why: str = ""
+    variants: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "suspects"
 
@@ -126,6 +130,7 @@ class Fault:
     cautions: tuple[str, ...] = ()
     notes: str = ""
     when: Mapping[str, tuple[str, ...]] = field(default_factory=lambda: _frozen({}))
+    variants: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "fault"
 
@@ -139,6 +144,7 @@ class Escalate:
     stage: str
     families: tuple[str, ...]
     advice: str
+    variants: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "escalate"
 

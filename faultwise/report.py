@@ -183,6 +183,10 @@ def job_report(case: Mapping, knowledge=None) -> JobReport:
     s = case.get("set") if isinstance(case.get("set"), dict) else {}
     profile = s.get("profile") if isinstance(s.get("profile"), dict) else {}
     family = str(case.get("family") or profile.get("family") or "")
+    if node is not None:
+        from faultwise.node_text import for_case_profile
+
+        node = for_case_profile(node, family, profile)
     minutes = case.get("minutes")
     return JobReport(
         shop=SHOP, case_id=str(case.get("id") or ""), bench=str(case.get("bench") or ""),

@@ -277,7 +277,7 @@ class Walk:
     @property
     def conclusion(self) -> Fault | None:
         fid = self._state.conclusion
-        return None if fid is None else self.knowledge.nodes.get(fid)
+        return None if fid is None else self._view(self.knowledge.nodes.get(fid))
 
     @property
     def off_graph_finding(self) -> str | None:
@@ -318,7 +318,7 @@ class Walk:
                           context=context, explanation=self.explain())
         if st.phase == "diagnose" and (st.ran_out or st.node is None or
                                        isinstance(self.knowledge.nodes.get(st.node), Escalate)):
-            node = self.knowledge.nodes.get(st.node) if st.node else None
+            node = self._view(self.knowledge.nodes.get(st.node)) if st.node else None
             cautions = self._cautions(getattr(node, "cautions", ()) or ())
             return Prompt("escalate", "diagnose", node, node.stage if node else None,
                           cautions=cautions, unacknowledged=self._unacked(cautions),
@@ -328,7 +328,7 @@ class Walk:
         if st.node is None:   # verify/closing with nothing left to ask
             return Prompt("close", st.phase, None, None, context=context,
                           warning=self._verify_warning(st))
-        check = self.knowledge.node(st.node)
+        check = self._view(self.knowledge.node(st.node))
         expected = self.expectations.get(check.expect) if check.is_measurement else None
         if check.is_measurement:
             choices = () if expected is not None else tuple((o, o) for o in MEASURE_OUTCOMES)
@@ -340,6 +340,12 @@ class Walk:
                       cautions=cautions, unacknowledged=self._unacked(cautions),
                       context=context, position=position, warning=self._verify_warning(st),
                       explanation=self.explain())
+
+    def _view(self, node):
+        """The node as this set sees it: its family's text, this set's values filled in."""
+        from faultwise.node_text import for_set
+
+        return for_set(node, self.family, self.expectations)
 
     def explain(self) -> Explanation | None:
         """Why this check now: the p/c ranking of the innermost suspects list, and the route here."""
@@ -544,7 +550,7 @@ class Walk:
 
     def _asked_check(self) -> tuple[Check, object | None]:
         st = self._state
-        node = self.knowledge.nodes.get(st.node) if st.node else None
+        node = self._view(self.knowledge.nodes.get(st.node)) if st.node else None
         if st.phase not in ("diagnose", "verify", "closing") or not isinstance(node, Check):
             raise WalkError("no check is being asked now", hint="look at the current prompt")
         expected = self.expectations.get(node.expect) if node.is_measurement else None
