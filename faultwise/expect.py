@@ -84,7 +84,7 @@ def expectation_names(family: str) -> frozenset[str]:
                       "oscillator.grid_v"}
     from faultwise.expect_parts import PART_NAMES
 
-    names |= set(PART_NAMES)
+    names |= set(PART_NAMES) | {"supply.ripple_meter_vac"}
     if family == "series-string":
         names |= {"heaters.string_v", "heaters.string_ma", "heaters.dropping_ohm"}
     else:
@@ -104,6 +104,7 @@ def expect(profile, *, tube_table=None) -> dict[str, Expected]:
     from faultwise.expect_bias import add_battery, add_bias
     from faultwise.expect_context import Context
     from faultwise.expect_heaters import add_heaters
+    from faultwise.expect_meter import add_ripple_meter
     from faultwise.expect_parts import add_part_ratings
     from faultwise.expect_signal import add_detector, add_if_strip, add_oscillator
     from faultwise.expect_supply import add_mains, add_rectifier
@@ -114,6 +115,7 @@ def expect(profile, *, tube_table=None) -> dict[str, Expected]:
         add_mains(ctx)
         add_heaters(ctx)
         add_rectifier(ctx)
+        add_ripple_meter(ctx)
         add_part_ratings(ctx)
         add_output_tube(ctx)
     else:
