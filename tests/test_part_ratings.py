@@ -93,3 +93,19 @@ def test_repair_step_of_the_walk_shows_the_rating_for_this_set():
     series = for_set(fault, "series-string",
                      expect(load_profile(KNOWLEDGE / "sets" / "demo-5-tube-table.yaml")))
     assert "at least 250 V" in " ".join(series.parts)
+
+
+def test_job_report_repair_steps_show_the_rating_for_the_case_set():
+    from faultwise.profile import profile_to_dict
+    from faultwise.report import job_report
+
+    k = load_knowledge(KNOWLEDGE)
+    profile = profile_to_dict(load_profile(KNOWLEDGE / "sets" / "demo-6v-console.yaml"))
+    case = {"id": "20260101-B1-001", "family": "transformer", "symptom": "hum-loud",
+            "set": {"profile": profile, "source": "demo-6v-console.yaml"},
+            "conclusion": {"fault": "supply.open-first-filter-cap",
+                           "title": "Dried-out first filter capacitor", "stage": "supply"},
+            "events": []}
+    report = job_report(case, k)
+    text = " ".join(report.repair)
+    assert "at least 500 V" in text and "at most 20 uF" in text

@@ -143,3 +143,19 @@ def test_ripple_checks_ask_for_a_scope_and_fall_back_to_the_meter(k):
         node = k.nodes[cid]
         assert "peak to peak" in node.how and "AC volts" not in node.how
         assert k.nodes[node.unable].expect == "supply.ripple_meter_vac"
+
+
+def test_coverage_200_faults_and_10_per_stage_per_family(k):
+    """The review's bar (common practice for a useful bench graph, no source)."""
+    from collections import Counter
+
+    from faultwise.nodes import FAMILIES, STAGES, Fault
+
+    faults = [n for n in k.nodes.values() if isinstance(n, Fault)]
+    assert len(faults) >= 200
+    per = Counter((f.stage, fam) for f in faults for fam in f.families)
+    short = {(s, fam): per[(s, fam)] for s in STAGES for fam in FAMILIES if per[(s, fam)] < 10}
+    assert short == {}
+    titles = " ".join(f.title.lower() for f in faults)
+    for kind in ("drifted", "leaky", "image", "cracked", "backwards", "slipping"):
+        assert kind in titles, kind
