@@ -628,7 +628,7 @@ class Walk:
                 raise WalkError(f"event {event.get('n', i + 1)} ({event.get('type')}"
                                 f"{', ' + str(event.get('node')) if event.get('node') else ''}) "
                                 f"does not fit the walk: {exc.message}",
-                                node=event.get("node"),
+                                node=event.get("node"), key=f"events[{i}]",
                                 hint="the knowledge may have changed since the case was recorded"
                                 ) from None
         return st

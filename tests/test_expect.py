@@ -214,8 +214,7 @@ def test_demo_sets_produce_their_familys_names():
     from faultwise.profile import load_profile
 
     sets = _demo_sets()
-    if not sets:
-        pytest.skip("no demo sets in knowledge/sets yet")
+    assert len(sets) >= 10, "the bundled knowledge ships ten demo sets"
     for path in sets:
         p = load_profile(path)
         e = expect(p)
@@ -231,11 +230,9 @@ def _run(*args: str) -> subprocess.CompletedProcess:
 
 
 def _a_demo_set() -> Path:
-    sets = _demo_sets()
-    if not sets:
-        pytest.skip("no demo sets in knowledge/sets yet")
-    named = [s for s in sets if "5-tube" in s.name]
-    return named[0] if named else sets[0]
+    named = [s for s in _demo_sets() if "5-tube" in s.name]
+    assert named, "the demo 5-tube series-string table set is bundled"
+    return named[0]
 
 
 def test_command_prints_the_table():

@@ -427,8 +427,6 @@ def test_mutated_profiles_raise_only_faultwise_errors(data):
 
 # --- the command line --------------------------------------------------------------------
 
-@pytest.mark.skipif(not (ROOT / "faultwise" / "commands" / "expect.py").exists(),
-                    reason="the expect command is not built yet")
 @pytest.mark.parametrize("name", ["unknown-key", "wrong-unit", "transformer-no-winding"])
 def test_cli_expect_reports_a_bad_profile_in_one_line(name):
     path = FIXTURES / "bad" / f"{name}.yaml"

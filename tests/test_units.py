@@ -8,6 +8,7 @@ secondary source), and Python's decimal module as the exact arithmetic oracle.
 from __future__ import annotations
 
 import math
+import re
 from decimal import Decimal
 
 import pytest
@@ -198,10 +199,17 @@ _ALPHABET = "0123456789.,+-eEkKmMunpµRrVAFHhzΩohmsWx: %"
 @settings(max_examples=400, deadline=None)
 @given(text=st.text(alphabet=_ALPHABET, max_size=12), unit=st.sampled_from(TARGETS))
 def test_reading_like_text_raises_only_input_error(text, unit):
+    """Reading-like text gives a finite value or one located sentence; a bare number is
+    taken in the check's own unit, exactly as Python's float() reads it (the oracle)."""
     try:
-        parse_reading(text, unit)
-    except InputError:
-        pass
+        value = parse_reading(text, unit)
+    except InputError as exc:
+        assert str(exc).strip() and "Traceback" not in str(exc)
+        return
+    assert math.isfinite(value)
+    plain = text.strip()
+    if re.fullmatch(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?", plain):
+        assert value == pytest.approx(float(plain), rel=1e-12, abs=0.0)
 
 
 @settings(max_examples=400, deadline=None)

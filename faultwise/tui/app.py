@@ -7,7 +7,6 @@ holds domain logic.
 
 from __future__ import annotations
 
-import importlib.util
 from typing import Callable, Iterable
 
 from textual.app import App, SystemCommand
@@ -35,11 +34,6 @@ BENCH_THEME = Theme(
     error="#E0604A",
     dark=True,
 )
-
-
-def review_available() -> bool:
-    """True when the shop review screen (faultwise/tui/screens/review.py) is installed."""
-    return importlib.util.find_spec("faultwise.tui.screens.review") is not None
 
 
 class FaultwiseApp(App[None]):

@@ -167,6 +167,15 @@ class Tmux:
             time.sleep(0.1)
         raise AssertionError(f"none of {texts} showed:\n{self.screen()}")
 
+    def wait_changed(self, before: str, timeout: float = 45.0) -> None:
+        """Until the screen differs from ``before`` (a dialog closed, the next one drawn)."""
+        end = time.monotonic() + timeout
+        while time.monotonic() < end:
+            if self.screen() != before:
+                return
+            time.sleep(0.1)
+        raise AssertionError(f"the screen never changed:\n{before}")
+
     def keys(self, *keys: str, literal: bool = False) -> None:
         self.run("send-keys", *(["-l"] if literal else []), *keys)
 
@@ -189,6 +198,19 @@ def wait_events(path: Path, n: int, timeout: float = 45.0, tmux=None) -> dict:
                          f"{tmux.screen() if tmux else '?'}")
 
 
+def the_new_case(cases: Path, tmux: Tmux, timeout: float = 45.0) -> Path:
+    """The one case file a fresh run made in an empty cases folder, whatever today is."""
+    end = time.monotonic() + timeout
+    while time.monotonic() < end:
+        made = sorted(cases.glob("*.json")) if cases.is_dir() else []
+        if made:
+            assert len(made) == 1, made
+            return made[0]
+        time.sleep(0.1)
+    raise AssertionError(f"no case file appeared in {cases}; the screen:\n{tmux.screen()}")
+
+
+@pytest.mark.real_clock
 @pytest.mark.skipif(TMUX is None or not FAULTWISE.exists(),
                     reason="needs tmux and the installed console script")
 @pytest.mark.parametrize("kill", ["kill-9", "kill-session"])
@@ -222,14 +244,15 @@ def test_tui_killed_mid_walk_reopens_at_the_last_answer(tmp_path, kill):
             time.sleep(0.6)
             tmux.keys("Enter")
             time.sleep(1.0)           # typed-ahead keys can land in the wrong field (report)
-        path = cases / "20261201-B1-001.json"
+        # The case is named for the day it runs (real clock): find the one file it made.
+        path = the_new_case(cases, tmux)
         script = [("1", "Do the heaters glow?"), (low, "DC at the first filter"), ("2", "bridg")]
         n_events = len(wait_events(path, 0, tmux=tmux)["events"])
         for typed, title in script[:answers]:
-            while "Understood" in tmux.wait_for_any(title, "Understood"):
+            while "Understood" in (shown := tmux.wait_for_any(title, "Understood")):
                 tmux.keys("Enter")                           # the caution before this check
                 n_events = len(wait_events(path, n_events + 1, tmux=tmux)["events"])
-                time.sleep(0.2)
+                tmux.wait_changed(shown)        # a stale screen must not take a second Enter
             tmux.keys(typed, literal=True)
             if len(typed) > 1:
                 tmux.keys("Enter")

@@ -166,6 +166,9 @@ def test_summary_of_mutated_case_never_crashes(data):
     if loaded is not None:
         summary = summarise(loaded, "mutated.json")
         json.dumps(summary, allow_nan=True)          # stays JSON-ready for the index
+        answers = [e for e in loaded["events"] if type(e) is dict and e.get("type") == "answer"
+                   and e.get("phase", "diagnose") == "diagnose"]
+        assert len(summary["checks"]) == 2 * len(answers)   # node, outcome per answer
 
 
 @SETTINGS
@@ -206,8 +209,12 @@ def test_replay_of_mutated_case_raises_only_located_errors(data):
 
     loaded = _loaded(data)
     if loaded is not None:
-        _only_located_errors(lambda: replay_case(H.knowledge(), loaded,
-                                                 expectations=H.expectations(), file="m.json"))
+        got = []
+        _only_located_errors(lambda: got.append(replay_case(
+            H.knowledge(), loaded, expectations=H.expectations(), file="m.json")))
+        for result in got:                       # a replay names the case it re-walked
+            assert (result.case, result.file) == (loaded["id"], "m.json")
+            assert result.same == (result.step is None)
 
 
 # ------------------------------------------------------------------ profile through expect()

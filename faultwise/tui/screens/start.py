@@ -183,10 +183,6 @@ class StartScreen(Screen):
             return chosen is not None
         if action == "view_selected":
             return chosen is not None and chosen[0] != "damaged"
-        if action == "review":
-            from faultwise.tui.app import review_available
-
-            return review_available()
         return True
 
     def action_safety(self) -> None:
