@@ -7,7 +7,8 @@ has no tubes, so a sentence about one family shown in another family's walk misl
 
 from __future__ import annotations
 
-from tests.test_lint import broken, copy_kb, line_of, names, only
+from tests.test_lint import KB as KB_SMALL
+from tests.test_lint import broken, line_of, names, only
 
 from faultwise.graph import load_knowledge
 from faultwise.lint import lint
@@ -27,16 +28,15 @@ def test_family_word_in_a_shared_node_is_a_located_error(tmp_path):
 
 def test_a_variant_for_the_family_clears_the_finding(tmp_path):
     kb = broken(tmp_path, "graph/supply.yaml",
-                "advice: Check the surge resistor and the wiring of the supply.",
-                "advice: Check the surge resistor and the wiring of the supply.\n"
-                "    text_by_family:\n"
-                "      series-string: {advice: Check the dropping resistor and the heater string.}")
-    report = lint(kb, names)
+                "      series-string: {advice: Check the surge resistor and the wiring of the supply.}",
+                "      series-string: {advice: Check the power transformer.}")
+    assert only(lint(kb, names), r"series-string walk shows 'power transformer'")
+    report = lint(KB_SMALL, names)           # the untouched copy: the variant clears it
     assert not [f for f in report.errors if "walk shows" in f.message]
 
 
 def test_word_of_a_family_the_node_serves_is_not_flagged():
-    k = load_knowledge(copy_kb.__globals__["KB"])
+    k = load_knowledge(KB_SMALL)
     node = k.nodes["supply.escalate-b-plus"]
     assert family_word_hits(node) == []           # its transformer variant names the transformer
     assert "power transformer" in with_family(node, "transformer").advice
@@ -45,16 +45,16 @@ def test_word_of_a_family_the_node_serves_is_not_flagged():
 
 def test_variant_for_a_family_the_node_is_not_shown_to_is_refused(tmp_path):
     kb = broken(tmp_path, "graph/supply.yaml",
-                "      transformer: {advice: Check the power transformer",
-                "      transistor: {advice: Check the power transformer")
+                "      series-string: {advice: Check the surge resistor",
+                "      transistor: {advice: Check the surge resistor")
     found = only(lint(kb, names), r"text_by_family names 'transistor'")
     assert found[0].node == "supply.escalate-b-plus"
 
 
 def test_unknown_placeholder_is_an_error(tmp_path):
     kb = broken(tmp_path, "graph/supply.yaml",
-                "advice: Check the surge resistor and the wiring of the supply.",
-                "advice: Check the surge resistor ({parts.no_such_value|x}).")
+                "advice: Check the power transformer or the surge resistor and the wiring",
+                "advice: Check the power transformer ({parts.no_such_value|x}) and the wiring")
     only(lint(kb, names), r"unknown expectation '\{parts.no_such_value\}'")
 
 
