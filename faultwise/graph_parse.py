@@ -27,7 +27,7 @@ KEYS = {
                                   "normal", "outcomes", OTHERWISE, "unable", "closing", "when")),
     "suspects": frozenset(_COMMON + ("why", "investigations", "exhausted")),
     "fault": frozenset(_COMMON + ("repair", "parts", "verify", "signature", "priors",
-                                  "cautions", "notes", "when")),
+                                  "cautions", "notes", "when", "plain")),
     "escalate": frozenset(_COMMON + ("advice",)),
 }
 INVESTIGATION_KEYS = frozenset(("target", "label", "minutes"))
@@ -286,7 +286,7 @@ def _node(raw, file: str, stage: str, families: tuple[str, ...], problems: Probl
         return Fault(**base, repair=r.texts("repair"), parts=r.texts("parts"),
                      verify=r.texts("verify"), signature=_signature(r),
                      priors=MappingProxyType(_priors(r)), cautions=r.texts("cautions"),
-                     notes=r.text("notes"), when=_when(r))
+                     notes=r.text("notes"), when=_when(r), plain=r.text("plain"))
     return Escalate(**base, advice=r.text("advice", required=True))
 
 

@@ -9,7 +9,8 @@ that family should read instead::
       transformer: {why: "...", choices: {stays: "..."}}
 
 Allowed fields: check ``title, how, why, choices`` (labels only, same names);
-suspects ``title, why``; fault ``title, repair, parts, notes``; escalate ``title, advice``.
+suspects ``title, why``; fault ``title, repair, parts, notes, plain``; escalate
+``title, advice``.
 
 Placeholders: ``{parts.filter_cap_v|the original rating}`` in any text is replaced by that
 expectation of this set ("250 V"), or by the text after ``|`` when the profile does not
@@ -26,7 +27,7 @@ from typing import Mapping
 VARIANT_FIELDS = {
     "check": ("title", "how", "why", "choices"),
     "suspects": ("title", "why"),
-    "fault": ("title", "repair", "parts", "notes"),
+    "fault": ("title", "repair", "parts", "notes", "plain"),
     "escalate": ("title", "advice"),
 }
 LIST_FIELDS = ("repair", "parts")
@@ -102,7 +103,7 @@ def texts_of(node, family: str | None) -> list[str]:
     """The texts a walk of ``family`` shows for this node (None: the base texts)."""
     view = node if family is None else with_family(node, family)
     out = [view.title]
-    for name in ("how", "why", "advice", "notes"):
+    for name in ("how", "why", "advice", "notes", "plain"):
         value = getattr(view, name, None)
         if value:
             out.append(value)
@@ -131,7 +132,7 @@ def for_set(node, family: str, expectations: Mapping | None):
         return None
     view = with_family(node, family)
     changes: dict[str, object] = {}
-    for name in ("title", "how", "why", "advice", "notes"):
+    for name in ("title", "how", "why", "advice", "notes", "plain"):
         value = getattr(view, name, None)
         if isinstance(value, str) and "{" in value:
             changes[name] = fill(value, expectations)

@@ -116,6 +116,8 @@ class Fault:
     """A conclusion: what is wrong, how to repair it, and how to prove the repair.
 
     ``when``: conditions on the set for the fault to apply, as on :class:`Check`.
+    ``plain``: one sentence for the owner of the set, in plain words, of how this fault
+    caused the complaint (the customer copy of the job report prints it).
     """
 
     id: str
@@ -133,6 +135,7 @@ class Fault:
     variants: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "fault"
+    plain: str = ""
 
 
 @dataclass(frozen=True)

@@ -1,79 +1,28 @@
-"""Job report for one case (Markdown) and the shop review as text for a 100-column terminal.
+"""Reading a case for its job report, the report's number formats, and the shop review as
+text for a 100-column terminal.
 
-The job report reads the case file as recorded: the band of each reading is the band
-written into the case when the reading was taken, not one computed again. The knowledge,
-when given, only supplies titles and the fault's repair steps. HTML forms of both are in
-:mod:`faultwise.report_html`.
+The job report's model is :mod:`faultwise.report_model` (one model, two views: the bench
+copy and the customer copy), rendered by :mod:`faultwise.report_render`; ``job_report`` and
+``job_report_markdown`` here are the entry points the commands and the tests use.
 """
 
 from __future__ import annotations
 
 import os
-from dataclasses import dataclass
 from pathlib import Path
 from typing import Mapping
 
-from faultwise.nodes import STAGES
-
-SHOP = "Larkspur Lane Radio Works"
-LINE_FAMILIES = ("series-string", "transformer")
 SAFETY_STATEMENT = (
     "This record was kept with faultwise, which supports trained people. It does not replace "
     "training, the set's service data, local electrical codes or licensed practice, and it "
     "defers to all of them.")
 LEAKAGE_STATEMENT = (
-    "A line-connected set can put line voltage on its chassis and on any metal a person can "
-    "touch. It goes back to its owner only after a leakage check: the AC voltage across "
-    "1500 ohm shunted by 0.15 uF, from each exposed metal part to a true earth, with the plug "
+    "A mains-powered set can put line voltage on its chassis and on any metal a person can "
+    "touch (a series-string set by design, a transformer set through a fault). It goes back "
+    "to its owner only after a leakage check: the AC voltage across 1500 ohm shunted by 0.15 uF, from each exposed metal part to a true earth, with the plug "
     "one way and then reversed, not through an isolation transformer, is at most 0.75 V "
     "(0.5 mA).")
-NOT_LINE_CONNECTED = "Not line-connected (battery set): no leakage check is needed."
-
-
-@dataclass(frozen=True)
-class ReportStep:
-    """One answered check as recorded: reading, band and classification."""
-
-    n: int
-    node: str
-    title: str
-    raw: str
-    value: float | None
-    band: Mapping | None
-    outcome: str
-    normal: bool
-
-
-@dataclass(frozen=True)
-class JobReport:
-    shop: str
-    case_id: str
-    bench: str
-    customer: str
-    opened: str
-    closed: str
-    status: str
-    set_label: str
-    set_source: str
-    family: str
-    complaint: str
-    symptom: str
-    symptom_title: str
-    checks: tuple[ReportStep, ...]
-    skipped: tuple[tuple[str, str, str], ...]       # (node, title, reason)
-    fault: str
-    fault_title: str
-    fault_stage: str
-    off_graph: str
-    repair: tuple[str, ...]
-    parts: tuple[str, ...]
-    after: tuple[ReportStep, ...]
-    leakage: tuple[ReportStep, ...]
-    line_connected: bool
-    minutes: float | None
-    outcome: str
-    notes: tuple[str, ...]
-    stages: Mapping[str, str]                       # stage -> fault | cleared | checked
+NOT_LINE_CONNECTED = "Not mains-powered (battery set): no leakage check is needed."
 
 
 # ------------------------------------------------------------------------ reading
@@ -108,104 +57,11 @@ def read_case(path: str | os.PathLike) -> dict:
 
 # ------------------------------------------------------------------------ the model
 
-def _title(knowledge, node_id: str, fallback: str = "") -> str:
-    node = knowledge.nodes.get(node_id) if knowledge is not None else None
-    return node.title if node is not None else (fallback or node_id)
+def job_report(case: Mapping, knowledge=None, shop=None):
+    """The report model of a case (:func:`faultwise.report_model.build_report`)."""
+    from faultwise.report_model import build_report
 
-
-def _is_normal(knowledge, node_id: str, outcome: str) -> bool:
-    node = knowledge.nodes.get(node_id) if knowledge is not None else None
-    if node is not None and getattr(node, "normal", None):
-        return outcome == node.normal
-    return outcome == "normal"
-
-
-def _step(ev: Mapping, knowledge) -> ReportStep:
-    node = str(ev.get("node") or "")
-    outcome = str(ev.get("outcome") or "")
-    value = ev.get("value")
-    band = ev.get("band") if isinstance(ev.get("band"), dict) else None
-    number_value = float(value) if isinstance(value, (int, float)) and \
-        not isinstance(value, bool) else None
-    return ReportStep(int(ev.get("n") or 0), node, _title(knowledge, node),
-                      str(ev.get("raw") or ""), number_value, band, outcome,
-                      _is_normal(knowledge, node, outcome))
-
-
-def _stage_of(knowledge, node_id: str) -> str:
-    node = knowledge.nodes.get(node_id) if knowledge is not None else None
-    if node is not None:
-        return node.stage
-    head = node_id.split(".", 1)[0]
-    return head if head in STAGES else ""
-
-
-def stage_states(checks: tuple[ReportStep, ...], fault_stage: str, knowledge=None) -> dict:
-    """Stage -> ``fault`` (the conclusion's), ``cleared`` (a check there read normal) or
-    ``checked`` (checks there, none normal)."""
-    states: dict[str, str] = {}
-    for step in checks:
-        stage = _stage_of(knowledge, step.node)
-        if not stage:
-            continue
-        if step.normal:
-            states[stage] = "cleared"
-        else:
-            states.setdefault(stage, "checked")
-    if fault_stage:
-        states[fault_stage] = "fault"
-    return states
-
-
-def job_report(case: Mapping, knowledge=None) -> JobReport:
-    """The report's content from a case dict (DEVELOPERS.md, "Case file")."""
-    events = [e for e in case.get("events") or () if isinstance(e, dict)]
-    phase = lambda e: e.get("phase", "diagnose")  # noqa: E731
-    answers = [e for e in events if e.get("type") == "answer"]
-    checks = tuple(_step(e, knowledge) for e in answers if phase(e) == "diagnose")
-    after = tuple(_step(e, knowledge) for e in answers if phase(e) == "verify")
-    closing = tuple(_step(e, knowledge) for e in answers if phase(e) == "closing")
-    skipped = tuple((str(e.get("node") or ""), _title(knowledge, str(e.get("node") or "")),
-                     str(e.get("reason") or "")) for e in events if e.get("type") == "skip")
-    notes = tuple(str(e.get("text")) for e in events if e.get("type") == "note" and e.get("text"))
-    findings = [str(e.get("finding")) for e in events
-                if e.get("type") == "off-graph" and e.get("finding")]
-    off = case.get("off_graph")
-    off_text = "; ".join(findings) or (str(off.get("finding")) if isinstance(off, dict)
-                                       else str(off or ""))
-    conclusion = case.get("conclusion") if isinstance(case.get("conclusion"), dict) else {}
-    fault = str(conclusion.get("fault") or "")
-    node = knowledge.nodes.get(fault) if knowledge is not None and fault else None
-    fault_stage = str(conclusion.get("stage") or (node.stage if node is not None else "")
-                      or (_stage_of(None, fault) if fault else ""))
-    symptom = str(case.get("symptom") or "")
-    sym = knowledge.symptoms.get(symptom) if knowledge is not None else None
-    s = case.get("set") if isinstance(case.get("set"), dict) else {}
-    profile = s.get("profile") if isinstance(s.get("profile"), dict) else {}
-    family = str(case.get("family") or profile.get("family") or "")
-    if node is not None:
-        from faultwise.node_text import for_case_profile
-
-        node = for_case_profile(node, family, profile)
-    minutes = case.get("minutes")
-    return JobReport(
-        shop=SHOP, case_id=str(case.get("id") or ""), bench=str(case.get("bench") or ""),
-        customer=str(case.get("customer") or ""), opened=str(case.get("opened") or ""),
-        closed=str(case.get("closed") or ""), status=str(case.get("status") or ""),
-        set_label=str(profile.get("label") or s.get("source") or "(no set profile)"),
-        set_source=str(s.get("source") or ""), family=family,
-        complaint=str(case.get("complaint") or ""), symptom=symptom,
-        symptom_title=sym.title if sym is not None else "",
-        checks=checks, skipped=skipped, fault=fault,
-        fault_title=str(conclusion.get("title") or (node.title if node is not None else "")),
-        fault_stage=fault_stage, off_graph=off_text,
-        repair=tuple(node.repair) if node is not None else (),
-        parts=tuple(str(p) for p in case.get("parts") or ()),
-        after=after, leakage=closing, line_connected=family in LINE_FAMILIES,
-        minutes=float(minutes) if isinstance(minutes, (int, float)) and
-        not isinstance(minutes, bool) else None,
-        outcome=str(case.get("outcome") or ""), notes=notes,
-        stages=stage_states(checks, fault_stage, knowledge))
+    return build_report(case, knowledge, shop)
 
 
 # ------------------------------------------------------------------------ formatting
@@ -250,12 +106,6 @@ def when_text(iso: str) -> str:
     return t.strftime("%Y-%m-%d %H:%M") + zone
 
 
-def reading_text(step: ReportStep) -> str:
-    if step.value is not None and step.band and step.band.get("unit"):
-        return number(step.value, str(step.band["unit"]))
-    return step.raw
-
-
 def minutes_text(minutes: float | None) -> str:
     if minutes is None:
         return "not recorded"
@@ -263,78 +113,11 @@ def minutes_text(minutes: float | None) -> str:
     return f"{h} h {m:02d} min" if h else f"{m} min"
 
 
-def _md(text: str) -> str:
-    """Case text made safe inside a Markdown table cell or line (no control characters)."""
-    from faultwise.safe_text import one_line
+def job_report_markdown(r) -> str:
+    """The bench copy as Markdown (:func:`faultwise.report_render.bench_markdown`)."""
+    from faultwise.report_render import bench_markdown
 
-    return one_line(text).replace("\\", "\\\\").replace("|", "\\|") \
-        .replace("<", "&lt;").replace(">", "&gt;")
-
-
-def _step_table(steps: tuple[ReportStep, ...]) -> list[str]:
-    lines = ["| # | Check | Reading | Expected band (as recorded) | Result |",
-             "|---|---|---|---|---|"]
-    for s in steps:
-        result = s.outcome + ("" if s.normal else " (not normal)")
-        lines.append(f"| {s.n} | {_md(s.title)} (`{_md(s.node)}`) | {_md(reading_text(s))} | "
-                     f"{_md(band_text(s.band)) or 'observation'} | {_md(result)} |")
-    return lines
-
-
-def job_report_markdown(r: JobReport) -> str:
-    """The job report as Markdown: every section, in the order a customer reads it."""
-    out = [f"# Job report {r.case_id}", "",
-           f"**{r.shop}**, bench {_md(r.bench) or '-'}. Opened {_md(when_text(r.opened)) or '-'}, "
-           f"closed {_md(when_text(r.closed)) or 'not yet (' + _md(r.status) + ')'}.", "",
-           "## Set", "",
-           f"- Set: {_md(r.set_label)}",
-           f"- Family: {_md(r.family)}" + (" (line-connected)" if r.line_connected else ""),
-           f"- Profile: {_md(r.set_source) or '-'}",
-           f"- Customer: {_md(r.customer) or '-'}", "",
-           "## Complaint", "",
-           f"> {_md(r.complaint) or '(none recorded)'}", "",
-           f"Symptom: {_md(r.symptom_title or r.symptom)} (`{_md(r.symptom)}`)", "",
-           "## Checks", ""]
-    out += _step_table(r.checks) if r.checks else ["No checks recorded."]
-    if r.skipped:
-        out += ["", "Checks that could not be made:", ""]
-        out += [f"- {_md(t)} (`{_md(n)}`): {_md(reason) or 'no reason given'}"
-                for n, t, reason in r.skipped]
-    out += ["", "## Fault", ""]
-    if r.fault:
-        out.append(f"{_md(r.fault_title or r.fault)} (`{_md(r.fault)}`), "
-                   f"{_md(r.fault_stage)} stage.")
-    if r.off_graph:
-        out.append(f"Finding outside the decision graph: {_md(r.off_graph)}")
-    if not r.fault and not r.off_graph:
-        out.append("No fault concluded.")
-    out += ["", "## Repair", ""]
-    out += [f"{i}. {_md(step)}" for i, step in enumerate(r.repair, 1)] or \
-        ["Repair steps as the bench recorded them (see the parts and notes)."]
-    out += ["", "### Parts replaced", ""]
-    out += [f"- {_md(p)}" for p in r.parts] or ["None."]
-    out += ["", "## Readings after the repair", ""]
-    out += _step_table(r.after) if r.after else ["None recorded."]
-    out += ["", "## Leakage check", ""]
-    if not r.line_connected:
-        out.append(NOT_LINE_CONNECTED)
-    elif r.leakage:
-        out += _step_table(r.leakage)
-        passed = all(s.normal for s in r.leakage)
-        out += ["", "Result: " + ("passed." if passed else "NOT passed: the set must not go back "
-                                  "to its owner.")]
-    else:
-        out.append("NOT RECORDED: a line-connected set must pass the leakage check before it "
-                   "goes back to its owner.")
-    out += ["", "## Time and outcome", "",
-            f"- Time spent: {minutes_text(r.minutes)}",
-            f"- Outcome: {_md(r.outcome) or 'open'}"]
-    if r.notes:
-        out += ["", "## Notes", ""] + [f"- {_md(n)}" for n in r.notes]
-    out += ["", "## Safety", "", SAFETY_STATEMENT]
-    if r.line_connected:
-        out += ["", LEAKAGE_STATEMENT]
-    return "\n".join(out) + "\n"
+    return bench_markdown(r)
 
 
 # ------------------------------------------------------------------- review as text

@@ -1,4 +1,5 @@
-"""Self-contained printable HTML for the job report and the shop review.
+"""Self-contained printable HTML for the shop review (and the job report's entry point; its
+templates are rendered by :mod:`faultwise.report_render`).
 
 One file each: inline CSS and inline SVG, no scripts, no links, no fonts or images from
 anywhere (nothing in the page names a URL). Every piece of case text goes through
@@ -9,9 +10,8 @@ from __future__ import annotations
 
 from html import escape
 
-from faultwise.report import (LEAKAGE_STATEMENT, NOT_LINE_CONNECTED, SAFETY_STATEMENT, JobReport,
-                              ReportStep, band_text, minutes_text, reading_text, when_text)
-from faultwise.svg import bar_chart_svg, column_chart_svg, stage_map_svg
+from faultwise.report import SAFETY_STATEMENT
+from faultwise.svg import bar_chart_svg, column_chart_svg
 
 CSS = """
 body { font-family: sans-serif; color: #1d1d1d; margin: 24px auto; max-width: 900px;
@@ -48,77 +48,11 @@ def _e(text) -> str:
     return escape(shown_text(text))
 
 
-def _steps_table(steps: tuple[ReportStep, ...]) -> str:
-    rows = ["<table><tr><th>#</th><th>Check</th><th>Reading</th>"
-            "<th>Expected band (as recorded)</th><th>Result</th></tr>"]
-    for s in steps:
-        cls = "ok" if s.normal else "bad"
-        rows.append(f"<tr><td class=\"num\">{s.n}</td><td>{_e(s.title)}<br><code>{_e(s.node)}"
-                    f"</code></td><td>{_e(reading_text(s))}</td>"
-                    f"<td>{_e(band_text(s.band) or 'observation')}</td>"
-                    f"<td class=\"{cls}\">{_e(s.outcome)}</td></tr>")
-    rows.append("</table>")
-    return "".join(rows)
+def job_report_html(r) -> str:
+    """The bench copy as one printable page (:func:`faultwise.report_render.bench_html`)."""
+    from faultwise.report_render import bench_html
 
-
-def job_report_html(r: JobReport) -> str:
-    """The job report as one printable page with the receiver's stage map."""
-    closed = _e(when_text(r.closed)) if r.closed else f"not yet ({_e(r.status)})"
-    b = [f"<h1>Job report {_e(r.case_id)}</h1>",
-         f"<div class=\"shop\">{_e(r.shop)}</div>",
-         f"<div class=\"meta\">Bench {_e(r.bench or '-')} &middot; opened "
-         f"{_e(when_text(r.opened) or '-')} &middot; closed {closed}</div>",
-         "<h2>Set</h2><table>",
-         f"<tr><th>Set</th><td>{_e(r.set_label)}</td></tr>",
-         f"<tr><th>Family</th><td>{_e(r.family)}"
-         f"{' (line-connected)' if r.line_connected else ''}</td></tr>",
-         f"<tr><th>Profile</th><td>{_e(r.set_source or '-')}</td></tr>",
-         f"<tr><th>Customer</th><td>{_e(r.customer or '-')}</td></tr></table>",
-         "<h2>Complaint</h2>",
-         f"<blockquote>{_e(r.complaint or '(none recorded)')}</blockquote>",
-         f"<p>Symptom: {_e(r.symptom_title or r.symptom)} <code>{_e(r.symptom)}</code></p>",
-         "<h2>Stage map</h2>", stage_map_svg(dict(r.stages), f"Stage map of case {r.case_id}"),
-         "<h2>Checks</h2>",
-         _steps_table(r.checks) if r.checks else "<p>No checks recorded.</p>"]
-    if r.skipped:
-        b.append("<p>Checks that could not be made:</p><ul>" + "".join(
-            f"<li>{_e(t)} <code>{_e(n)}</code>: {_e(reason or 'no reason given')}</li>"
-            for n, t, reason in r.skipped) + "</ul>")
-    b.append("<h2>Fault</h2>")
-    if r.fault:
-        b.append(f"<p class=\"bad\">{_e(r.fault_title or r.fault)}</p>"
-                 f"<p><code>{_e(r.fault)}</code>, {_e(r.fault_stage)} stage</p>")
-    if r.off_graph:
-        b.append(f"<p>Finding outside the decision graph: {_e(r.off_graph)}</p>")
-    if not r.fault and not r.off_graph:
-        b.append("<p>No fault concluded.</p>")
-    b.append("<h2>Repair</h2>")
-    b.append("<ol>" + "".join(f"<li>{_e(s)}</li>" for s in r.repair) + "</ol>" if r.repair
-             else "<p>Repair steps as the bench recorded them (see the parts and notes).</p>")
-    b.append("<h3>Parts replaced</h3>")
-    b.append("<ul>" + "".join(f"<li>{_e(p)}</li>" for p in r.parts) + "</ul>" if r.parts
-             else "<p>None.</p>")
-    b.append("<h2>Readings after the repair</h2>")
-    b.append(_steps_table(r.after) if r.after else "<p>None recorded.</p>")
-    b.append("<h2>Leakage check</h2>")
-    if not r.line_connected:
-        b.append(f"<p>{_e(NOT_LINE_CONNECTED)}</p>")
-    elif r.leakage:
-        passed = all(s.normal for s in r.leakage)
-        b.append(_steps_table(r.leakage))
-        b.append("<p class=\"ok\">Result: passed.</p>" if passed else
-                 "<p class=\"bad\">Result: NOT passed: the set must not go back to its owner.</p>")
-    else:
-        b.append("<p class=\"bad\">NOT RECORDED: a line-connected set must pass the leakage "
-                 "check before it goes back to its owner.</p>")
-    b += ["<h2>Time and outcome</h2><table>",
-          f"<tr><th>Time spent</th><td>{_e(minutes_text(r.minutes))}</td></tr>",
-          f"<tr><th>Outcome</th><td>{_e(r.outcome or 'open')}</td></tr></table>"]
-    if r.notes:
-        b.append("<h2>Notes</h2><ul>" + "".join(f"<li>{_e(n)}</li>" for n in r.notes) + "</ul>")
-    b.append(f"<h2>Safety</h2><div class=\"safety\"><p>{_e(SAFETY_STATEMENT)}</p>"
-             + (f"<p>{_e(LEAKAGE_STATEMENT)}</p>" if r.line_connected else "") + "</div>")
-    return _page(f"Job report {r.case_id}", b)
+    return bench_html(r)
 
 
 def _pct(x) -> str:
@@ -129,10 +63,11 @@ def _num(x, digits: int = 1) -> str:
     return "-" if x is None else f"{x:.{digits}f}"
 
 
-def review_html(review, shop: str = "Larkspur Lane Radio Works") -> str:
-    """The shop review as one printable page with inline SVG charts."""
+def review_html(review, shop: str = "") -> str:
+    """The shop review as one printable page with inline SVG charts; ``shop``: the configured
+    shop name (none shown when empty)."""
     since = f" since {_e(review.since)}" if review.since else ""
-    b = [f"<h1>Shop review</h1><div class=\"shop\">{_e(shop)}</div>",
+    b = ["<h1>Shop review</h1>" + (f"<div class=\"shop\">{_e(shop)}</div>" if shop else ""),
          f"<p class=\"meta\">{review.cases} closed cases{since}; "
          f"{len(review.damaged)} damaged file(s).</p>"]
     if review.damaged:

@@ -4,6 +4,16 @@ Resolution order for each folder: the command-line option, then the environment
 (``FAULTWISE_KNOWLEDGE``, ``FAULTWISE_CASES``, ``FAULTWISE_BENCH``), then a ``faultwise.yaml``
 in the current folder (keys ``knowledge``, ``cases``, ``bench``), then the default: the
 bundled knowledge, ``./cases`` and bench ``B1``.
+
+The shop that prints the reports comes only from ``faultwise.yaml`` (no default: a report
+shows no shop name when it is unset)::
+
+    shop:
+      name: Larkspur Lane Radio Works           # one line
+      contact: 14 Larkspur Lane, tel. 0100 555 0199   # may span lines
+      terms: Parts and labour are guaranteed for 90 days.   # printed on the customer copy
+
+Every key is optional. A wrong key or value is a located error (file, line, key).
 """
 
 from __future__ import annotations
@@ -15,6 +25,9 @@ from pathlib import Path
 from faultwise.errors import FaultwiseError
 
 CONFIG_NAME = "faultwise.yaml"
+CONFIG_KEYS = ("knowledge", "cases", "bench", "shop")
+SHOP_KEYS = ("name", "contact", "terms")
+SHOP_LIMITS = {"name": 80, "contact": 300, "terms": 1200}   # characters; the page must hold them
 
 
 def bundled_knowledge_dir() -> Path:
@@ -25,10 +38,20 @@ def bundled_knowledge_dir() -> Path:
 
 
 @dataclass(frozen=True)
+class Shop:
+    """The shop named on the reports (``faultwise.yaml``, key ``shop``); empty when unset."""
+
+    name: str = ""
+    contact: str = ""
+    terms: str = ""
+
+
+@dataclass(frozen=True)
 class Workspace:
     knowledge_dir: Path
     cases_dir: Path
     bench: str
+    shop: Shop = Shop()
 
     @property
     def sets_dir(self) -> Path:
@@ -40,18 +63,66 @@ def _config(cwd: Path) -> dict:
     path = cwd / CONFIG_NAME
     if not path.is_file():
         return {}
-    from faultwise.yamlload import load_yaml_file
+    from faultwise.yamlload import line_of, load_yaml_file
 
     data = load_yaml_file(path)
+    if data is None:
+        return {}
     if not isinstance(data, dict):
         raise FaultwiseError("the config file must be a mapping", file=str(path),
-                             hint="write keys knowledge, cases and bench")
-    unknown = set(data) - {"knowledge", "cases", "bench"}
+                             hint="write keys " + ", ".join(CONFIG_KEYS))
+    unknown = sorted(str(k) for k in set(data) - set(CONFIG_KEYS))
     if unknown:
-        key = sorted(unknown)[0]
-        raise FaultwiseError("unknown key in the config file", file=str(path), key=key,
-                             hint="use only knowledge, cases and bench")
+        key = unknown[0]
+        raise FaultwiseError("unknown key in the config file", file=str(path),
+                             line=line_of(data, key), key=key,
+                             hint="use only " + ", ".join(CONFIG_KEYS))
+    for key in ("knowledge", "cases", "bench"):
+        value = data.get(key)
+        if value is not None and not isinstance(value, str):
+            raise FaultwiseError(f"'{key}' must be a text", file=str(path),
+                                 line=line_of(data, key), key=key,
+                                 hint="write a folder path or a bench name")
     return data
+
+
+def _text(value, key: str, path: Path, line: int | None) -> str:
+    """A shop field as text: strings and plain numbers (a phone number) are accepted."""
+    if isinstance(value, bool) or not isinstance(value, (str, int, float)):
+        raise FaultwiseError(f"'shop.{key}' must be a text", file=str(path), line=line,
+                             key=f"shop.{key}", hint="write it as one line of text, quoted "
+                             "if it holds a colon")
+    text = str(value).strip()
+    if key == "name" and "\n" in text:
+        raise FaultwiseError("the shop name must be one line", file=str(path), line=line,
+                             key="shop.name", hint="put the address under 'contact'")
+    if len(text) > SHOP_LIMITS[key]:
+        raise FaultwiseError(f"'shop.{key}' is too long ({len(text)} characters, at most "
+                             f"{SHOP_LIMITS[key]})", file=str(path), line=line,
+                             key=f"shop.{key}", hint="shorten it so the report fits its page")
+    return text
+
+
+def shop_from_config(conf: dict, cwd: Path) -> Shop:
+    """The ``shop`` mapping of the config file; FaultwiseError (file, line, key) when wrong."""
+    raw = conf.get("shop")
+    if raw is None:
+        return Shop()
+    from faultwise.yamlload import line_of
+
+    path = cwd / CONFIG_NAME
+    if not isinstance(raw, dict):
+        raise FaultwiseError("'shop' must be a mapping", file=str(path),
+                             line=line_of(conf, "shop"), key="shop",
+                             hint="write name, contact and terms under it")
+    unknown = sorted(str(k) for k in set(raw) - set(SHOP_KEYS))
+    if unknown:
+        raise FaultwiseError("unknown key under 'shop'", file=str(path),
+                             line=line_of(raw, unknown[0]), key=f"shop.{unknown[0]}",
+                             hint="use only " + ", ".join(SHOP_KEYS))
+    fields = {key: _text(raw[key], key, path, line_of(raw, key))
+              for key in SHOP_KEYS if raw.get(key) is not None}
+    return Shop(**fields)
 
 
 def resolve_workspace(knowledge: str | os.PathLike | None = None,
@@ -61,10 +132,7 @@ def resolve_workspace(knowledge: str | os.PathLike | None = None,
     """Pick the knowledge folder, cases folder and bench name for this run."""
     cwd = Path.cwd() if cwd is None else cwd
     env = os.environ
-    need_config = knowledge is None and "FAULTWISE_KNOWLEDGE" not in env or \
-        cases is None and "FAULTWISE_CASES" not in env or \
-        bench is None and "FAULTWISE_BENCH" not in env
-    conf = _config(cwd) if need_config else {}
+    conf = _config(cwd)          # always read: the shop is named only there
     k = knowledge or env.get("FAULTWISE_KNOWLEDGE") or conf.get("knowledge")
     c = cases or env.get("FAULTWISE_CASES") or conf.get("cases") or "cases"
     b = bench or env.get("FAULTWISE_BENCH") or conf.get("bench") or "B1"
@@ -80,7 +148,8 @@ def resolve_workspace(knowledge: str | os.PathLike | None = None,
     if not kdir.is_dir():
         raise FaultwiseError("the knowledge folder does not exist", file=str(kdir),
                              hint="pass --knowledge with a folder that holds symptoms.yaml and graph/")
-    return Workspace(knowledge_dir=kdir, cases_dir=cdir, bench=str(b))
+    return Workspace(knowledge_dir=kdir, cases_dir=cdir, bench=str(b),
+                     shop=shop_from_config(conf, cwd))
 
 
 def workspace_from_args(args) -> Workspace:

@@ -101,7 +101,7 @@ def run(args: argparse.Namespace) -> int:
         from faultwise.report_html import review_html
 
         try:
-            Path(args.html).write_text(review_html(review), encoding="utf-8")
+            Path(args.html).write_text(review_html(review, ws.shop.name), encoding="utf-8")
         except OSError as exc:
             raise FaultwiseError(f"cannot write the HTML review ({exc.strerror})",
                                  file=args.html, hint="choose a writable path") from None
