@@ -12,7 +12,7 @@ from __future__ import annotations
 from datetime import datetime, timedelta, timezone
 from pathlib import Path
 
-from faultwise.workspace import Shop, bundled_knowledge_dir
+from faultwise.core.workspace import Shop, bundled_knowledge_dir
 
 SET_FILE = "demo-230v-transformer.yaml"
 FAULT = "supply.open-second-filter-cap"
@@ -50,7 +50,7 @@ def _answer(walk, answers: dict) -> str:
     if check.expect is not None:
         typed = READINGS.get(check.expect)
         if typed is None:                       # not in the plan: the nominal, as typed
-            from faultwise.units import format_reading
+            from faultwise.core.units import format_reading
 
             typed = format_reading(prompt.expected.nominal, prompt.expected.unit)
         walk.answer(typed)

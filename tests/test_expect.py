@@ -10,17 +10,9 @@ from pathlib import Path
 
 import pytest
 
-from faultwise.expect import STAGES, Expected, expect, expectation_names
-from faultwise.profile import (
-    TRANSISTOR_ROLES,
-    TUBE_ROLES,
-    Audio,
-    Bias,
-    Profile,
-    Supply,
-    Transistor,
-    Tube,
-)
+from faultwise.expect.expected import STAGES, Expected, expect, expectation_names
+from faultwise.profile.model import (TRANSISTOR_ROLES, TUBE_ROLES, Audio, Bias, Profile, Supply,
+                                     Transistor, Tube)
 
 ROOT = Path(__file__).resolve().parents[1]
 SETS = ROOT / "knowledge" / "sets"
@@ -195,7 +187,7 @@ def test_bands_move_with_the_profile():
 
 
 def test_impossible_supply_is_a_located_profile_error():
-    from faultwise.errors import ProfileError
+    from faultwise.core.errors import ProfileError
 
     p = series_string(supply=replace(series_string().supply, load_ma=900, filter_load_ma=100),
                       source="bad.yaml")
@@ -211,7 +203,7 @@ def _demo_sets() -> list[Path]:
 
 
 def test_demo_sets_produce_their_familys_names():
-    from faultwise.profile import load_profile
+    from faultwise.profile.load import load_profile
 
     sets = _demo_sets()
     assert len(sets) >= 10, "the bundled knowledge ships ten demo sets"

@@ -10,11 +10,11 @@ from __future__ import annotations
 from tests.test_lint import KB as KB_SMALL
 from tests.test_lint import broken, line_of, names, only
 
-from faultwise.graph import load_knowledge
-from faultwise.lint import lint
-from faultwise.lint_text import family_word_hits
-from faultwise.node_text import with_family
-from faultwise.workspace import bundled_knowledge_dir
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.graph.lint import lint
+from faultwise.graph.lint_text import family_word_hits
+from faultwise.graph.node_text import with_family
+from faultwise.core.workspace import bundled_knowledge_dir
 
 
 def test_family_word_in_a_shared_node_is_a_located_error(tmp_path):
@@ -67,9 +67,9 @@ def test_shipped_knowledge_shows_no_family_word_to_another_family():
 
 
 def test_walk_shows_the_family_variant():
-    from faultwise.expect import expect
-    from faultwise.profile import load_profile
-    from faultwise.walk import Walk
+    from faultwise.expect.expected import expect
+    from faultwise.profile.load import load_profile
+    from faultwise.walk.state import Walk
 
     k = load_knowledge(bundled_knowledge_dir())
     node = k.nodes["supply.first-cap-ohms"]

@@ -16,12 +16,12 @@ from pathlib import Path
 import pytest
 
 from faultwise.calc.ratings import ELECTROLYTIC_RATINGS_V, filter_cap_rating, next_rating_v
-from faultwise.expect import expect
-from faultwise.graph import load_knowledge
-from faultwise.node_text import fill, for_set
-from faultwise.profile import load_profile
-from faultwise.walk import auto_walk
-from faultwise.workspace import bundled_knowledge_dir
+from faultwise.expect.expected import expect
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.graph.node_text import fill, for_set
+from faultwise.profile.load import load_profile
+from faultwise.walk.state import auto_walk
+from faultwise.core.workspace import bundled_knowledge_dir
 
 KNOWLEDGE = bundled_knowledge_dir()
 SETS = sorted((KNOWLEDGE / "sets").glob("*.yaml"))
@@ -96,8 +96,8 @@ def test_repair_step_of_the_walk_shows_the_rating_for_this_set():
 
 
 def test_job_report_repair_steps_show_the_rating_for_the_case_set():
-    from faultwise.profile import profile_to_dict
-    from faultwise.report import job_report
+    from faultwise.profile.model import profile_to_dict
+    from faultwise.report.job import job_report
 
     k = load_knowledge(KNOWLEDGE)
     profile = profile_to_dict(load_profile(KNOWLEDGE / "sets" / "demo-6v-console.yaml"))

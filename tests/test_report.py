@@ -15,10 +15,10 @@ from pathlib import Path
 
 import pytest
 
-from faultwise.graph import load_knowledge
-from faultwise.report import job_report, job_report_markdown
-from faultwise.report_html import job_report_html, review_html
-from faultwise.review import review_folder
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.report.job import job_report, job_report_markdown
+from faultwise.report.html_report import job_report_html, review_html
+from faultwise.shop.review import review_folder
 from review_case_factory import make_case, write_case
 
 KB = Path(__file__).parent / "fixtures" / "kb_review"
@@ -52,7 +52,7 @@ def knowledge():
 
 
 def test_markdown_has_every_section(knowledge):
-    from faultwise.workspace import Shop
+    from faultwise.core.workspace import Shop
 
     md = job_report_markdown(job_report(full_case(), knowledge,
                                         Shop(name="Larkspur Lane Radio Works")))

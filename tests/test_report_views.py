@@ -20,8 +20,8 @@ import pytest
 
 from faultwise.graph import load_knowledge
 from faultwise.report import job_report, read_case
-from faultwise.report_render import bench_html, bench_markdown, customer_html, customer_markdown
-from faultwise.workspace import Shop, bundled_knowledge_dir
+from faultwise.report.render import bench_html, bench_markdown, customer_html, customer_markdown
+from faultwise.core.workspace import Shop, bundled_knowledge_dir
 from report_example_job import FAULT, PARTS, SHOP, walk_example_job
 
 
@@ -135,7 +135,7 @@ def test_bench_copy_steps_run_one_to_n_in_walk_order(job, knowledge, report):
 def test_bench_copy_band_is_the_one_recorded(job, report):
     event = next(e for e in job[1]["events"] if e.get("node") == "supply.hum-ripple")
     step = next(s for s in report.steps if s.node == "supply.hum-ripple")
-    from faultwise.units import format_reading
+    from faultwise.core.units import format_reading
 
     assert step.band.startswith(f"{format_reading(event['band']['low'], 'Vpp')} to "
                                 f"{format_reading(event['band']['high'], 'Vpp')}")

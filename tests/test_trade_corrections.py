@@ -19,12 +19,12 @@ import re
 import numpy as np
 import pytest
 
-from faultwise.expect import expect
-from faultwise.expect_meter import averaging_meter_reads, true_rms_meter_reads
-from faultwise.graph import load_knowledge
-from faultwise.profile import load_profile
-from faultwise.walk import Walk, auto_answer
-from faultwise.workspace import bundled_knowledge_dir
+from faultwise.expect.expected import expect
+from faultwise.expect.meter import averaging_meter_reads, true_rms_meter_reads
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.profile.load import load_profile
+from faultwise.walk.state import Walk, auto_answer
+from faultwise.core.workspace import bundled_knowledge_dir
 
 KNOWLEDGE = bundled_knowledge_dir()
 SETS = KNOWLEDGE / "sets"
@@ -149,7 +149,7 @@ def test_coverage_200_faults_and_10_per_stage_per_family(k):
     """The review's bar (common practice for a useful bench graph, no source)."""
     from collections import Counter
 
-    from faultwise.nodes import FAMILIES, STAGES, Fault
+    from faultwise.graph.nodes import FAMILIES, STAGES, Fault
 
     faults = [n for n in k.nodes.values() if isinstance(n, Fault)]
     assert len(faults) >= 200

@@ -1,4 +1,4 @@
-"""The reading parser and formatter (faultwise.units).
+"""The reading parser and formatter (faultwise.core.units).
 
 Outside references: SI prefixes (BIPM SI Brochure: p 1e-12, n 1e-9, µ 1e-6, m 1e-3,
 k 1e3, M 1e6), the IEC 60062 letter code (REFERENCES "Preferred values and marking codes",
@@ -14,8 +14,8 @@ from decimal import Decimal
 import pytest
 from hypothesis import given, settings, strategies as st
 
-from faultwise.errors import FaultwiseError, InputError
-from faultwise.units import convert, dimension_of, format_reading, parse_reading
+from faultwise.core.errors import FaultwiseError, InputError
+from faultwise.core.units import convert, dimension_of, format_reading, parse_reading
 
 TARGETS = ["V", "mV", "kV", "Vpp", "A", "mA", "uA", "ohm", "kohm", "Mohm", "F", "uF", "nF",
            "pF", "H", "mH", "uH", "Hz", "kHz", "MHz", "W", "s", "ms", "us", "m", "ratio"]

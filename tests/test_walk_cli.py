@@ -122,8 +122,8 @@ def test_walk_shipped_knowledge_end_to_end(tmp_path):
     answers file, walks to that fault (whatever the shipped content holds)."""
     import yaml
 
-    from faultwise.graph import load_knowledge
-    from faultwise.workspace import bundled_knowledge_dir
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.core.workspace import bundled_knowledge_dir
 
     kb = load_knowledge(bundled_knowledge_dir())
     faults = sorted(kb.faults_for("dead-lights-on", "series-string"))

@@ -12,8 +12,8 @@ from pathlib import Path
 
 import pytest
 
-from faultwise.errors import FaultwiseError
-from faultwise.workspace import Shop, resolve_workspace
+from faultwise.core.errors import FaultwiseError
+from faultwise.core.workspace import Shop, resolve_workspace
 
 KB = Path(__file__).parent / "fixtures" / "kb_review"
 

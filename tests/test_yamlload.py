@@ -1,4 +1,4 @@
-"""Safe YAML loading for files people write (faultwise.yamlload).
+"""Safe YAML loading for files people write (faultwise.core.yamlload).
 
 Outside reference: the YAML 1.1 behaviour of PyYAML's safe loader (tags, anchors and
 aliases, merge keys), which the loader narrows to plain data with line numbers.
@@ -10,10 +10,9 @@ import pytest
 import yaml
 from hypothesis import given, settings, strategies as st
 
-from faultwise.errors import FaultwiseError
-from faultwise.yamlload import (
-    MAX_BYTES, MAX_DEPTH, LineDict, LineList, line_of, load_yaml_file, load_yaml_text,
-)
+from faultwise.core.errors import FaultwiseError
+from faultwise.core.yamlload import (MAX_BYTES, MAX_DEPTH, LineDict, LineList, line_of,
+                                     load_yaml_file, load_yaml_text)
 
 
 def test_plain_data_with_lines():

@@ -8,7 +8,7 @@ from pathlib import Path
 
 
 def register(subparsers) -> None:
-    from faultwise.cli import add_workspace_options
+    from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser("replay", help="re-walk cases against the current knowledge",
                               description="Give each recorded case's answers to the current "
@@ -22,8 +22,8 @@ def register(subparsers) -> None:
 
 
 def _targets(given: list[str], folder: Path) -> list[Path]:
-    from faultwise.cases import case_path
-    from faultwise.errors import CaseError
+    from faultwise.cases.store import case_path
+    from faultwise.core.errors import CaseError
 
     out = []
     for item in given:
@@ -43,9 +43,9 @@ def _targets(given: list[str], folder: Path) -> list[Path]:
 
 
 def run(args: argparse.Namespace) -> int:
-    from faultwise.graph import load_knowledge
-    from faultwise.replay import case_files, replay_files
-    from faultwise.workspace import workspace_from_args
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.shop.replay import case_files, replay_files
+    from faultwise.core.workspace import workspace_from_args
 
     ws = workspace_from_args(args)
     knowledge = load_knowledge(ws.knowledge_dir)

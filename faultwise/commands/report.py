@@ -1,6 +1,6 @@
 """``faultwise report CASE [--customer] [--html FILE]``: the job report for one case.
 
-Two views of one report model (:mod:`faultwise.report_model`): the bench copy (default) and
+Two views of one report model (:mod:`faultwise.report.model`): the bench copy (default) and
 the customer copy (``--customer``), each as Markdown on stdout or printable HTML in FILE.
 The shop's name, contact and terms come from ``faultwise.yaml`` (none shown when unset).
 """
@@ -12,7 +12,7 @@ import sys
 
 
 def register(subparsers) -> None:
-    from faultwise.cli import add_workspace_options
+    from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser(
         "report", help="the job report for one case",
@@ -33,11 +33,11 @@ def register(subparsers) -> None:
 def run(args: argparse.Namespace) -> int:
     from pathlib import Path
 
-    from faultwise.errors import FaultwiseError, KnowledgeError
-    from faultwise.report import find_case, job_report, read_case
-    from faultwise.report_render import (bench_html, bench_markdown, customer_html,
+    from faultwise.core.errors import FaultwiseError, KnowledgeError
+    from faultwise.report.job import find_case, job_report, read_case
+    from faultwise.report.render import (bench_html, bench_markdown, customer_html,
                                          customer_markdown)
-    from faultwise.workspace import workspace_from_args
+    from faultwise.core.workspace import workspace_from_args
 
     ws = workspace_from_args(args)
     case = read_case(find_case(args.case, ws.cases_dir))

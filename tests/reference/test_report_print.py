@@ -26,8 +26,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 from faultwise.graph import load_knowledge  # noqa: E402
 from faultwise.report import job_report, read_case  # noqa: E402
-from faultwise.report_render import bench_html, customer_html  # noqa: E402
-from faultwise.workspace import bundled_knowledge_dir  # noqa: E402
+from faultwise.report.render import bench_html, customer_html  # noqa: E402
+from faultwise.core.workspace import bundled_knowledge_dir  # noqa: E402
 from report_example_job import PARTS, SHOP, walk_example_job  # noqa: E402
 from .test_report_chromium import CHROMIUM, png_pixels  # noqa: E402
 

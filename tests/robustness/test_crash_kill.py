@@ -29,8 +29,8 @@ import pytest
 
 from rb_helpers import PY, TUI_KB, H, clock, run_script
 
-from faultwise.cases import CaseStore, read_case_bytes
-from faultwise.walk import Walk, walk_from_case
+from faultwise.cases.store import CaseStore, read_case_bytes
+from faultwise.walk.state import Walk, walk_from_case
 
 CHILD = str(Path(__file__).with_name("kill_child.py"))
 KILL_RUNS = int(os.environ.get("FAULTWISE_KILL_RUNS", "4"))
@@ -218,9 +218,9 @@ def test_tui_killed_mid_walk_reopens_at_the_last_answer(tmp_path, kill):
     """The installed `faultwise` in a real terminal, on a cases folder whose path has spaces
     and non-ASCII letters: answer checks with send-keys, kill it, check the file, start it
     again and resume: the screen shows the check after the last answer."""
-    from faultwise.expect import expect
-    from faultwise.graph import load_knowledge
-    from faultwise.profile import load_profile
+    from faultwise.expect.expected import expect
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.profile.load import load_profile
 
     kb = tmp_path / "knowledge"
     shutil.copytree(TUI_KB, kb)

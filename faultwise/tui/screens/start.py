@@ -226,7 +226,7 @@ class StartScreen(Screen):
 
     def resume(self, case_id: str) -> None:
         """Open the case for writing (takes the lock) and continue its walk."""
-        from faultwise.errors import FaultwiseError
+        from faultwise.core.errors import FaultwiseError
         from faultwise.tui.screens.walk import WalkScreen, open_walk
 
         try:
