@@ -23,8 +23,9 @@ def register(subparsers) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from faultwise.expect.expected import expect
+    from faultwise.expect.expected import expect_in_workspace
     from faultwise.profile.load import load_profile
+    from faultwise.profile.tubes import workspace_tube_dir
     from faultwise.profile.model import profile_to_dict
 
     knowledge = None
@@ -32,13 +33,8 @@ def run(args: argparse.Namespace) -> int:
         from faultwise.core.workspace import resolve_workspace
 
         knowledge = resolve_workspace(args.knowledge).knowledge_dir
-    profile = load_profile(args.profile, knowledge_dir=knowledge)
-    table = None
-    if knowledge is not None:
-        from faultwise.profile.tubes import load_tube_table
-
-        table = load_tube_table(knowledge)
-    expectations = expect(profile, tube_table=table)
+    profile = load_profile(args.profile, knowledge_dir=workspace_tube_dir(knowledge))
+    expectations = expect_in_workspace(profile, knowledge)
     if args.json:
         doc = {"profile": profile_to_dict(profile),
                "expectations": {name: _json_entry(e) for name, e in expectations.items()}}

@@ -849,12 +849,21 @@ def resolve_choice(text: str, choices: tuple[tuple[str, str], ...], node: str | 
     raise InputError(f"'{typed}' {what}", node=node, hint=f"type one of: {listing}")
 
 
-def walk_from_case(knowledge, data: Mapping, **kwargs) -> Walk:
-    """Rebuild the walk recorded in a case file's data (profile copied into the case)."""
+def walk_from_case(knowledge, data: Mapping, *, knowledge_dir=None, **kwargs) -> Walk:
+    """Rebuild the walk recorded in a case file's data (profile copied into the case).
+
+    ``knowledge_dir``: the workspace's knowledge, whose own tube table (if any) the
+    expectations use, as when the case was started.
+    """
+    from faultwise.expect.expected import expect_in_workspace
     from faultwise.profile.load import profile_from_dict
+    from faultwise.profile.tubes import workspace_tube_dir
 
     s = data.get("set") or {}
-    profile = profile_from_dict(s.get("profile") or {}, s.get("source") or str(data.get("id")))
+    profile = profile_from_dict(s.get("profile") or {}, s.get("source") or str(data.get("id")),
+                                knowledge_dir=workspace_tube_dir(knowledge_dir))
+    if "expectations" not in kwargs:
+        kwargs["expectations"] = expect_in_workspace(profile, knowledge_dir)
     return Walk.from_events(knowledge, profile, data.get("symptom"), data.get("events") or [],
                             **kwargs)
 
