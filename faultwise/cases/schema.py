@@ -11,8 +11,8 @@ from __future__ import annotations
 import math
 from typing import Any, Mapping
 
-EVENT_TYPES = ("answer", "skip", "parts", "off-graph", "resume", "to-closing", "note",
-               "acknowledge", "close", "reopen")
+from faultwise.core.vocabulary import EVENT_TYPES
+
 _TEXT, _NUMBER, _FLAG, _LIST_OF_TEXT, _MAP = "text", "number", "flag", "list of text", "mapping"
 
 TOP = {"id": _TEXT, "bench": _TEXT, "status": _TEXT, "opened": _TEXT, "updated": _TEXT,

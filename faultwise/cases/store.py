@@ -89,8 +89,14 @@ class CaseSummary:
 
 @dataclass(frozen=True)
 class DamagedFile:
-    path: Path
+    """A case file that could not be read (listing, index, review); left exactly as it is."""
+
+    file: str                 # the path as found, or the name inside the cases folder
     reason: str
+
+    @property
+    def path(self) -> Path:
+        return Path(self.file)
 
 
 @dataclass(frozen=True)
@@ -434,10 +440,10 @@ class CaseStore:
             try:
                 data = read_case_bytes(path.read_bytes(), path)
             except DamagedCaseError as exc:
-                damaged.append(DamagedFile(path, exc.reason))
+                damaged.append(DamagedFile(str(path), exc.reason))
                 continue
             except OSError as exc:
-                damaged.append(DamagedFile(path, f"unreadable ({exc.strerror or exc})"))
+                damaged.append(DamagedFile(str(path), f"unreadable ({exc.strerror or exc})"))
                 continue
             summary = self._summary(path, data)
             (closed if summary.status == "closed" else opened).append(summary)

@@ -14,12 +14,12 @@ oscillator activity) and ``expect_tuning`` (tuning, antenna); they share
 
 from __future__ import annotations
 
+from faultwise.core.vocabulary import STAGES
 from faultwise.expect.context import Expected
 
 
 __all__ = ["Expected", "STAGES", "expectation_names", "expect", "expect_in_workspace"]
 
-STAGES = ("supply", "audio", "detector", "if", "oscillator", "antenna")
 
 
 def _tube_roles() -> tuple[str, ...]:

@@ -10,8 +10,8 @@ from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Mapping, Union
 
-STAGES = ("supply", "audio", "detector", "if", "oscillator", "antenna")
-FAMILIES = ("series-string", "transformer", "transistor")
+from faultwise.core.vocabulary import FAMILIES, STAGES as STAGES  # re-exported
+
 MEASURE_OUTCOMES = ("normal", "low", "high", "absent")
 CLEARED = "cleared"          # route target: this investigation found nothing, try the next
 SPECIAL_TARGETS = (CLEARED,)

@@ -17,11 +17,10 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Mapping
 
-from faultwise.graph.nodes import STAGES
+from faultwise.core.vocabulary import LINE_FAMILIES, STAGES
 from faultwise.core.workspace import Shop
 
-MAINS_FAMILIES = ("series-string", "transformer")
-LINE_FAMILIES = MAINS_FAMILIES          # older name: sets that get the leakage check
+MAINS_FAMILIES = LINE_FAMILIES          # sets that get the leakage check
 # The bench copy says what the family means for the bench; the customer copy says what
 # kind of set it is, in words that do not alarm (a transformer set's chassis is not live).
 FAMILY_BENCH = {

@@ -31,6 +31,7 @@ from dataclasses import dataclass
 from datetime import date
 from typing import Iterable, Mapping
 
+from faultwise.cases.store import DamagedFile
 from faultwise.cases.summary import pairs
 from faultwise.core.errors import FaultwiseError, KnowledgeError
 
@@ -136,12 +137,6 @@ class MonthMinutes:
     month: str                          # YYYY-MM of the close
     jobs: int
     mean_minutes: float
-
-
-@dataclass(frozen=True)
-class DamagedFile:
-    file: str
-    reason: str
 
 
 @dataclass(frozen=True)

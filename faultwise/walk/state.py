@@ -34,13 +34,12 @@ from dataclasses import dataclass, field
 from datetime import UTC, datetime
 
 from faultwise.core.errors import InputError, KnowledgeError, WalkError
+from faultwise.core.vocabulary import EVENT_TYPES as EVENT_TYPES, UNDOABLE  # re-exported
 from faultwise.graph.nodes import (CLEARED, MEASURE_OUTCOMES, Caution, Check, Escalate, Fault,
                                    Suspects)
 
 PHASES = ("diagnose", "repair", "verify", "closing", "done")
 OUTCOMES = ("repaired", "returned-unrepaired", "waiting-parts")
-UNDOABLE = ("answer", "skip", "parts", "off-graph", "resume", "to-closing")
-EVENT_TYPES = UNDOABLE + ("note", "acknowledge", "close", "reopen")
 _MOVE_LIMIT = 10_000          # routing steps in one move; the graph has no cycles (lint)
 
 
