@@ -49,6 +49,20 @@ class Scan:
     rebuilt: bool = False
 
 
+def folder_generation(cases_dir: str | os.PathLike) -> str:
+    """``sha256:<hex>`` over every case file's (name, size, mtime ns, inode) and the schema.
+
+    Changes whenever a case file is added, removed, rewritten or replaced: the stat the
+    index keys its rows by, so what the index would re-read also changes the generation.
+    """
+    import hashlib
+
+    digest = hashlib.sha256(SCHEMA.encode("utf-8") + b"\0")
+    for name, size, mtime_ns, ino in _case_entries(Path(cases_dir)):
+        digest.update(f"{name}\0{size}\0{mtime_ns}\0{ino}\n".encode("utf-8"))
+    return "sha256:" + digest.hexdigest()
+
+
 def index_path(cases_dir: str | os.PathLike) -> Path:
     """Where the index of a cases folder lives."""
     return Path(cases_dir) / INDEX_NAME
