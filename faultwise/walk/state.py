@@ -85,6 +85,7 @@ class Step:
     reason: str = ""
     normal: bool = True
     minutes: float = 0.0
+    meter: Mapping | None = None      # the meter sample when the reading came from a meter
 
 
 @dataclass(frozen=True)
@@ -426,8 +427,13 @@ class Walk:
         choice = resolve_choice(text, choices, check.id)
         return self._push(self._event("answer", node=check.id, raw=text.strip(), outcome=choice))
 
-    def answer_value(self, value: float, raw: str | None = None) -> dict:
-        """Answer the current measurement with a number in its unit."""
+    def answer_value(self, value: float, raw: str | None = None,
+                     meter: Mapping | None = None) -> dict:
+        """Answer the current measurement with a number in its unit.
+
+        ``meter`` is the sample a bench meter gave (:func:`faultwise.meter.fit.answer_from_meter`:
+        value, unit as reported, mode, meter identity, time); it is kept in the event.
+        """
         check, expected = self._asked_check()
         if not check.is_measurement or expected is None:
             raise WalkError(f"'{check.id}' does not take a number", node=check.id,
@@ -436,9 +442,10 @@ class Walk:
         if not math.isfinite(value):
             raise InputError("the reading must be a finite number", node=check.id)
         raw = f"{value:g} {expected.unit}" if raw is None else raw
+        extra = {"meter": dict(meter)} if meter else {}
         return self._push(self._event("answer", node=check.id, expect=check.expect,
                                       band=band_of(expected), raw=raw, value=value,
-                                      outcome=classify(value, expected)))
+                                      outcome=classify(value, expected), **extra))
 
     def skip(self, reason: str = "") -> dict:
         """Record that the check could not be made; follow its `unable` route (default cleared)."""
@@ -657,7 +664,9 @@ class Walk:
                              band=event.get("band"), raw=str(event.get("raw", "")),
                              value=float(value) if isinstance(value, (int, float)) else None,
                              outcome=outcome, reason=str(event.get("reason", "") or ""),
-                             normal=normal, minutes=float(check.minutes)))
+                             normal=normal, minutes=float(check.minutes),
+                             meter=event.get("meter") if isinstance(event.get("meter"), dict)
+                             else None))
         if st.phase == "diagnose":
             st.memory[node_id] = outcome
             st.came_from = (node_id, outcome)

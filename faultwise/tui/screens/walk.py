@@ -14,6 +14,7 @@ from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.content import Content
 from textual.widgets import Footer, Header, Static
 
+from faultwise.tui.meter_keys import MeterKeys
 from faultwise.tui.screens.case_screen import CaseScreen, open_walk
 from faultwise.tui.widgets.check_panel import CheckPanel
 from faultwise.tui.widgets.history import History
@@ -47,7 +48,7 @@ def guidance_for(prompt, knowledge) -> Content:
     return Content("\n\n").join(parts)
 
 
-class WalkScreen(CaseScreen):
+class WalkScreen(MeterKeys, CaseScreen):
     """Diagnosis: checks, skips, notes, off-graph findings, undo, why-this-check."""
 
     BINDINGS = [
@@ -58,6 +59,7 @@ class WalkScreen(CaseScreen):
         Binding("f5", "off_graph", "Found", tooltip="Record an off-graph finding",
                 priority=True),
         CaseScreen.READINGS,
+        *MeterKeys.BINDINGS,
         CaseScreen.UNDO,
         CaseScreen.CAUTIONS,
         CaseScreen.BACK,
