@@ -1,6 +1,6 @@
 """The case store: one JSON file per job, written atomically after every event.
 
-DESIGN section 8 and DEVELOPERS.md "Case file" / "Walk and case store API". A case file is
+DESIGN section 8; the format is in :mod:`faultwise.cases.schema`. A case file is
 replaced whole through a temp file in the same folder (write, flush, fsync, rename, fsync the
 folder), so a crash leaves either the old or the new file, never half of one. A lock keeps
 two benches off one open case: filelock's SoftFileLock on ``<id>.lock`` (exclusive

@@ -2,7 +2,7 @@
 
 Reads ``symptoms.yaml``, ``cautions.yaml``, ``graph/*.yaml`` and the optional ``learned.yaml``
 through :mod:`faultwise.core.yamlload` (safe, line numbers kept) and builds the model of
-:mod:`faultwise.graph.nodes` (schema: DEVELOPERS.md, "Knowledge schema"). Nothing in the files is
+:mod:`faultwise.graph.nodes` (schema: knowledge/README.md, "Knowledge schema"). Nothing in the files is
 evaluated. Structural problems raise :class:`KnowledgeError` naming file, line and node;
 the loader collects every structural problem it can before raising the first one, and
 ``err.problems`` lists them all (``faultwise lint`` shows them). Graph-level checks

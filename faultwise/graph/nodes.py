@@ -1,6 +1,6 @@
 """In-memory model of the knowledge: symptoms, cautions and graph nodes.
 
-``graph.py`` builds these from the YAML (see DEVELOPERS.md, "Knowledge schema"); the walk,
+``graph.py`` builds these from the YAML (format: knowledge/README.md, "Knowledge schema"); the walk,
 ranking, lint, sweep and review read them. Everything here is plain frozen data.
 """
 

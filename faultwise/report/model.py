@@ -219,7 +219,7 @@ def _off_graph_text(case: Mapping, events: list[dict]) -> str:
 
 
 def build_report(case: Mapping, knowledge=None, shop: Shop | None = None) -> JobReport:
-    """The report model of a case dict (DEVELOPERS.md, "Case file")."""
+    """The report model of a case dict (format: :mod:`faultwise.cases.schema`)."""
     from faultwise.report.part_ratings import part_ratings
 
     events = [e for e in case.get("events") or () if isinstance(e, dict)]

@@ -1,6 +1,6 @@
 """Learned counts: closed, repaired cases -> ``<knowledge>/learned.yaml`` (review --learn).
 
-Format (DEVELOPERS.md, "Knowledge schema"): ``{format: faultwise-learned/1, written, cases,
+Format (knowledge/README.md, "Knowledge schema"): ``{format: faultwise-learned/1, written, cases,
 counts: {symptom: {family: {fault: n}}}}`` with every mapping's keys sorted, so a shop's
 refinement is a reviewable diff. The file is written atomically (temp file in the same
 folder, flush, fsync, rename, fsync the folder). The hand-written graph files are never

@@ -7,7 +7,7 @@ data supports (priors + counts), and checks whose outcome never varied. Over the
 checks most often skipped, off-graph findings grouped by similarity (rapidfuzz), faults
 never reached, cases back after a repair, and job minutes by month.
 
-Rules (also in DEVELOPERS.md, "Review, index and reports"):
+Rules:
 
 - Only closed cases count (``status: closed``); ``since`` keeps those closed on or after a
   date. Fault counts take the closed cases whose outcome is ``repaired`` with a concluded

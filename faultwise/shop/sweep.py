@@ -8,8 +8,7 @@ set of that family (file order) on which the fault applies (its ``when`` holds, 
 (a class becomes a number from the set's band through ``walk.representative_value``;
 numbers are used as written; every other reading is nominal and every other observation
 normal, as ``auto_walk`` does), walks automatically and records whether the walk
-concluded that fault, after how many checks and minutes (DESIGN section 12; DEVELOPERS.md
-"Sweep and benchmarks").
+concluded that fault, after how many checks and minutes (DESIGN section 12).
 
 Figures per (symptom, family) pair are prior-weighted: the weights are
 ``rank.fault_probabilities`` for the pair (the knowledge's learned counts included, as the

@@ -1,7 +1,7 @@
 """The walk: a pure state machine from a complaint to a fault, a repair and a closed case.
 
-The record of a walk is its list of events (DEVELOPERS.md, "Walk" and "Walk and case store
-API"); the state is derived by replaying them from the start. Undo drops the last event
+The record of a walk is its list of events (their format: :mod:`faultwise.cases.schema`);
+the state is derived by replaying them from the start. Undo drops the last event
 that moved the walk and re-derives; reopening a case replays its events; replay of a case
 against a changed graph uses the same code. Same graph, same priors and same answers give
 the same walk: the only thing that varies is the time stamp of each event.
@@ -12,7 +12,7 @@ recorded) -> ``verify`` (the fault's verify checks, classified, not routed) -> `
 (the knowledge's closing checks for the family: the leakage check of line-powered sets)
 -> ``done`` (closed with an outcome).
 
-Applicability (DEVELOPERS.md, "Walk"): a node applies to this walk when the set's family is
+Applicability: a node applies to this walk when the set's family is
 in its families, a measurement's expectation name is among the walk's expectations, and
 its ``when`` holds for the profile (:mod:`faultwise.graph.applicability`). Ranking drops the
 suspects that do not apply and counts only the faults that do. When an outcome (or an
