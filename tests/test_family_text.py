@@ -77,5 +77,6 @@ def test_walk_shows_the_family_variant():
     for name, family, word in (("demo-5-tube-table", "series-string", "B- bus"),
                                ("demo-6v-console", "transformer", "the chassis")):
         profile = load_profile(sets / f"{name}.yaml")
+        assert profile.family == family
         walk = Walk(k, profile, "hum-loud", expectations=expect(profile))
         assert word in walk._view(node).how

@@ -53,7 +53,7 @@ def run(args: argparse.Namespace) -> int:
         paths = _targets(args.cases_given, ws.cases_dir)
     else:
         paths = case_files(ws.cases_dir)
-    report = replay_files(knowledge, paths)
+    report = replay_files(knowledge, paths, knowledge_dir=ws.knowledge_dir)
     if args.json:
         print(json.dumps(report.to_json(), indent=2, ensure_ascii=False))
         return 0

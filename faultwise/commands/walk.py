@@ -30,11 +30,6 @@ def register(subparsers) -> None:
     p.set_defaults(func=run)
 
 
-def tube_dir(knowledge_dir: Path) -> Path | None:
-    """The knowledge folder when it has its own tubes.yaml, else None (the bundled table)."""
-    return knowledge_dir if (Path(knowledge_dir) / "tubes.yaml").is_file() else None
-
-
 def load_answers(path, knowledge, expectations) -> tuple[dict, dict]:
     """Read and check an answers file; InputError names file, line and key of a problem."""
     from faultwise.core.errors import FaultwiseError, InputError
@@ -110,22 +105,17 @@ def _step_json(step) -> dict:
 
 
 def run(args: argparse.Namespace) -> int:
-    from faultwise.expect.expected import expect
+    from faultwise.expect.expected import expect_in_workspace
     from faultwise.graph.knowledge import load_knowledge
     from faultwise.profile.load import load_profile
+    from faultwise.profile.tubes import workspace_tube_dir
     from faultwise.walk.state import auto_walk
     from faultwise.core.workspace import workspace_from_args
 
     ws = workspace_from_args(args)
     knowledge = load_knowledge(ws.knowledge_dir)
-    tubes = tube_dir(ws.knowledge_dir)
-    profile = load_profile(args.profile, knowledge_dir=tubes)
-    table = None
-    if tubes is not None:
-        from faultwise.profile.tubes import load_tube_table
-
-        table = load_tube_table(tubes)
-    expectations = expect(profile, tube_table=table)
+    profile = load_profile(args.profile, knowledge_dir=workspace_tube_dir(ws.knowledge_dir))
+    expectations = expect_in_workspace(profile, ws.knowledge_dir)
     readings, observations = load_answers(args.answers, knowledge, expectations)
     result = auto_walk(knowledge, profile, args.symptom, readings, observations,
                        expectations=expectations)

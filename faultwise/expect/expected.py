@@ -15,12 +15,12 @@ reads of the ripple) and ``parts`` (replacement part ratings for this set); they
 
 from __future__ import annotations
 
+from faultwise.core.vocabulary import STAGES
 from faultwise.expect.context import Expected
 
 
-__all__ = ["Expected", "STAGES", "expectation_names", "expect"]
+__all__ = ["Expected", "STAGES", "expectation_names", "expect", "expect_in_workspace"]
 
-STAGES = ("supply", "audio", "detector", "if", "oscillator", "antenna")
 
 
 def _tube_roles() -> tuple[str, ...]:
@@ -112,3 +112,14 @@ def expect(profile, *, tube_table=None) -> dict[str, Expected]:
     items = sorted(ctx.out.items(), key=lambda kv: order[kv[1].stage])  # stable: build order
     return dict(items)
 
+
+
+def expect_in_workspace(profile, knowledge_dir) -> dict[str, Expected]:
+    """``expect(profile)`` with the workspace's own tube table when its knowledge has one.
+
+    Every place that turns a set into expectations for a workspace (the walk command, the
+    sweep, the bench screens) calls this, so they all expect the same readings.
+    """
+    from faultwise.profile.tubes import workspace_tube_table
+
+    return expect(profile, tube_table=workspace_tube_table(knowledge_dir))

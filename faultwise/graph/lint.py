@@ -3,8 +3,8 @@
 Every problem is a :class:`Finding` naming file, line and node, with a hint. Structural
 problems found while loading (YAML syntax, unknown keys, wrong types) come first; when there
 are any, the graph checks are skipped, since they would only repeat them. The graph checks
-use networkx (cycles, reachability). The list of checks is in DEVELOPERS.md, "Lint and
-match".
+use networkx (cycles, reachability). The list of checks is in knowledge/README.md, "What lint
+checks".
 """
 
 from __future__ import annotations
@@ -208,7 +208,7 @@ class _Lint:
                 missing = [f for f in node.families if not self.known[f](node.expect)]
                 if len(missing) == len(node.families):
                     self.at(node, f"unknown expectation name '{node.expect}'",
-                            "use a name from DEVELOPERS.md, 'Expectation names'")
+                            "use a name from knowledge/README.md, 'Expectation names'")
                 elif missing:
                     self.at(node, f"the expectation '{node.expect}' does not exist for "
                             f"{', '.join(missing)} sets", "narrow the check's 'families' or "
@@ -406,7 +406,7 @@ class _Lint:
             for name in sig.readings:
                 if not any(self.known[f](name) for f in node.families):
                     self.at(node, f"the signature reading '{name}' is not an expectation name "
-                            "of the fault's families", "use a name from DEVELOPERS.md, "
+                            "of the fault's families", "use a name from knowledge/README.md, "
                             "'Expectation names'")
         for cid, choice in sig.observations.items():
             check = k.nodes.get(cid)

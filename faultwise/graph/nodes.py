@@ -1,6 +1,6 @@
 """In-memory model of the knowledge: symptoms, cautions and graph nodes.
 
-``graph.py`` builds these from the YAML (see DEVELOPERS.md, "Knowledge schema"); the walk,
+``graph.py`` builds these from the YAML (format: knowledge/README.md, "Knowledge schema"); the walk,
 ranking, lint, sweep and review read them. Everything here is plain frozen data.
 """
 
@@ -10,8 +10,8 @@ from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Mapping, Union
 
-STAGES = ("supply", "audio", "detector", "if", "oscillator", "antenna")
-FAMILIES = ("series-string", "transformer", "transistor")
+from faultwise.core.vocabulary import FAMILIES, STAGES as STAGES  # re-exported
+
 MEASURE_OUTCOMES = ("normal", "low", "high", "absent")
 CLEARED = "cleared"          # route target: this investigation found nothing, try the next
 SPECIAL_TARGETS = (CLEARED,)

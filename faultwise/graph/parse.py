@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from pathlib import Path
 from types import MappingProxyType
+from typing import Mapping
 
 from faultwise.graph.applicability import WHEN_KEYS
 from faultwise.graph.reader import (ID_RE, KnowledgeReader, Problems, is_number, key_line,

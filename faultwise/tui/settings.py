@@ -11,6 +11,8 @@ import json
 import os
 from pathlib import Path
 
+from faultwise.core.atomic import atomic_write
+
 FORMAT = "faultwise-bench-settings/1"
 
 
@@ -48,9 +50,7 @@ class Settings:
             return
         try:
             self.path.parent.mkdir(parents=True, exist_ok=True)
-            tmp = self.path.with_suffix(".tmp")
-            tmp.write_text(json.dumps({"format": FORMAT, "safety_acknowledged": when_iso},
-                                      indent=2) + "\n", encoding="utf-8")
-            os.replace(tmp, self.path)
+            atomic_write(self.path, json.dumps({"format": FORMAT,
+                                                "safety_acknowledged": when_iso}, indent=2) + "\n")
         except OSError as exc:
             self.write_error = f"{self.path}: {exc.strerror or exc}"

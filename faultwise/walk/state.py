@@ -1,7 +1,7 @@
 """The walk: a pure state machine from a complaint to a fault, a repair and a closed case.
 
-The record of a walk is its list of events (DEVELOPERS.md, "Walk" and "Walk and case store
-API"); the state is derived by replaying them from the start. Undo drops the last event
+The record of a walk is its list of events (their format: :mod:`faultwise.cases.schema`);
+the state is derived by replaying them from the start. Undo drops the last event
 that moved the walk and re-derives; reopening a case replays its events; replay of a case
 against a changed graph uses the same code. Same graph, same priors and same answers give
 the same walk: the only thing that varies is the time stamp of each event.
@@ -12,7 +12,7 @@ recorded) -> ``verify`` (the fault's verify checks, classified, not routed) -> `
 (the knowledge's closing checks for the family: the leakage check of line-powered sets)
 -> ``done`` (closed with an outcome).
 
-Applicability (DEVELOPERS.md, "Walk"): a node applies to this walk when the set's family is
+Applicability: a node applies to this walk when the set's family is
 in its families, a measurement's expectation name is among the walk's expectations, and
 its ``when`` holds for the profile (:mod:`faultwise.graph.applicability`). Ranking drops the
 suspects that do not apply and counts only the faults that do. When an outcome (or an
@@ -34,13 +34,12 @@ from dataclasses import dataclass, field
 from datetime import UTC, datetime
 
 from faultwise.core.errors import InputError, KnowledgeError, WalkError
+from faultwise.core.vocabulary import EVENT_TYPES as EVENT_TYPES, UNDOABLE  # re-exported
 from faultwise.graph.nodes import (CLEARED, MEASURE_OUTCOMES, Caution, Check, Escalate, Fault,
                                    Suspects)
 
 PHASES = ("diagnose", "repair", "verify", "closing", "done")
 OUTCOMES = ("repaired", "returned-unrepaired", "waiting-parts")
-UNDOABLE = ("answer", "skip", "parts", "off-graph", "resume", "to-closing")
-EVENT_TYPES = UNDOABLE + ("note", "acknowledge", "close", "reopen")
 _MOVE_LIMIT = 10_000          # routing steps in one move; the graph has no cycles (lint)
 
 
@@ -864,12 +863,21 @@ def resolve_choice(text: str, choices: tuple[tuple[str, str], ...], node: str | 
     raise InputError(f"'{typed}' {what}", node=node, hint=f"type one of: {listing}")
 
 
-def walk_from_case(knowledge, data: Mapping, **kwargs) -> Walk:
-    """Rebuild the walk recorded in a case file's data (profile copied into the case)."""
+def walk_from_case(knowledge, data: Mapping, *, knowledge_dir=None, **kwargs) -> Walk:
+    """Rebuild the walk recorded in a case file's data (profile copied into the case).
+
+    ``knowledge_dir``: the workspace's knowledge, whose own tube table (if any) the
+    expectations use, as when the case was started.
+    """
+    from faultwise.expect.expected import expect_in_workspace
     from faultwise.profile.load import profile_from_dict
+    from faultwise.profile.tubes import workspace_tube_dir
 
     s = data.get("set") or {}
-    profile = profile_from_dict(s.get("profile") or {}, s.get("source") or str(data.get("id")))
+    profile = profile_from_dict(s.get("profile") or {}, s.get("source") or str(data.get("id")),
+                                knowledge_dir=workspace_tube_dir(knowledge_dir))
+    if "expectations" not in kwargs:
+        kwargs["expectations"] = expect_in_workspace(profile, knowledge_dir)
     return Walk.from_events(knowledge, profile, data.get("symptom"), data.get("events") or [],
                             **kwargs)
 

@@ -114,7 +114,7 @@ def test_kill_at_random_moments(tmp_path):
     rng = random.Random(20261201)
     folder = tmp_path / "cases"
     kept_counts = []
-    for run in range(KILL_RUNS):
+    for _run in range(KILL_RUNS):
         proc = subprocess.Popen([PY, CHILD, str(folder), "none", "0", "60"],
                                 stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
         time.sleep(rng.uniform(0.2, 1.2))

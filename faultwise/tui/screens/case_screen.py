@@ -31,7 +31,8 @@ def open_walk(bench: Bench, case_id: str):
 
     case = bench.store.open(case_id)
     try:
-        walk = walk_from_case(bench.knowledge, case.data, clock=bench.clock)
+        walk = walk_from_case(bench.knowledge, case.data, clock=bench.clock,
+                              knowledge_dir=bench.workspace.knowledge_dir)
     except BaseException:
         case.close()
         raise

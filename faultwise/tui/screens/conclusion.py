@@ -24,6 +24,7 @@ from faultwise.tui.widgets.check_panel import CheckPanel
 from faultwise.tui.widgets.history import History
 from faultwise.tui.widgets.stage_map import StageMap
 from faultwise.tui.wording import printable
+from faultwise.walk.stages import walk_stage_states
 
 OUTCOME_CHOICES = (("repaired", "repaired"), ("returned-unrepaired", "returned unrepaired"),
                    ("waiting-parts", "waiting for parts"))
@@ -129,9 +130,7 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         fault = self.walk.conclusion
         finding = self.walk.off_graph_finding
         stage = fault.stage if fault else None
-        from faultwise.tui.screens.walk import map_states
-
-        self.query_one(StageMap).show(map_states(self.walk), prompt.stage or stage)
+        self.query_one(StageMap).show(walk_stage_states(self.walk), prompt.stage or stage)
         self.query_one(History).show(self.walk.events, self.walk.steps, self.walk.knowledge)
         title = self.query_one("#conclusion-title", Static)
         steps = self.query_one("#repair-steps", Static)

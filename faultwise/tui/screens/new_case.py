@@ -40,8 +40,9 @@ class LibrarySet:
 
 def tube_table_dir(bench: Bench) -> Path | None:
     """The knowledge folder when it carries its own tube table, else None (the bundled one)."""
-    kdir = bench.workspace.knowledge_dir
-    return kdir if (kdir / "tubes.yaml").is_file() else None
+    from faultwise.profile.tubes import workspace_tube_dir
+
+    return workspace_tube_dir(bench.workspace.knowledge_dir)
 
 
 def read_library(bench: Bench) -> list[LibrarySet]:
@@ -293,6 +294,7 @@ class NewCaseScreen(Screen):
     def action_start(self) -> None:
         """Create the case file and start the walk (nothing is written on a refusal)."""
         from faultwise.core.errors import FaultwiseError
+        from faultwise.expect.expected import expect_in_workspace
         from faultwise.walk.state import Walk
 
         complaint = self.query_one("#complaint", Input).value.strip()
@@ -311,7 +313,9 @@ class NewCaseScreen(Screen):
         profile = self.chosen_set.profile
         knowledge = self.bench.knowledge
         try:
-            walk = Walk(knowledge, profile, self.chosen_symptom, clock=self.bench.clock)
+            expectations = expect_in_workspace(profile, self.bench.workspace.knowledge_dir)
+            walk = Walk(knowledge, profile, self.chosen_symptom, expectations=expectations,
+                        clock=self.bench.clock)
             case = self.bench.store.new_case(
                 profile, self.chosen_set.path.name, complaint, self.chosen_symptom,
                 customer=self.query_one("#customer", Input).value.strip(),
