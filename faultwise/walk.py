@@ -480,10 +480,18 @@ class Walk:
             raise InputError("the note is empty", hint="type what you want to keep")
         return self._push(self._event("note", text=text))
 
-    def acknowledge(self, caution_id: str) -> dict:
+    def acknowledge(self, caution_id: str, *, shown: str | None = None,
+                    read_s: float | None = None) -> dict:
+        """Record a caution as read; ``shown`` is when it was put before the tech and
+        ``read_s`` how long it was open (the event's ``at`` is the acknowledgement time)."""
         if caution_id not in self.knowledge.cautions:
             raise InputError(f"unknown caution '{caution_id}'", key="caution")
-        return self._push(self._event("acknowledge", caution=caution_id))
+        extra: dict = {}
+        if shown is not None:
+            extra["shown"] = str(shown)
+        if read_s is not None:
+            extra["read_s"] = float(read_s)
+        return self._push(self._event("acknowledge", caution=caution_id, **extra))
 
     def off_graph(self, finding: str) -> dict:
         """Record a fault the graph does not know; diagnosis ends with no conclusion."""

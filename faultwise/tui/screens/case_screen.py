@@ -167,6 +167,8 @@ class CaseScreen(Screen):
 
         pending = [c for c in prompt.cautions if c.id in prompt.unacknowledged]
         self._asking_cautions = True
+        shown = self.bench.now_iso()
+        modal = CautionScreen(pending, guard_s=self.bench.settings.caution_guard_s)
 
         def done(ok: bool | None) -> None:
             self._asking_cautions = False
@@ -176,11 +178,11 @@ class CaseScreen(Screen):
 
             def acknowledge_all() -> None:
                 for caution in pending:
-                    self.walk.acknowledge(caution.id)
+                    self.walk.acknowledge(caution.id, shown=shown, read_s=modal.read_s)
 
             self.change(acknowledge_all)
 
-        self.app.push_screen(CautionScreen(pending), done)
+        self.app.push_screen(modal, done)
         return True
 
     # ------------------------------------------------------------------ leaving

@@ -3,9 +3,18 @@
 The caution texts scroll inside the dialog (Up/Down, PgUp/PgDn, the mouse wheel) while the
 title and the buttons stay docked at its top and bottom, so "Understood" is on screen at
 80x24 however many cautions a step names.
+
+A caution is acknowledged only deliberately: for ``guard_s`` seconds after the dialog opens
+every key and click that would acknowledge it is ignored (the dialog says so, and the
+"Understood" button is disabled until then). A number key answers a choice at once and the
+technician's habitual Enter after it would otherwise land on the dialog that has just
+opened for the next check. ``read_s`` is how long the dialog was open when it was
+acknowledged; the case records it with the acknowledgement.
 """
 
 from __future__ import annotations
+
+import time
 
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -13,6 +22,8 @@ from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.content import Content
 from textual.screen import ModalScreen
 from textual.widgets import Button, Static
+
+GUARD_S = 1.5        # long enough to stop a habitual keystroke, short enough not to annoy
 
 
 class CautionScreen(ModalScreen[bool]):
@@ -27,10 +38,14 @@ class CautionScreen(ModalScreen[bool]):
         Binding("pageup", "scroll_text(-10)", "Page", show=False),
     ]
 
-    def __init__(self, cautions, *, reminder: bool = False) -> None:
+    def __init__(self, cautions, *, reminder: bool = False, guard_s: float = GUARD_S) -> None:
         super().__init__(id="caution")
         self.cautions = tuple(cautions)
         self.reminder = reminder
+        self.guard_s = 0.0 if reminder else max(0.0, float(guard_s))
+        self.armed = self.guard_s == 0.0
+        self.read_s: float | None = None
+        self._opened = time.monotonic()
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="modal-box -danger", id="caution-box"):
@@ -41,16 +56,40 @@ class CautionScreen(ModalScreen[bool]):
             with Horizontal(classes="modal-buttons", id="caution-buttons"):
                 if not self.reminder:
                     yield Button("Leave the case", id="caution-leave")
-                yield Button("Understood", id="caution-ok", variant="error")
+                yield Button("Understood", id="caution-ok", variant="error",
+                             disabled=not self.armed)
+            yield Static(self._guard_text(), id="caution-guard")
             with VerticalScroll(id="caution-scroll", can_focus=False):
                 for caution in self.cautions:
                     yield Static(Content.from_markup("[b]⚠ $title[/b]\n$text",
                                                      title=caution.title, text=caution.text),
                                  classes="caution-text")
 
+    def _guard_text(self) -> Content:
+        if self.reminder:
+            return Content("")
+        if not self.armed:
+            return Content.from_markup(
+                "[dim]Read first: keys are ignored for $s s after this opens, so a stray "
+                "key cannot acknowledge it.[/dim]", s=f"{self.guard_s:g}")
+        return Content.from_markup("[dim]Enter: understood · ctrl+l: leave the case[/dim]")
+
     def on_mount(self) -> None:
-        self.query_one("#caution-ok", Button).focus()
+        self._opened = time.monotonic()
+        if self.armed:
+            self.query_one("#caution-ok", Button).focus()
+        else:
+            self.set_focus(None)
+            self.set_timer(self.guard_s, self._arm)
         self.call_after_refresh(self._say_more)
+
+    def _arm(self) -> None:
+        self.armed = True
+        ok = self.query_one("#caution-ok", Button)
+        ok.disabled = False
+        ok.focus()
+        self.query_one("#caution-guard", Static).update(self._guard_text())
+        self.refresh_bindings()
 
     def _say_more(self) -> None:
         """When the texts do not all fit, say so in the title (the scrollbar is thin)."""
@@ -64,9 +103,16 @@ class CautionScreen(ModalScreen[bool]):
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         event.stop()
-        self.dismiss(event.button.id == "caution-ok")
+        if event.button.id == "caution-ok":
+            self.action_acknowledge()
+        else:
+            self.dismiss(False)
 
     def action_acknowledge(self) -> None:
+        """Acknowledge, unless the guard time since the dialog opened has not passed."""
+        if not self.armed:
+            return
+        self.read_s = round(time.monotonic() - self._opened, 1)
         self.dismiss(True)
 
     def action_leave(self) -> None:
