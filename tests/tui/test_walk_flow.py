@@ -134,8 +134,12 @@ async def test_complaint_to_close(make_app, cases_dir, bands):
         assert data["conclusion"]["fault"] == "supply.weak-rectifier"
         assert "Weak rectifier tube" in str(app.screen.query_one("#conclusion-title").render())
 
-        # Parts: the fault's parts are offered; Enter records them and starts verification.
+        # Parts: the fault's parts are suggested beside the field; ctrl+t picks them and
+        # Enter records them and starts verification.
         assert app.focused.id == "parts"
+        assert app.focused.value == ""
+        assert "35W4 rectifier tube" in str(app.screen.query_one("#parts-suggested").render())
+        await pilot.press("ctrl+t")
         assert app.focused.value == "35W4 rectifier tube"
         await pilot.press("enter")
         await pilot.pause()

@@ -72,6 +72,8 @@ class ConclusionScreen(CaseScreen):
         Binding("f8", "resume", "Not cured", tooltip="Resume the diagnosis", priority=True),
         Binding("f9", "to_closing", "Unrepaired", tooltip="Return the set unrepaired",
                 priority=True),
+        Binding("ctrl+t", "take_parts", "Take suggested", tooltip="Put the suggested parts "
+                "in the field", priority=True),
         Binding("pagedown", "scroll_steps(4)", "More steps", show=False, priority=True),
         Binding("pageup", "scroll_steps(-4)", "Steps back", show=False, priority=True),
         CaseScreen.UNDO,
@@ -94,9 +96,9 @@ class ConclusionScreen(CaseScreen):
                 yield Static("Parts replaced, separated by commas (empty if none); Enter "
                              "records them and starts the verify checks.",
                              classes="form-label")
+                yield Static("", id="parts-suggested")
                 yield BenchInput(id="parts", compact=True,
-                                 placeholder="parts, e.g. 50 uF 160 V electrolytic, 35W4 "
-                                             "(empty: none)")
+                                 placeholder="type the parts you fitted (empty: none)")
                 yield Static("", id="parts-error", classes="field-error")
             yield CheckPanel(id="check")
             with Vertical(id="close-form", classes="form-block"):
@@ -162,10 +164,13 @@ class ConclusionScreen(CaseScreen):
         if prompt.kind == "repair":
             if self.ask_cautions(prompt):
                 return
-            box = self.query_one("#parts", Input)
-            if not box.value and fault is not None:
-                box.value = ", ".join(fault.parts)
-            box.focus()
+            # The knowledge's suggestion is shown beside the field, never put in it: the
+            # case records only what the technician typed or picked (ctrl+t).
+            suggested = ", ".join(fault.parts) if fault is not None else ""
+            self.query_one("#parts-suggested", Static).update(Content.from_markup(
+                "[dim]Suggested:[/dim] $p  [dim](ctrl+t puts it in the field)[/dim]",
+                p=suggested) if suggested else "")
+            self.query_one("#parts", Input).focus()
         elif prompt.kind == "check":
             if self.ask_cautions(prompt):
                 self.query_one(CheckPanel).display = False
@@ -301,7 +306,20 @@ class ConclusionScreen(CaseScreen):
                 "repair", "verify", "closing")
         if action == "to_closing":
             return self.walk.phase in ("repair", "verify")
+        if action == "take_parts":
+            fault = self.walk.conclusion
+            return self.walk.phase == "repair" and fault is not None and bool(fault.parts)
         return super().check_action(action, parameters)
+
+    def action_take_parts(self) -> None:
+        """Pick the knowledge's suggested parts: they replace the field's text, to be edited."""
+        fault = self.walk.conclusion
+        if fault is None or not fault.parts:
+            return
+        box = self.query_one("#parts", Input)
+        box.value = ", ".join(fault.parts)
+        box.cursor_position = len(box.value)
+        box.focus()
 
     def action_resume(self) -> None:
         self.change(self.walk.resume_diagnosis)

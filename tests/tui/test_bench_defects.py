@@ -1,0 +1,69 @@
+"""Defects found at the bench by a new user, each checked with the keys a tech presses at
+80x24, the answer field focused: the parts field records only what was typed or picked,
+focus comes back to the field after every dialog, placeholders read as hints.
+
+The fixture knowledge's hum walk reaches the weak-rectifier fault in four answers; the
+low reading is placed from the project's own expect() band, not hard-coded.
+"""
+
+from __future__ import annotations
+
+import pytest
+from conftest import read_case
+from tui_helpers import acknowledge_cautions, answer, new_case, type_text
+
+from faultwise.expect import expect
+from faultwise.profile import load_profile
+
+
+@pytest.fixture
+def low_reading(knowledge_dir) -> str:
+    band = expect(load_profile(knowledge_dir / "sets" / "demo-5-tube-table.yaml"))[
+        "supply.rectifier_out_v"]
+    return f"{(band.absent_below + band.low) / 2:.0f}"
+
+
+async def to_repair(pilot, low: str) -> None:
+    """Hum walk to the weak-rectifier conclusion: glow, a low B+, no change, B+ back."""
+    await new_case(pilot, complaint="hums loudly")
+    await acknowledge_cautions(pilot)
+    await pilot.press("1")
+    await pilot.pause()
+    await acknowledge_cautions(pilot)
+    await answer(pilot, low)
+    await pilot.press("2")
+    await pilot.pause()
+    await pilot.press("1")
+    await pilot.pause()
+    await acknowledge_cautions(pilot)
+    assert pilot.app.screen.id == "conclusion"
+
+
+async def test_parts_field_records_only_what_was_typed(make_app, cases_dir, low_reading):
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await to_repair(pilot, low_reading)
+        assert app.focused.id == "parts"
+        # The suggestion is beside the field, not in it.
+        assert app.focused.value == ""
+        assert "35W4 rectifier tube" in str(app.screen.query_one("#parts-suggested").render())
+        await type_text(pilot, "6X4 rectifier tube")
+        await pilot.press("enter")
+        await pilot.pause()
+        data = read_case(cases_dir)
+        assert data["parts"] == ["6X4 rectifier tube"]
+        assert data["events"][-1]["parts"] == ["6X4 rectifier tube"]
+
+
+async def test_parts_pick_then_edit(make_app, cases_dir, low_reading):
+    """ctrl+t picks the suggestion (replacing the field), and it can be edited."""
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await to_repair(pilot, low_reading)
+        await type_text(pilot, "xx")
+        await pilot.press("ctrl+t")
+        assert app.focused.value == "35W4 rectifier tube"
+        await type_text(pilot, ", fuse")
+        await pilot.press("enter")
+        await pilot.pause()
+        assert read_case(cases_dir)["parts"] == ["35W4 rectifier tube", "fuse"]
