@@ -93,6 +93,7 @@ class Step:
     reason: str = ""
     normal: bool = True
     minutes: float = 0.0
+    assumed: bool = False             # no answer given: normal assumed (walk --assume-normal)
 
 
 @dataclass(frozen=True)
@@ -127,6 +128,7 @@ class WalkResult:
     checks: int
     minutes: float
     walk: Walk
+    missing: object | None = None     # errors.MissingAnswerError where an answer was missing
 
 
 # -------------------------------------------------------------------------- classifying
@@ -416,8 +418,10 @@ class Walk:
 
     # ---------------------------------------------------------------- actions
 
-    def answer(self, text: str) -> dict:
-        """Answer the current check with what the tech typed; InputError leaves nothing recorded."""
+    def answer(self, text: str, *, assumed: bool = False) -> dict:
+        """Answer the current check with what the tech typed; InputError leaves nothing recorded.
+
+        ``assumed`` marks an answer nobody gave (``walk --assume-normal``) in the event."""
         check, expected = self._asked_check()
         text = "" if text is None else str(text)
         if check.is_measurement and expected is not None:
@@ -428,13 +432,16 @@ class Walk:
             except InputError as exc:
                 raise InputError(exc.message, node=check.id, key=check.expect,
                                  hint=exc.hint or f"type a reading in {expected.unit}") from None
-            return self.answer_value(value, raw=text.strip())
+            return self.answer_value(value, raw=text.strip(), assumed=assumed)
         choices = tuple((o, o) for o in MEASURE_OUTCOMES) if check.is_measurement \
             else tuple(check.choices.items())
         choice = resolve_choice(text, choices, check.id)
-        return self._push(self._event("answer", node=check.id, raw=text.strip(), outcome=choice))
+        mark = {"assumed": True} if assumed else {}
+        return self._push(self._event("answer", node=check.id, raw=text.strip(), outcome=choice,
+                                      **mark))
 
-    def answer_value(self, value: float, raw: str | None = None) -> dict:
+    def answer_value(self, value: float, raw: str | None = None, *,
+                     assumed: bool = False) -> dict:
         """Answer the current measurement with a number in its unit."""
         check, expected = self._asked_check()
         if not check.is_measurement or expected is None:
@@ -444,9 +451,10 @@ class Walk:
         if not math.isfinite(value):
             raise InputError("the reading must be a finite number", node=check.id)
         raw = f"{value:g} {expected.unit}" if raw is None else raw
+        mark = {"assumed": True} if assumed else {}
         return self._push(self._event("answer", node=check.id, expect=check.expect,
                                       band=band_of(expected), raw=raw, value=value,
-                                      outcome=classify(value, expected)))
+                                      outcome=classify(value, expected), **mark))
 
     def skip(self, reason: str = "") -> dict:
         """Record that the check could not be made; follow its `unable` route (default cleared)."""
@@ -673,7 +681,8 @@ class Walk:
                              band=event.get("band"), raw=str(event.get("raw", "")),
                              value=float(value) if isinstance(value, (int, float)) else None,
                              outcome=outcome, reason=str(event.get("reason", "") or ""),
-                             normal=normal, minutes=float(check.minutes)))
+                             normal=normal, minutes=float(check.minutes),
+                             assumed=event.get("assumed") is True))
         if st.phase == "diagnose":
             st.memory[node_id] = outcome
             st.came_from = (node_id, outcome)
@@ -875,22 +884,48 @@ def walk_from_case(knowledge, data: Mapping, **kwargs) -> Walk:
 
 
 def auto_answer(walk: Walk, readings: Mapping | None = None,
-                observations: Mapping | None = None) -> dict:
-    """Answer the asked check the way ``walk --answers`` does; returns the event."""
+                observations: Mapping | None = None, *, missing: str = "normal") -> dict:
+    """Answer the asked check the way ``walk --answers`` does; returns the event.
+
+    A check the answers leave out: ``missing="normal"`` answers normal silently (sweep's
+    signatures list only what a fault changes), ``"mark"`` answers normal and marks the
+    event ``assumed``, ``"stop"`` raises :class:`MissingAnswerError` naming the check and
+    what it accepts.
+    """
+    from faultwise.errors import MissingAnswerError
     from faultwise.units import format_reading, parse_reading
 
     readings = readings or {}
     observations = observations or {}
     check, expected = walk._asked_check()
+    given = (check.expect in readings) if check.is_measurement else (check.id in observations)
+    if not given and missing == "stop":
+        if check.is_measurement:
+            unit = expected.unit if expected is not None else ""
+            accepts = ((f"a reading in {unit}",) if expected is not None else ()) + \
+                MEASURE_OUTCOMES
+            raise MissingAnswerError(
+                f"the answers file gives no reading for the check '{check.title}'",
+                node=check.id, key=check.expect, section="readings", accepts=accepts,
+                title=check.title,
+                hint=f"add '{check.expect}: <answer>' under 'readings:' (it accepts "
+                     f"{' or '.join(accepts)}), or run with --assume-normal")
+        raise MissingAnswerError(
+            f"the answers file gives no observation for the check '{check.title}'",
+            node=check.id, key=check.id, section="observations",
+            accepts=tuple(check.choices), title=check.title,
+            hint=f"add '{check.id}: <choice>' under 'observations:' (it accepts "
+                 f"{' or '.join(check.choices)}), or run with --assume-normal")
+    mark = not given and missing == "mark"
     if check.is_measurement:
         spec = readings.get(check.expect)
         if expected is None:
             word = spec if isinstance(spec, str) and spec in MEASURE_OUTCOMES else "normal"
-            return walk.answer(word)
+            return walk.answer(word, assumed=mark)
         if spec is None:
             value = representative_value(expected, "normal")
             return walk.answer_value(value, raw=f"{format_reading(value, expected.unit, 4)} "
-                                                "(nominal)")
+                                                "(nominal)", assumed=mark)
         if isinstance(spec, bool):
             raise InputError(f"the reading for '{check.expect}' must be a number",
                              key=check.expect)
@@ -909,15 +944,22 @@ def auto_answer(walk: Walk, readings: Mapping | None = None,
     if choice not in check.choices:
         raise InputError(f"'{choice}' is not a choice of '{check.id}'", key=check.id,
                          hint="use one of " + ", ".join(check.choices))
-    return walk.answer(choice)
+    return walk.answer(choice, assumed=mark)
 
 
 def auto_walk(knowledge, profile, symptom: str, readings: Mapping | None = None,
               observations: Mapping | None = None, *, expectations: Mapping | None = None,
               counts: Mapping[str, int] | None = None, through: bool = False,
               clock: Callable[[], datetime] | None = None,
-              order: Callable | None = None) -> WalkResult:
-    """Walk with readings by expectation name and observations by check id (missing: normal)."""
+              order: Callable | None = None, missing: str = "normal") -> WalkResult:
+    """Walk with readings by expectation name and observations by check id.
+
+    ``missing`` says what a check without an answer gets (see :func:`auto_answer`); with
+    ``"stop"`` the result's ``missing`` holds the MissingAnswerError and the walk stands
+    at that check."""
+    from faultwise.errors import MissingAnswerError
+
+    stopped = None
     walk = Walk(knowledge, profile, symptom, expectations=expectations, counts=counts,
                 clock=clock, order=order)
     limit = 4 * len(knowledge.nodes) + 10
@@ -932,7 +974,11 @@ def auto_walk(knowledge, profile, symptom: str, readings: Mapping | None = None,
             continue
         if prompt.phase != "diagnose" and not through:
             break
-        auto_answer(walk, readings, observations)
+        try:
+            auto_answer(walk, readings, observations, missing=missing)
+        except MissingAnswerError as exc:
+            stopped = exc
+            break
     prompt = walk.prompt()
     escalate = None
     if walk.phase == "diagnose" and prompt is not None and prompt.kind == "escalate":
@@ -940,4 +986,4 @@ def auto_walk(knowledge, profile, symptom: str, readings: Mapping | None = None,
     diag = tuple(s for s in walk.steps if s.phase == "diagnose")
     return WalkResult(walk.conclusion, escalate, walk.steps,
                       sum(1 for s in diag if s.outcome != "skipped"),
-                      walk.diagnosis_minutes(), walk)
+                      walk.diagnosis_minutes(), walk, missing=stopped)
