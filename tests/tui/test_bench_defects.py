@@ -67,3 +67,64 @@ async def test_parts_pick_then_edit(make_app, cases_dir, low_reading):
         await pilot.press("enter")
         await pilot.pause()
         assert read_case(cases_dir)["parts"] == ["35W4 rectifier tube", "fuse"]
+
+
+@pytest.mark.parametrize("key,dialog,close", [
+    ("f3", "note-prompt", "escape"), ("f4", "skip-prompt", "escape"),
+    ("f6", "readings", "escape"), ("f2", "explain", "escape"), ("f7", "caution", "escape")])
+async def test_focus_returns_to_the_reading_after_a_dialog(make_app, key, dialog, close):
+    """Open a dialog from the reading check, close it, type at once: the digits land in the
+    answer field (issue: after Esc on the caution dialog digits went nowhere)."""
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot, complaint="hums loudly")
+        await acknowledge_cautions(pilot)
+        await pilot.press("1")
+        await pilot.pause()
+        await acknowledge_cautions(pilot)
+        assert app.screen.id == "walk" and app.focused.id == "answer"
+        await pilot.press(key)
+        await pilot.pause()
+        assert app.screen.id == dialog
+        await pilot.press(close, "1", "2")
+        assert app.screen.id == "walk"
+        assert app.focused.id == "answer" and app.focused.value == "12"
+
+
+async def test_focus_comes_back_after_the_caution_and_a_lost_focus(make_app):
+    """After the caution is acknowledged the field has the focus; should the focus be lost
+    anyway, a typed digit still goes into the field."""
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot, complaint="hums loudly")
+        await acknowledge_cautions(pilot)
+        await pilot.press("1")
+        await pilot.pause()
+        await acknowledge_cautions(pilot)
+        assert app.focused.id == "answer"
+        app.screen.set_focus(None)
+        await pilot.press("4", "5")
+        assert app.focused.id == "answer" and app.focused.value == "45"
+
+
+async def test_esc_on_a_caution_leaves_the_case_and_never_acknowledges(make_app, cases_dir):
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot, complaint="hums loudly")
+        assert app.screen.id == "caution"
+        await pilot.press("escape")
+        await pilot.pause()
+        assert app.screen.id == "start"
+        assert read_case(cases_dir)["acknowledged"] == []
+
+
+async def test_focus_returns_to_the_parts_field_after_a_note(make_app, low_reading):
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await to_repair(pilot, low_reading)
+        await pilot.press("f3")
+        await pilot.pause()
+        assert app.screen.id == "note-prompt"
+        await pilot.press("escape", "x")
+        assert app.screen.id == "conclusion"
+        assert app.focused.id == "parts" and app.focused.value == "x"

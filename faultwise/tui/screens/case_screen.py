@@ -185,6 +185,39 @@ class CaseScreen(Screen):
         self.app.push_screen(modal, done)
         return True
 
+    # ------------------------------------------------------------------ focus
+
+    def current_field(self):
+        """The Input the current step needs, or None (subclasses say which)."""
+        return None
+
+    def focus_field(self) -> None:
+        """Give the focus back to the field the current step needs."""
+        field = self.current_field()
+        if field is not None and self.app.screen is self:
+            field.focus()
+
+    def on_screen_resume(self) -> None:
+        """Every dialog (caution, note, skip, sheet, why, save failed) returns the focus to
+        the field the current step needs, so typed digits are never lost."""
+        self.focus_field()
+        self.call_after_refresh(self.focus_field)
+
+    def on_key(self, event) -> None:
+        """A printable key while no field has the focus goes into the step's field (a key
+        typed while a dialog was closing would otherwise go nowhere)."""
+        from textual.widgets import Input
+
+        if not event.is_printable or isinstance(self.focused, Input):
+            return
+        field = self.current_field()
+        if field is None:
+            return
+        event.stop()
+        event.prevent_default()
+        field.focus()
+        field.insert_text_at_cursor(event.character or "")
+
     # ------------------------------------------------------------------ leaving
 
     def leave_case(self, *, saved: bool) -> None:

@@ -32,6 +32,7 @@ class CautionScreen(ModalScreen[bool]):
     BINDINGS = [
         Binding("enter", "acknowledge", "Understood", priority=True),
         Binding("ctrl+l", "leave", "Leave the case"),
+        Binding("escape", "escape", "Close", show=False),
         Binding("down", "scroll_text(1)", "Scroll", show=False),
         Binding("up", "scroll_text(-1)", "Scroll", show=False),
         Binding("pagedown", "scroll_text(10)", "Page", show=False),
@@ -72,7 +73,7 @@ class CautionScreen(ModalScreen[bool]):
             return Content.from_markup(
                 "[dim]Read first: keys are ignored for $s s after this opens, so a stray "
                 "key cannot acknowledge it.[/dim]", s=f"{self.guard_s:g}")
-        return Content.from_markup("[dim]Enter: understood · ctrl+l: leave the case[/dim]")
+        return Content.from_markup("[dim]Enter: understood · Esc: leave the case[/dim]")
 
     def on_mount(self) -> None:
         self._opened = time.monotonic()
@@ -106,17 +107,29 @@ class CautionScreen(ModalScreen[bool]):
         if event.button.id == "caution-ok":
             self.action_acknowledge()
         else:
-            self.dismiss(False)
+            self.action_leave()
 
     def action_acknowledge(self) -> None:
         """Acknowledge, unless the guard time since the dialog opened has not passed."""
-        if not self.armed:
+        if not self.armed or self.read_s is not None:
             return
         self.read_s = round(time.monotonic() - self._opened, 1)
         self.dismiss(True)
 
     def action_leave(self) -> None:
-        self.dismiss(False)
+        if self.read_s is None:
+            self.read_s = -1.0          # answered: later keys are not a second answer
+            self.dismiss(False)
+
+    def action_escape(self) -> None:
+        """Esc closes a reminder (nothing is recorded); on a caution before a check it
+        leaves the case, as the walk's own Esc does; it never acknowledges."""
+        if self.reminder:
+            if self.read_s is None:
+                self.read_s = -1.0
+                self.dismiss(True)
+            return
+        self.action_leave()
 
     def action_scroll_text(self, lines: int) -> None:
         self.query_one("#caution-scroll", VerticalScroll).scroll_relative(y=lines,

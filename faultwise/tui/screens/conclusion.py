@@ -97,7 +97,7 @@ class ConclusionScreen(CaseScreen):
                              "records them and starts the verify checks.",
                              classes="form-label")
                 yield Static("", id="parts-suggested")
-                yield BenchInput(id="parts", compact=True,
+                yield BenchInput(id="parts", compact=True, select_on_focus=False,
                                  placeholder="type the parts you fitted (empty: none)")
                 yield Static("", id="parts-error", classes="field-error")
             yield CheckPanel(id="check")
@@ -196,6 +196,16 @@ class ConclusionScreen(CaseScreen):
     def elapsed_minutes(self) -> int:
         """Whole minutes since the case was opened, at least 1 (the tech may correct it)."""
         return whole_minutes_since(self.case.data.get("opened"), self.bench.clock())
+
+    def current_field(self):
+        if self.query_one("#parts-form").display:
+            return self.query_one("#parts", Input)
+        panel = self.query_one(CheckPanel)
+        if panel.display:
+            return panel.input
+        if self.query_one("#close-form").display:
+            return self.query_one("#close-minutes" if self.outcome else "#close-outcome", Input)
+        return None
 
     # ------------------------------------------------------------------ input
 

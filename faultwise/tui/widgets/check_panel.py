@@ -87,7 +87,8 @@ class CheckPanel(Vertical):
         yield Static("", id="check-expected")
         yield Static("", id="check-choices")
         yield Static("", id="check-warning")
-        yield BenchInput(id="answer", compact=True,
+        # Not select_on_focus: coming back from a dialog, typing goes on after what was typed.
+        yield BenchInput(id="answer", compact=True, select_on_focus=False,
                          placeholder="type the reading, Enter records it")
         yield Static("", id="answer-error")
 
