@@ -128,3 +128,49 @@ async def test_focus_returns_to_the_parts_field_after_a_note(make_app, low_readi
         await pilot.press("escape", "x")
         assert app.screen.id == "conclusion"
         assert app.focused.id == "parts" and app.focused.value == "x"
+
+
+def placeholder_style(field):
+    return field.get_component_rich_style("input--placeholder")
+
+
+async def test_placeholders_read_as_hints_and_enter_on_empty_says_what_to_type(
+        make_app, cases_dir, low_reading):
+    """The close form's outcome field is empty, its placeholder a dim italic hint ('type 1,
+    2 or 3') that cannot pass for a value; Enter on it says what to type; nothing recorded."""
+    import re
+
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await to_repair(pilot, low_reading)
+        await pilot.press("enter")                  # no parts
+        await pilot.pause()
+        answer_field = app.screen.query_one("#answer")
+        # The reading's placeholder is a hint with no number in it.
+        assert answer_field.placeholder.startswith("type ")
+        assert not re.search(r"\d", answer_field.placeholder), answer_field.placeholder
+        assert placeholder_style(answer_field).italic
+        while not app.screen.query_one("#close-form").display:
+            prompt = app.screen.walk.prompt()
+            await answer(pilot, f"{prompt.expected.nominal:.3g}")
+            await acknowledge_cautions(pilot)
+        outcome = app.screen.query_one("#close-outcome")
+        assert app.focused is outcome and outcome.value == ""
+        assert outcome.placeholder == "type 1, 2 or 3"
+        style = placeholder_style(outcome)
+        assert style.italic and style.color != outcome.rich_style.color
+        before = read_case(cases_dir)["events"]
+        await pilot.press("enter")
+        await pilot.pause()
+        assert "type 1, 2 or 3" in str(app.screen.query_one("#close-error").render())
+        assert read_case(cases_dir)["events"] == before
+
+
+async def test_choice_placeholder_counts_the_choices(make_app):
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot, complaint="hums loudly")
+        await acknowledge_cautions(pilot)
+        field = app.screen.query_one("#answer")
+        n = len(app.screen.walk.prompt().choices)
+        assert field.placeholder.startswith("type 1") and f"{n}" in field.placeholder

@@ -107,8 +107,9 @@ class ConclusionScreen(CaseScreen):
                     Content.from_markup("[b reverse] $n [/]  $label", n=str(i), label=label)
                     for i, (_, label) in enumerate(OUTCOME_CHOICES, 1)), id="close-choices")
                 yield BenchInput(id="close-outcome", compact=True,
-                                 placeholder="outcome: 1, 2 or 3")
-                yield BenchInput(id="close-minutes", compact=True, placeholder="minutes spent",
+                                 placeholder="type 1, 2 or 3")
+                yield BenchInput(id="close-minutes", compact=True,
+                                 placeholder="type the minutes spent",
                                  type="integer", validate_on=["changed", "submitted"],
                                  validators=[Integer(minimum=0,
                                                      failure_description=MINUTES_RULE)])
@@ -235,6 +236,9 @@ class ConclusionScreen(CaseScreen):
         from faultwise.walk import resolve_choice
 
         error = self.query_one("#close-error", Static)
+        if not str(text or "").strip():
+            error.update("No outcome chosen yet: type 1, 2 or 3 (the field is empty).")
+            return
         try:
             outcome = resolve_choice(text, OUTCOME_CHOICES)
         except FaultwiseError as exc:

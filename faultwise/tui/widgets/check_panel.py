@@ -118,14 +118,16 @@ class CheckPanel(Vertical):
                 "2R2).", what=exp.title, unit=exp.unit or "its unit"))
             expected_box.update(Content("\n").join(band_lines(exp)))
             choices_box.update("")
-            self.input.placeholder = f"reading, e.g. {reading_text(exp.nominal, exp.unit)}"
+            self.input.placeholder = f"type the reading in {exp.unit or 'its unit'}, then Enter"
         else:
             what = ("This set's profile gives no band for this reading: judge it and "
                     "choose." if check.is_measurement else "What do you see? Press its number.")
             self.query_one("#check-instruction", Static).update(what)
             expected_box.update("")
             choices_box.update(choice_lines(prompt.choices))
-            self.input.placeholder = "number or name of the choice"
+            from faultwise.tui.widgets.bench_input import choices_hint
+
+            self.input.placeholder = choices_hint(len(prompt.choices)) + " (or the choice's name)"
         warning = self.query_one("#check-warning", Static)
         warning.update(Content.from_markup("[b]![/b] $w", w=readable(prompt.warning, knowledge))
                        if prompt.warning else "")
