@@ -174,3 +174,37 @@ async def test_choice_placeholder_counts_the_choices(make_app):
         field = app.screen.query_one("#answer")
         n = len(app.screen.walk.prompt().choices)
         assert field.placeholder.startswith("type 1") and f"{n}" in field.placeholder
+
+
+async def test_transformer_set_gets_its_own_chassis_wording(cases_dir):
+    """Loud hum on the bundled 230 V transformer demo set: the caution dialog gives the
+    transformer wording (B+ lethal, line bypass capacitor), never the series-string one."""
+    from conftest import FIXED_NOW, fixed_clock
+    from faultwise.tui.app import build_app
+    from faultwise.tui.settings import Settings
+    from faultwise.workspace import Workspace, bundled_knowledge_dir
+
+    app = build_app(Workspace(knowledge_dir=bundled_knowledge_dir(), cases_dir=cases_dir,
+                              bench="B1"), clock=fixed_clock,
+                    settings=Settings(None, safety_acknowledged=FIXED_NOW.isoformat(),
+                                      caution_guard_s=0.2))
+    seen: list[str] = []
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot, search="230 V noval", complaint="loud hum")
+        assert app.screen_stack[1].walk.family == "transformer"
+        await pilot.press("2")                   # loud with the volume at zero: supply
+        await pilot.pause()
+        for _ in range(3):                       # the first few checks and their cautions
+            while app.screen.id == "caution":
+                seen += [c.id for c in app.screen.cautions]
+                text = "\n".join(str(s.render()) for s in app.screen.query(".caution-text"))
+                assert "The chassis may be live" not in text
+                await acknowledge_cautions(pilot)
+            if app.screen.id != "walk":
+                break
+            prompt = app.screen.walk.prompt()
+            if prompt.kind != "check":
+                break
+            await answer(pilot, f"{prompt.expected.nominal:.4g}" if prompt.expected else "1")
+    assert "transformer-chassis" in seen and "live-chassis" not in seen
+    assert "live-chassis" not in read_case(cases_dir)["acknowledged"]
