@@ -203,3 +203,25 @@ def test_walk_shipped_knowledge_end_to_end(tmp_path):
     assert out.returncode == 0, out.stderr
     doc = json.loads(out.stdout)
     assert doc["conclusion"] == fault.id and doc["checks"] == len(doc["steps"]) > 0
+
+
+def test_replay_takes_folders_as_the_readme_does(tmp_path):
+    """`faultwise replay cases` (a README example): a folder means every case in it,
+    subfolders too; a folder without cases is one clear sentence."""
+    import test_replay as R
+
+    folder = tmp_path / "cases"
+    ids = R.record_cases(folder)
+    (folder / "2025").mkdir()
+    moved = sorted(folder.glob("*.json"))[0]
+    moved.rename(folder / "2025" / moved.name)
+    out = fw("replay", "cases", "--knowledge", KB, "--json", cwd=tmp_path)
+    assert out.returncode == 0, out.stderr
+    doc = json.loads(out.stdout)
+    assert doc["replayed"] == len(ids) and doc["same"] == len(ids)
+    out = fw("replay", "cases/2025", "--knowledge", KB, "--json", cwd=tmp_path)
+    assert out.returncode == 0 and json.loads(out.stdout)["replayed"] == 1
+    (tmp_path / "empty").mkdir()
+    out = fw("replay", "empty", "--knowledge", KB, cwd=tmp_path)
+    assert out.returncode == 1 and "Traceback" not in out.stderr
+    assert out.stderr.count("\n") == 1 and "no case files" in out.stderr
