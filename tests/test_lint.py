@@ -450,3 +450,28 @@ def test_shipped_cautions_fit_each_family():
         named = getattr(node, "cautions", ())
         if "live-chassis" in named and "transformer" in node.families:
             assert "transformer-chassis" in named, node.id
+
+
+def test_lint_from_a_checkout_that_was_never_installed(tmp_path):
+    """`python -m faultwise lint` at the root of a checkout without an install finds the
+    knowledge beside the package. Simulated with -S: no site processing, so no editable
+    install's finder; only the dependencies' folder is on the path."""
+    import yaml as _yaml
+
+    root = Path(__file__).resolve().parent.parent
+    site = str(Path(_yaml.__file__).resolve().parent.parent)
+    checkout = tmp_path / "checkout"
+    shutil.copytree(root / "faultwise", checkout / "faultwise",
+                    ignore=shutil.ignore_patterns("__pycache__"))
+    shutil.copytree(root / "knowledge", checkout / "knowledge")
+    env = {**os.environ, "PYTHONPATH": site}
+    out = subprocess.run([sys.executable, "-S", "-m", "faultwise", "lint"], cwd=checkout,
+                         env=env, capture_output=True, text=True, timeout=120)
+    assert out.returncode == 0, out.stderr
+    assert out.stdout.startswith("knowledge OK")
+    # Without the folder either: one sentence that says how to install.
+    shutil.rmtree(checkout / "knowledge")
+    out = subprocess.run([sys.executable, "-S", "-m", "faultwise", "lint"], cwd=checkout,
+                         env=env, capture_output=True, text=True, timeout=120)
+    assert out.returncode == 1 and "Traceback" not in out.stderr
+    assert "pip install ." in out.stderr and out.stderr.count("\n") == 1
