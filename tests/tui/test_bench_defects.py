@@ -208,3 +208,47 @@ async def test_transformer_set_gets_its_own_chassis_wording(cases_dir):
             await answer(pilot, f"{prompt.expected.nominal:.4g}" if prompt.expected else "1")
     assert "transformer-chassis" in seen and "live-chassis" not in seen
     assert "live-chassis" not in read_case(cases_dir)["acknowledged"]
+
+
+def lineup_types(placeholder: str) -> dict[str, str]:
+    text = placeholder.removeprefix("e.g. ")
+    return dict(chunk.strip().split("=") for chunk in text.split(","))
+
+
+@pytest.mark.parametrize("number,family", [("1", "series-string"), ("2", "transformer")])
+async def test_template_shows_the_familys_lineup_and_supply_fields(make_app, number, family):
+    """Each family's template: its own supply fields on screen at 80x24 without scrolling,
+    and a typical lineup of that family as the example (outside check: the tube table's
+    heater voltages, handbook values from memory as tubes.yaml says). A series string sums
+    to about the 120 V line (common practice, no source: within 10 %); a transformer set's
+    tubes (rectifier aside) have 6.3 V heaters for the 6.3 V winding."""
+    from faultwise.tubes import load_tube_table
+    from tui_helpers import ready
+
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await ready(pilot)
+        await pilot.press("n")
+        await ready(pilot)
+        await pilot.press("f2", number)
+        await pilot.pause()
+        screen = app.screen
+        assert screen.id == "template-form" and screen.family == family
+        fields = screen.query_one("#template-fields").region
+        own = {"series-string": ["tf-mains-volts-v", "tf-supply-surge-ohm"],
+               "transformer": ["tf-mains-volts-v", "tf-heater-winding-v",
+                               "tf-supply-secondary-v"]}[family]
+        for key in own + ["tf-tubes"]:
+            region = screen.query_one(f"#{key}").region
+            assert region.height == 1 and region.y >= fields.y and \
+                region.bottom <= fields.bottom, key
+        tubes = screen.query_one("#tf-tubes")
+        assert tubes.value == "" and tubes.placeholder.startswith("e.g. ")
+        lineup = lineup_types(tubes.placeholder)
+        table = load_tube_table(None)
+        heaters = {role: table[t].heater_v for role, t in lineup.items()}
+        if family == "series-string":
+            assert abs(sum(heaters.values()) - 120) <= 12, heaters
+        else:
+            assert all(v == 6.3 for role, v in heaters.items() if role != "rectifier"), heaters
+            assert "35W4" not in tubes.placeholder and "50C5" not in tubes.placeholder
