@@ -252,3 +252,51 @@ async def test_template_shows_the_familys_lineup_and_supply_fields(make_app, num
         else:
             assert all(v == 6.3 for role, v in heaters.items() if role != "rectifier"), heaters
             assert "35W4" not in tubes.placeholder and "50C5" not in tubes.placeholder
+
+
+@pytest.mark.parametrize("width", [80, 110])
+async def test_start_list_shows_short_set_labels_and_full_symptoms(tmp_path, width):
+    """Two cases on bundled demo sets ('Demo bench set: ...'), one with the longest symptom
+    title: the Set column shows the label without the shared prefix, the symptom title is
+    in full, every column fits, the detail line keeps the full label; at 110 columns the
+    short labels are in full too."""
+    from conftest import FIXED_NOW, fixed_clock
+    from faultwise.cases import CaseStore
+    from faultwise.graph import load_knowledge
+    from faultwise.profile import load_profile
+    from faultwise.tui.app import build_app
+    from faultwise.tui.settings import Settings
+    from faultwise.tui.wording import symptom_title
+    from faultwise.workspace import Workspace, bundled_knowledge_dir
+
+    kd = bundled_knowledge_dir()
+    cases = tmp_path / "cases"
+    knowledge = load_knowledge(kd)
+    store = CaseStore(cases, "B1", fixed_clock)
+    made = {}
+    for name, symptom in (("demo-5-tube-table.yaml", "squeal-or-motorboat"),
+                          ("demo-230v-transformer.yaml", "hum-loud")):
+        profile = load_profile(kd / "sets" / name)
+        with store.new_case(profile, name, "customer's words", symptom,
+                            knowledge_version=knowledge.version) as case:
+            made[case.id] = (profile.label, symptom)
+    app = build_app(Workspace(knowledge_dir=kd, cases_dir=cases, bench="B1"), clock=fixed_clock,
+                    settings=Settings(None, safety_acknowledged=FIXED_NOW.isoformat()))
+    async with app.run_test(size=(width, 24)) as pilot:
+        from tui_helpers import ready
+
+        await ready(pilot)
+        table = app.screen.query_one("#cases")
+        used = sum(c.get_render_width(table) for c in table.columns.values())
+        assert used <= table.size.width - table.styles.scrollbar_size_vertical
+        set_width = table.columns["set"].width
+        sym_width = table.columns["symptom"].width
+        for case_id, (label, symptom) in made.items():
+            row = table.get_row(f"open:{case_id}")
+            short = row[2].plain
+            assert label.startswith("Demo bench set: ") and short == label.split(": ", 1)[1]
+            assert set_width >= 12 and (width < 100 or len(short) <= set_width)
+            title = symptom_title(knowledge, symptom)
+            assert row[3].plain == title and len(title) <= sym_width, (title, sym_width)
+        detail = str(app.screen.query_one("#case-detail").render())
+        assert "Demo bench set: " in detail

@@ -36,7 +36,7 @@ async def _settle(pilot) -> None:
 def test_start_screen(snap_app, workspace, snap_compare):
     """Start screen: the safety strip at the top; the case table with one open case
     (20261201-B1-002, selected first), one DAMAGED file (truncated) and one closed case
-    (20261201-B1-001, closed: waiting-parts), symptoms by title ('Loud hum'); the detail
+    (20261201-B1-001, for parts), symptoms by title ('Loud hum'); the detail
     line of the selected open case;
     the footer with ⏎ Open, n New case, v View, r Review, f9 Safety, ? Help, ^q Quit."""
     make_cases(workspace)

@@ -135,7 +135,9 @@ def test_walk_a_case_in_a_real_terminal(tmp_path):
         term.wait_for("Does a known-good rectifier")
         term.keys("1")
         term.wait_for("Weak rectifier tube")
-        term.keys("Enter")                          # parts as offered
+        term.keys("C-t")                            # the suggested parts, picked
+        term.wait_for("35W4")
+        term.keys("Enter")
         term.wait_for("VERIFY")
         term.type("123")
         term.keys("Enter")
@@ -149,7 +151,7 @@ def test_walk_a_case_in_a_real_terminal(tmp_path):
         term.wait_for("an empty field")             # the field is cleared before typing
         term.type("30")
         term.keys("Enter")
-        screen = term.wait_for("closed: repaired")
+        screen = term.wait_for("closed (repaired)")
         assert "Traceback" not in screen
         term.keys("C-q")
     finally:
