@@ -72,7 +72,7 @@ class ConclusionScreen(CaseScreen):
         Binding("f8", "resume", "Not cured", tooltip="Resume the diagnosis", priority=True),
         Binding("f9", "to_closing", "Unrepaired", tooltip="Return the set unrepaired",
                 priority=True),
-        Binding("ctrl+t", "take_parts", "Take suggested", tooltip="Put the suggested parts "
+        Binding("ctrl+t", "take_parts", "Pick", tooltip="Put the suggested parts "
                 "in the field", priority=True),
         Binding("pagedown", "scroll_steps(4)", "More steps", show=False, priority=True),
         Binding("pageup", "scroll_steps(-4)", "Steps back", show=False, priority=True),
