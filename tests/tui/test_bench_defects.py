@@ -159,6 +159,13 @@ async def test_placeholders_read_as_hints_and_enter_on_empty_says_what_to_type(
         assert outcome.placeholder == "type 1, 2 or 3"
         style = placeholder_style(outcome)
         assert style.italic and style.color != outcome.rich_style.color
+        # Each field is labelled on its own row: the minutes' real default (a number) is
+        # never taken for the outcome (found in the 80x24 walk-through).
+        minutes = app.screen.query_one("#close-minutes")
+        for field, word in ((outcome, "Outcome"), (minutes, "Minutes")):
+            label = field.parent.children[0]
+            assert word in str(label.render()) and label.region.y == field.region.y
+            assert label.region.width > 0 and field.region.x >= label.region.right
         before = read_case(cases_dir)["events"]
         await pilot.press("enter")
         await pilot.pause()

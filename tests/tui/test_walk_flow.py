@@ -176,7 +176,7 @@ async def test_complaint_to_close(make_app, cases_dir, bands):
         assert not (cases_dir / f"{CASE_ID}.lock").exists()      # the lock is released
         await ready(pilot)
         table = app.screen.query_one("#cases")
-        assert table.get_row(f"closed:{CASE_ID}")[1].plain == "closed: repaired"
+        assert table.get_row(f"closed:{CASE_ID}")[1].plain == "repaired"
 
 
 async def test_off_graph_finding_then_close(make_app, cases_dir):

@@ -55,11 +55,13 @@ class CautionScreen(ModalScreen[bool]):
                 title += f" ({len(self.cautions)} cautions)"
             yield Static(title, classes="modal-title", id="caution-title")
             with Horizontal(classes="modal-buttons", id="caution-buttons"):
+                # The guard's hint sits beside the buttons: on screen at 80x24 whatever
+                # the length of the texts above.
+                yield Static(self._guard_text(), id="caution-guard")
                 if not self.reminder:
                     yield Button("Leave the case", id="caution-leave")
                 yield Button("Understood", id="caution-ok", variant="error",
                              disabled=not self.armed)
-            yield Static(self._guard_text(), id="caution-guard")
             with VerticalScroll(id="caution-scroll", can_focus=False):
                 for caution in self.cautions:
                     yield Static(Content.from_markup("[b]⚠ $title[/b]\n$text",
@@ -71,9 +73,9 @@ class CautionScreen(ModalScreen[bool]):
             return Content("")
         if not self.armed:
             return Content.from_markup(
-                "[dim]Read first: keys are ignored for $s s after this opens, so a stray "
-                "key cannot acknowledge it.[/dim]", s=f"{self.guard_s:g}")
-        return Content.from_markup("[dim]Enter: understood · Esc: leave the case[/dim]")
+                "[dim]Read first: keys are ignored for $s s after this opens.[/dim]",
+                s=f"{self.guard_s:g}")
+        return Content.from_markup("[dim]Enter: understood\nEsc: leave the case[/dim]")
 
     def on_mount(self) -> None:
         self._opened = time.monotonic()

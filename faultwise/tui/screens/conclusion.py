@@ -12,7 +12,7 @@ from __future__ import annotations
 from textual import on
 from textual.app import ComposeResult, SystemCommand
 from textual.binding import Binding
-from textual.containers import Vertical, VerticalScroll
+from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.content import Content
 from textual.validation import Integer
 from textual.widgets import Footer, Header, Input, Static
@@ -106,13 +106,19 @@ class ConclusionScreen(CaseScreen):
                 yield Static(Content("\n").join(
                     Content.from_markup("[b reverse] $n [/]  $label", n=str(i), label=label)
                     for i, (_, label) in enumerate(OUTCOME_CHOICES, 1)), id="close-choices")
-                yield BenchInput(id="close-outcome", compact=True,
-                                 placeholder="type 1, 2 or 3")
-                yield BenchInput(id="close-minutes", compact=True,
-                                 placeholder="type the minutes spent",
-                                 type="integer", validate_on=["changed", "submitted"],
-                                 validators=[Integer(minimum=0,
-                                                     failure_description=MINUTES_RULE)])
+                # Each field has its label on its row: the minutes' real default must not
+                # pass for an outcome typed or offered.
+                with Horizontal(classes="field-row close-row"):
+                    yield Static("Outcome", classes="field-name")
+                    yield BenchInput(id="close-outcome", compact=True,
+                                     placeholder="type 1, 2 or 3")
+                with Horizontal(classes="field-row close-row"):
+                    yield Static("Minutes spent", classes="field-name")
+                    yield BenchInput(id="close-minutes", compact=True,
+                                     placeholder="type the minutes spent",
+                                     type="integer", validate_on=["changed", "submitted"],
+                                     validators=[Integer(minimum=0,
+                                                         failure_description=MINUTES_RULE)])
                 yield Static("", id="close-error", classes="field-error")
             yield History(id="history")
         yield Footer(show_command_palette=False, compact=True)
