@@ -13,7 +13,8 @@ import importlib
 import os
 import sys
 
-from faultwise.errors import FaultwiseError
+from faultwise.commands import add_workspace_options
+from faultwise.core.errors import FaultwiseError
 
 COMMANDS = ("expect", "match", "lint", "walk", "replay", "review", "sweep", "report", "demo")
 
@@ -23,19 +24,6 @@ class _Parser(argparse.ArgumentParser):
 
     def error(self, message: str) -> None:  # noqa: D401 - argparse API
         self.exit(1, f"faultwise: {message}. Run '{self.prog} --help' for the options.\n")
-
-
-def add_workspace_options(p: argparse.ArgumentParser, *, top: bool = False) -> None:
-    """The options every command that reads the workspace takes.
-
-    On a subcommand the options default to "not given" (SUPPRESS), so that
-    ``faultwise --knowledge X lint`` and ``faultwise lint --knowledge X`` mean the same.
-    """
-    default = None if top else argparse.SUPPRESS
-    p.add_argument("--knowledge", metavar="DIR", default=default,
-                   help="knowledge folder (default: the bundled one)")
-    p.add_argument("--cases", metavar="DIR", default=default,
-                   help="cases folder (default: ./cases)")
 
 
 def build_parser() -> argparse.ArgumentParser:

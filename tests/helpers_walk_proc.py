@@ -29,19 +29,19 @@ def script_step(walk, kind: str, text: str) -> None:
         walk.close(text, 30)
 
 def series_profile():
-    from faultwise.profile import load_profile
+    from faultwise.profile.load import load_profile
 
     return load_profile(KB / "sets" / "series.yaml")
 
 
 def transistor_profile():
-    from faultwise.profile import load_profile
+    from faultwise.profile.load import load_profile
 
     return load_profile(KB / "sets" / "portable.yaml")
 
 
 def _e(name, nominal, low, high, absent_below, unit="V"):
-    from faultwise.expect import Expected
+    from faultwise.expect.expected import Expected
 
     return Expected(name=name, title=name, stage=name.split(".")[0], nominal=nominal, low=low,
                     high=high, unit=unit, basis="fixture band", absent_below=absent_below)
@@ -57,7 +57,7 @@ def expectations():
 
 
 def knowledge():
-    from faultwise.graph import load_knowledge
+    from faultwise.graph.knowledge import load_knowledge
 
     return load_knowledge(KB)
 
@@ -70,7 +70,7 @@ SCRIPT = [("answer", "58 V"), ("answer", "good"), ("note", "customer says it hum
 
 def hold(cases_dir: str, case_id: str, bench: str) -> int:
     """Open the case at ``bench``, say so on stdout, and keep it until stdin closes."""
-    from faultwise.cases import CaseStore
+    from faultwise.cases.store import CaseStore
 
     case = CaseStore(cases_dir, bench).open(case_id)
     print("held", flush=True)
@@ -80,8 +80,8 @@ def hold(cases_dir: str, case_id: str, bench: str) -> int:
 
 
 def main(cases_dir: str, case_id: str, saves_per_step: int = 1) -> int:
-    from faultwise.cases import CaseStore
-    from faultwise.walk import Walk
+    from faultwise.cases.store import CaseStore
+    from faultwise.walk.state import Walk
 
     kn = knowledge()
     store = CaseStore(cases_dir, "B1")

@@ -20,24 +20,18 @@ from types import MappingProxyType
 
 import pytest
 
-from faultwise.applicability import (
-    WHEN_KEYS,
-    applies_predicate,
-    applying_faults,
-    node_applies,
-    set_facts,
-    when_holds,
-)
-from faultwise.errors import KnowledgeError
-from faultwise.expect import expect
-from faultwise.graph import load_all, load_knowledge
-from faultwise.nodes import Check
-from faultwise.profile import load_profile
-from faultwise.rank import investigation_cost, rank_investigations
-from faultwise.sweep import load_demo_sets, run_sweep
-from faultwise.sweep_report import sweep_text, sweep_to_dict
-from faultwise.walk import Walk, auto_walk, representative_value
-from faultwise.workspace import bundled_knowledge_dir
+from faultwise.graph.applicability import (WHEN_KEYS, applies_predicate, applying_faults,
+                                           node_applies, set_facts, when_holds)
+from faultwise.core.errors import KnowledgeError
+from faultwise.expect.expected import expect
+from faultwise.graph.knowledge import load_all, load_knowledge
+from faultwise.graph.nodes import Check
+from faultwise.profile.load import load_profile
+from faultwise.walk.rank import investigation_cost, rank_investigations
+from faultwise.shop.sweep import load_demo_sets, run_sweep
+from faultwise.shop.sweep_report import sweep_text, sweep_to_dict
+from faultwise.walk.state import Walk, auto_walk, representative_value
+from faultwise.core.workspace import bundled_knowledge_dir
 
 KB = Path(__file__).parent / "fixtures" / "kb_when"
 SHIPPED = bundled_knowledge_dir()

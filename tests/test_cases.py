@@ -23,9 +23,9 @@ from pathlib import Path
 import helpers_walk_proc as H
 import pytest
 
-from faultwise.cases import CASE_KEYS, CaseStore, read_case_bytes
-from faultwise.errors import CaseError, CaseLockedError, DamagedCaseError
-from faultwise.walk import Walk
+from faultwise.cases.store import CASE_KEYS, CaseStore, read_case_bytes
+from faultwise.core.errors import CaseError, CaseLockedError, DamagedCaseError
+from faultwise.walk.state import Walk
 
 PY = sys.executable
 HELPER = str(Path(__file__).parent / "helpers_walk_proc.py")
@@ -84,7 +84,7 @@ def test_many_processes_creating_at_the_same_second_get_unique_ids(tmp_path):
     code = ("import sys; sys.path.insert(0, %r)\n"
             "from datetime import datetime, timezone\n"
             "import helpers_walk_proc as H\n"
-            "from faultwise.cases import CaseStore\n"
+            "from faultwise.cases.store import CaseStore\n"
             "s = CaseStore(%r, 'B1', clock=lambda: datetime(2026, 12, 1, 9, 30, tzinfo=timezone.utc))\n"
             "c = s.new_case({'family': 'series-string', 'label': 'x'}, 'x', 'dead', 'dead-lights-on')\n"
             "print(c.id); c.close()\n") % (str(Path(HELPER).parent), str(folder))

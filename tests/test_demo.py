@@ -8,12 +8,12 @@ from pathlib import Path
 
 import pytest
 
-from faultwise.cases import CaseStore
-from faultwise.demo import generate
-from faultwise.errors import FaultwiseError
-from faultwise.graph import load_knowledge
-from faultwise.replay import case_files, replay_files
-from faultwise.workspace import bundled_knowledge_dir
+from faultwise.cases.store import CaseStore
+from faultwise.shop.demo import generate
+from faultwise.core.errors import FaultwiseError
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.shop.replay import case_files, replay_files
+from faultwise.core.workspace import bundled_knowledge_dir
 
 REPO_CASES = Path(__file__).resolve().parent.parent / "cases"
 

@@ -10,17 +10,9 @@ from pathlib import Path
 
 import pytest
 
-from faultwise.expect import STAGES, Expected, expect, expectation_names
-from faultwise.profile import (
-    TRANSISTOR_ROLES,
-    TUBE_ROLES,
-    Audio,
-    Bias,
-    Profile,
-    Supply,
-    Transistor,
-    Tube,
-)
+from faultwise.expect.expected import STAGES, Expected, expect, expectation_names
+from faultwise.profile.model import (TRANSISTOR_ROLES, TUBE_ROLES, Audio, Bias, Profile, Supply,
+                                     Transistor, Tube)
 
 ROOT = Path(__file__).resolve().parents[1]
 SETS = ROOT / "knowledge" / "sets"
@@ -195,7 +187,7 @@ def test_bands_move_with_the_profile():
 
 
 def test_impossible_supply_is_a_located_profile_error():
-    from faultwise.errors import ProfileError
+    from faultwise.core.errors import ProfileError
 
     p = series_string(supply=replace(series_string().supply, load_ma=900, filter_load_ma=100),
                       source="bad.yaml")
@@ -211,11 +203,10 @@ def _demo_sets() -> list[Path]:
 
 
 def test_demo_sets_produce_their_familys_names():
-    from faultwise.profile import load_profile
+    from faultwise.profile.load import load_profile
 
     sets = _demo_sets()
-    if not sets:
-        pytest.skip("no demo sets in knowledge/sets yet")
+    assert len(sets) >= 10, "the bundled knowledge ships ten demo sets"
     for path in sets:
         p = load_profile(path)
         e = expect(p)
@@ -231,11 +222,9 @@ def _run(*args: str) -> subprocess.CompletedProcess:
 
 
 def _a_demo_set() -> Path:
-    sets = _demo_sets()
-    if not sets:
-        pytest.skip("no demo sets in knowledge/sets yet")
-    named = [s for s in sets if "5-tube" in s.name]
-    return named[0] if named else sets[0]
+    named = [s for s in _demo_sets() if "5-tube" in s.name]
+    assert named, "the demo 5-tube series-string table set is bundled"
+    return named[0]
 
 
 def test_command_prints_the_table():

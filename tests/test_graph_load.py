@@ -17,9 +17,9 @@ import networkx as nx
 import pytest
 import yaml
 
-from faultwise.errors import KnowledgeError
-from faultwise.graph import load_knowledge
-from faultwise.nodes import FAMILIES, MEASURE_OUTCOMES, Check, Escalate, Fault, Suspects
+from faultwise.core.errors import KnowledgeError
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.graph.nodes import FAMILIES, MEASURE_OUTCOMES, Check, Escalate, Fault, Suspects
 
 KB = Path(__file__).parent / "fixtures" / "kb_small"
 
@@ -210,7 +210,7 @@ def test_version_is_a_sha256_over_the_files_and_changes_with_a_byte(tmp_path):
 
 
 def test_load_does_not_import_networkx():
-    code = ("import sys; from faultwise.graph import load_knowledge; "
+    code = ("import sys; from faultwise.graph.knowledge import load_knowledge; "
             f"k = load_knowledge({str(KB)!r}); k.entry('hum-loud', 'transformer'); "
             "print('networkx' in sys.modules, 'rapidfuzz' in sys.modules)")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,

@@ -13,8 +13,8 @@ from pathlib import Path
 
 import pytest
 
-import faultwise.index as index_mod
-from faultwise.index import INDEX_NAME, SCHEMA, scan_cases
+import faultwise.cases.index as index_mod
+from faultwise.cases.index import INDEX_NAME, SCHEMA, scan_cases
 from review_case_factory import make_case, write_case
 
 

@@ -11,11 +11,11 @@ from collections import Counter
 
 import pytest
 
-from faultwise.expect import expect
-from faultwise.graph import load_knowledge
-from faultwise.nodes import FAMILIES, STAGES, Check, Fault
-from faultwise.profile import load_profile
-from faultwise.workspace import bundled_knowledge_dir
+from faultwise.expect.expected import expect
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.graph.nodes import FAMILIES, STAGES, Check, Fault
+from faultwise.profile.load import load_profile
+from faultwise.core.workspace import bundled_knowledge_dir
 
 SYMPTOM_IDS = {  # DESIGN section 6, a contract
     "dead-nothing-lights", "dead-lights-on", "hum-loud", "noise-no-stations",
@@ -125,7 +125,7 @@ def test_conclusions_do_not_depend_on_the_order(kn):
     order (the sweep's baselines): each must still conclude its own fault, so no route is
     right only because an earlier suspect happened to be cleared first.
     """
-    from faultwise.sweep import load_demo_sets, run_sweep
+    from faultwise.shop.sweep import load_demo_sets, run_sweep
 
     sets = load_demo_sets(bundled_knowledge_dir() / "sets")
     report = run_sweep(kn, sets)

@@ -21,9 +21,9 @@ import yaml
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from faultwise.errors import KnowledgeError
-from faultwise.graph import load_knowledge
-from faultwise.lint import SYMPTOM_IDS, LintReport, _name_matcher, lint
+from faultwise.core.errors import KnowledgeError
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.graph.lint import SYMPTOM_IDS, LintReport, _name_matcher, lint
 
 KB = Path(__file__).parent / "fixtures" / "kb_small"
 
@@ -88,11 +88,11 @@ def test_kb_small_is_clean():
 
 
 def test_default_names_come_from_faultwise_expect(monkeypatch):
-    import faultwise.expect
+    import faultwise.expect.expected
 
-    monkeypatch.setattr(faultwise.expect, "expectation_names", names)
+    monkeypatch.setattr(faultwise.expect.expected, "expectation_names", names)
     assert lint(KB).errors == []
-    monkeypatch.setattr(faultwise.expect, "expectation_names",
+    monkeypatch.setattr(faultwise.expect.expected, "expectation_names",
                         lambda family: frozenset(names(family) - {"if.peak_khz"}))
     only(lint(KB), "unknown expectation name 'if.peak_khz'")
 
@@ -337,7 +337,7 @@ def test_cli_clean_summary():
 
 def test_shipped_knowledge_has_no_errors():
     """Passes once the content engineers' knowledge/ is complete."""
-    from faultwise.workspace import bundled_knowledge_dir
+    from faultwise.core.workspace import bundled_knowledge_dir
 
     report = lint(bundled_knowledge_dir())
     assert report.errors == [], "\n".join(f.text() for f in report.errors[:40])
@@ -439,7 +439,7 @@ def test_shipped_cautions_fit_each_family():
     chassis warns a transformer set with its own wording (B+ lethal, the line bypass
     capacitor). Trade fact, common practice, no source: a transformer set's chassis is
     isolated from the line unless a line-to-chassis capacitor or a winding fails."""
-    from faultwise.workspace import bundled_knowledge_dir
+    from faultwise.core.workspace import bundled_knowledge_dir
 
     k = load_knowledge(bundled_knowledge_dir())
     assert k.cautions["live-chassis"].families == ("series-string",)

@@ -16,10 +16,10 @@ from pathlib import Path
 
 from rapidfuzz import fuzz
 
-from faultwise.graph import load_knowledge, load_symptoms
-from faultwise.lint import SYMPTOM_IDS
-from faultwise.match import match, normalise, normalise_words
-from faultwise.yamlload import load_yaml_file
+from faultwise.graph.knowledge import load_knowledge, load_symptoms
+from faultwise.graph.lint import SYMPTOM_IDS
+from faultwise.graph.match import match, normalise, normalise_words
+from faultwise.core.yamlload import load_yaml_file
 
 HERE = Path(__file__).parent
 KB = HERE / "fixtures" / "kb_small"
@@ -59,7 +59,7 @@ def test_top_three_on_kb_small():
 
 def test_top_three_on_the_shipped_knowledge():
     """Depends on the content engineers' knowledge/symptoms.yaml."""
-    from faultwise.workspace import bundled_knowledge_dir
+    from faultwise.core.workspace import bundled_knowledge_dir
 
     shipped = load_symptoms(bundled_knowledge_dir())
     known = {plain(p) for s in shipped.values() for p in (s.title,) + s.phrasings}
@@ -134,8 +134,8 @@ def test_cli_text_and_empty_complaint():
 
 
 def test_match_imports_nothing_heavy():
-    code = ("import sys; import faultwise.match as m; a = 'rapidfuzz' in sys.modules; "
-            "from faultwise.graph import load_symptoms; "
+    code = ("import sys; import faultwise.graph.match as m; a = 'rapidfuzz' in sys.modules; "
+            "from faultwise.graph.knowledge import load_symptoms; "
             f"m.match('hums', load_symptoms({str(KB)!r})); "
             "print(a, 'networkx' in sys.modules)")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,

@@ -19,13 +19,12 @@ from pathlib import Path
 import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
 
-from faultwise.codes import is_preferred
-from faultwise.errors import FaultwiseError, ProfileError
-from faultwise.profile import (
-    FAMILIES, TRANSISTOR_ROLES, Profile, load_profile, profile_from_dict, profile_to_dict,
-)
-from faultwise.workspace import bundled_knowledge_dir
-from faultwise.yamlload import load_yaml_file
+from faultwise.core.codes import is_preferred
+from faultwise.core.errors import FaultwiseError, ProfileError
+from faultwise.profile.load import load_profile, profile_from_dict
+from faultwise.profile.model import FAMILIES, TRANSISTOR_ROLES, Profile, profile_to_dict
+from faultwise.core.workspace import bundled_knowledge_dir
+from faultwise.core.yamlload import load_yaml_file
 
 ROOT = Path(__file__).resolve().parents[1]
 FIXTURES = Path(__file__).resolve().parent / "fixtures" / "profiles"
@@ -427,8 +426,6 @@ def test_mutated_profiles_raise_only_faultwise_errors(data):
 
 # --- the command line --------------------------------------------------------------------
 
-@pytest.mark.skipif(not (ROOT / "faultwise" / "commands" / "expect.py").exists(),
-                    reason="the expect command is not built yet")
 @pytest.mark.parametrize("name", ["unknown-key", "wrong-unit", "transformer-no-winding"])
 def test_cli_expect_reports_a_bad_profile_in_one_line(name):
     path = FIXTURES / "bad" / f"{name}.yaml"

@@ -16,8 +16,8 @@ from pathlib import Path
 
 import pytest
 
-from faultwise import rank
-from faultwise.graph import load_knowledge
+from faultwise.walk import rank
+from faultwise.graph.knowledge import load_knowledge
 
 KB = Path(__file__).parent / "fixtures" / "kb_walk"
 FAM = "series-string"
@@ -127,15 +127,8 @@ def _tie_knowledge(order):
     """Two checks of equal cost over two faults of equal weight: a true p/c tie."""
     from types import MappingProxyType as M
 
-    from faultwise.graph import Knowledge
-    from faultwise.nodes import (
-        Check,
-        Fault,
-        Investigation,
-        Signature,
-        Suspects,
-        Symptom,
-    )
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.graph.nodes import Check, Fault, Investigation, Signature, Suspects, Symptom
 
     fams = ("series-string",)
     nodes = {"supply.list": Suspects("supply.list", "List", "supply", fams,

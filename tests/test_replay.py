@@ -15,11 +15,11 @@ from pathlib import Path
 import helpers_walk_proc as H
 import pytest
 
-from faultwise.cases import CaseStore
-from faultwise.expect import expect
-from faultwise.graph import load_knowledge
-from faultwise.replay import case_files, replay_case, replay_files
-from faultwise.walk import Walk
+from faultwise.cases.store import CaseStore
+from faultwise.expect.expected import expect
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.shop.replay import case_files, replay_case, replay_files
+from faultwise.walk.state import Walk
 
 CLOCK = lambda: datetime(2026, 12, 1, 9, 30, tzinfo=UTC)
 
@@ -152,7 +152,7 @@ def test_damaged_files_named_unchanged_and_replay_goes_on(recorded):
 
 
 def test_case_with_unknown_symptom_is_listed_not_fatal(recorded):
-    from faultwise.cases import dump_case
+    from faultwise.cases.store import dump_case
 
     folder, ids = recorded
     data = CaseStore(folder, "B1").read(ids["cap"])

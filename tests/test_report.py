@@ -15,10 +15,10 @@ from pathlib import Path
 
 import pytest
 
-from faultwise.graph import load_knowledge
-from faultwise.report import job_report, job_report_markdown
-from faultwise.report_html import job_report_html, review_html
-from faultwise.review import review_folder
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.report.job import job_report, job_report_markdown
+from faultwise.report.html_report import job_report_html, review_html
+from faultwise.shop.review import review_folder
 from review_case_factory import make_case, write_case
 
 KB = Path(__file__).parent / "fixtures" / "kb_review"
@@ -52,7 +52,10 @@ def knowledge():
 
 
 def test_markdown_has_every_section(knowledge):
-    md = job_report_markdown(job_report(full_case(), knowledge))
+    from faultwise.core.workspace import Shop
+
+    md = job_report_markdown(job_report(full_case(), knowledge,
+                                        Shop(name="Larkspur Lane Radio Works")))
     for heading in ("# Job report 20260302-B2-004", "## Set", "## Complaint", "## Checks",
                     "## Fault", "## Repair", "### Parts replaced", "## Readings after the repair",
                     "## Leakage check", "## Time and outcome", "## Safety"):
@@ -72,7 +75,7 @@ def test_markdown_has_every_section(knowledge):
     assert "0.75 V" in md                                               # leakage statement
     # A pipe in case text must not split a Markdown table row.
     row = next(line for line in md.splitlines() if line.startswith("| 1 |"))
-    assert row.count("|") - row.count("\\|") == 6
+    assert row.count("|") - row.count("\\|") == 7          # six columns, node id last
 
 
 def test_battery_set_is_not_line_connected(knowledge):
@@ -80,7 +83,7 @@ def test_battery_set_is_not_line_connected(knowledge):
                      checks=[("audio.click-test", "silent"), ("audio.output-tube-check", "weak")],
                      fault="audio.weak-output")
     md = job_report_markdown(job_report(case, knowledge))
-    assert "Not line-connected" in md
+    assert "Not mains-powered" in md
     assert "0.75 V" not in md
 
 
@@ -123,7 +126,7 @@ def _assert_self_contained(page: str) -> _Collector:
 def test_html_report_is_self_contained_and_escaped(knowledge):
     page = job_report_html(job_report(full_case(), knowledge))
     p = _assert_self_contained(page)
-    assert "&lt;script&gt;alert(&#x27;x&#x27;)&lt;/script&gt;" in page   # html.escape
+    assert "&lt;script&gt;alert(&#39;x&#39;)&lt;/script&gt;" in page     # markupsafe.escape
     assert EVIL in "".join(p.text)               # shown to the reader as typed
     assert "<svg" in page
 

@@ -18,8 +18,8 @@ from pathlib import Path
 
 import pytest
 
-from faultwise.graph import load_knowledge
-from faultwise.review import (group_findings, reopened_cases, review_folder, review_to_dict)
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.shop.review import (group_findings, reopened_cases, review_folder, review_to_dict)
 from review_case_factory import make_case, write_case
 
 KB = Path(__file__).parent / "fixtures" / "kb_review"
@@ -202,7 +202,7 @@ def test_off_graph_findings_grouped_by_similarity():
 
 
 def test_reopened_by_link_and_by_customer_within_days():
-    from faultwise.casesummary import summarise
+    from faultwise.cases.summary import summarise
 
     cases = [
         make_case("r1", symptom=HUM, fault="supply.dry-first-cap", customer="Mrs Okafor",
@@ -242,7 +242,7 @@ def test_damaged_files_named_left_unchanged_exit_zero(folder):
     doc = json.loads(proc.stdout)
     assert doc["cases"] == 7
     reasons = {d["file"]: d["reason"] for d in doc["damaged"]}
-    # Reasons as listed in DEVELOPERS.md (faultwise.cases damage reasons).
+    # Reasons as listed in DEVELOPERS.md (faultwise.cases.store damage reasons).
     assert reasons == {"cut.json": "truncated", "blob.json": "binary", "notes.json": "not JSON",
                        "future.json": "unknown format version", "list.json": "not a mapping"}
     assert {name: _sha(folder / name) for name in bad} == before
@@ -344,8 +344,8 @@ def test_json_document_has_every_part(folder, knowledge):
 
 
 def test_review_modules_do_not_import_textual():
-    code = ("import sys, faultwise.review, faultwise.index, faultwise.report, "
-            "faultwise.report_html, faultwise.learn, faultwise.svg; "
+    code = ("import sys, faultwise.shop.review, faultwise.cases.index, faultwise.report.job, "
+            "faultwise.report.html_report, faultwise.shop.learn, faultwise.report.svg; "
             "print('textual' in sys.modules or 'rich' in sys.modules)")
     out = subprocess.run([PY, "-c", code], capture_output=True, text=True, timeout=60)
     assert out.stdout.strip() == "False", out.stderr
@@ -357,7 +357,7 @@ def test_review_reads_subfolders_and_the_index_keeps_relative_paths(folder):
     the cases keys them by that relative path (a second scan reads them from it)."""
     import sqlite3
 
-    from faultwise.index import INDEX_NAME, scan_cases
+    from faultwise.cases.index import INDEX_NAME, scan_cases
 
     files = sorted(folder.glob("*.json"))
     (folder / "2025").mkdir()

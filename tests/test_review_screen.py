@@ -14,7 +14,7 @@ from textual.app import App
 from textual.widgets import DataTable, Static
 
 from faultwise.tui.screens.review import ReviewScreen, block_bar
-from faultwise.workspace import Workspace
+from faultwise.core.workspace import Workspace
 from review_case_factory import make_case, write_case
 
 KB = Path(__file__).parent / "fixtures" / "kb_review"

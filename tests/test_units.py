@@ -1,4 +1,4 @@
-"""The reading parser and formatter (faultwise.units).
+"""The reading parser and formatter (faultwise.core.units).
 
 Outside references: SI prefixes (BIPM SI Brochure: p 1e-12, n 1e-9, µ 1e-6, m 1e-3,
 k 1e3, M 1e6), the IEC 60062 letter code (REFERENCES "Preferred values and marking codes",
@@ -8,13 +8,14 @@ secondary source), and Python's decimal module as the exact arithmetic oracle.
 from __future__ import annotations
 
 import math
+import re
 from decimal import Decimal
 
 import pytest
 from hypothesis import given, settings, strategies as st
 
-from faultwise.errors import FaultwiseError, InputError
-from faultwise.units import convert, dimension_of, format_reading, parse_reading
+from faultwise.core.errors import FaultwiseError, InputError
+from faultwise.core.units import convert, dimension_of, format_reading, parse_reading
 
 TARGETS = ["V", "mV", "kV", "Vpp", "A", "mA", "uA", "ohm", "kohm", "Mohm", "F", "uF", "nF",
            "pF", "H", "mH", "uH", "Hz", "kHz", "MHz", "W", "s", "ms", "us", "m", "ratio"]
@@ -198,10 +199,17 @@ _ALPHABET = "0123456789.,+-eEkKmMunpµRrVAFHhzΩohmsWx: %"
 @settings(max_examples=400, deadline=None)
 @given(text=st.text(alphabet=_ALPHABET, max_size=12), unit=st.sampled_from(TARGETS))
 def test_reading_like_text_raises_only_input_error(text, unit):
+    """Reading-like text gives a finite value or one located sentence; a bare number is
+    taken in the check's own unit, exactly as Python's float() reads it (the oracle)."""
     try:
-        parse_reading(text, unit)
-    except InputError:
-        pass
+        value = parse_reading(text, unit)
+    except InputError as exc:
+        assert str(exc).strip() and "Traceback" not in str(exc)
+        return
+    assert math.isfinite(value)
+    plain = text.strip()
+    if re.fullmatch(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?", plain):
+        assert value == pytest.approx(float(plain), rel=1e-12, abs=0.0)
 
 
 @settings(max_examples=400, deadline=None)

@@ -15,14 +15,8 @@ from itertools import count
 import helpers_walk_proc as H
 import pytest
 
-from faultwise.errors import InputError, WalkError
-from faultwise.walk import (
-    Walk,
-    auto_walk,
-    classify,
-    representative_value,
-    resolve_choice,
-)
+from faultwise.core.errors import InputError, WalkError
+from faultwise.walk.state import Walk, auto_walk, classify, representative_value, resolve_choice
 
 
 @pytest.fixture(scope="module")
@@ -444,7 +438,7 @@ from hypothesis import strategies as st
 @given(st.floats(0.0, 50.0), st.floats(0.1, 200.0), st.floats(0.1, 200.0),
        st.sampled_from(["absent", "low", "normal", "high"]))
 def test_representative_value_property(absent_below, gap, width, outcome):
-    from faultwise.expect import Expected
+    from faultwise.expect.expected import Expected
 
     low = absent_below + gap           # a valid band: absent_below < low < high
     e = Expected("x", "x", "supply", low + width / 2, low, low + width, "V", "prop",

@@ -106,7 +106,7 @@ def test_walk_assume_normal_marks_json_and_case(tmp_path):
     assert doc["assumed"] == ["supply.rectifier-test"]
     # The case: the answer event carries the mark, it passes the case-file shape check and
     # survives a rebuild from the events.
-    from faultwise.case_schema import case_problem
+    from faultwise.cases.schema import case_problem
     from faultwise.walk import Walk, auto_walk
 
     result = auto_walk(H.knowledge(), H.series_profile(), "dead-lights-on",
@@ -187,8 +187,8 @@ def test_walk_shipped_knowledge_end_to_end(tmp_path):
     answers file, walks to that fault (whatever the shipped content holds)."""
     import yaml
 
-    from faultwise.graph import load_knowledge
-    from faultwise.workspace import bundled_knowledge_dir
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.core.workspace import bundled_knowledge_dir
 
     kb = load_knowledge(bundled_knowledge_dir())
     faults = sorted(kb.faults_for("dead-lights-on", "series-string"))

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 
 def register(sub) -> None:
-    from faultwise.cli import add_workspace_options
+    from faultwise.commands import add_workspace_options
 
     p = sub.add_parser("demo", help="generate the invented demo cases (seeded)",
                        description="Walk the graph for an invented shop and write its cases.")
@@ -17,8 +17,8 @@ def register(sub) -> None:
 
 
 def run(args) -> int:
-    from faultwise.demo import generate
-    from faultwise.workspace import workspace_from_args
+    from faultwise.shop.demo import generate
+    from faultwise.core.workspace import workspace_from_args
 
     ws = workspace_from_args(args)
     summary = generate(ws.knowledge_dir, ws.cases_dir, seed=args.seed, closed=args.closed,

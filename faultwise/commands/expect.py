@@ -11,7 +11,7 @@ LEGEND = (f"{TYPICAL_MARK} rests on a typical value the profile did not give (or
 
 
 def register(subparsers) -> None:
-    from faultwise.cli import add_workspace_options
+    from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser("expect", help="expected readings for a set profile",
                               description="Compute what each test point of the set should read, "
@@ -23,18 +23,19 @@ def register(subparsers) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from faultwise.expect import expect
-    from faultwise.profile import load_profile, profile_to_dict
+    from faultwise.expect.expected import expect
+    from faultwise.profile.load import load_profile
+    from faultwise.profile.model import profile_to_dict
 
     knowledge = None
     if getattr(args, "knowledge", None):
-        from faultwise.workspace import resolve_workspace
+        from faultwise.core.workspace import resolve_workspace
 
         knowledge = resolve_workspace(args.knowledge).knowledge_dir
     profile = load_profile(args.profile, knowledge_dir=knowledge)
     table = None
     if knowledge is not None:
-        from faultwise.tubes import load_tube_table
+        from faultwise.profile.tubes import load_tube_table
 
         table = load_tube_table(knowledge)
     expectations = expect(profile, tube_table=table)
@@ -59,8 +60,8 @@ def render_table(profile, expectations: dict, width: int | None = None) -> list[
     import shutil
     import textwrap
 
-    from faultwise.expect import STAGES
-    from faultwise.expect_context import basis_num as _num
+    from faultwise.expect.expected import STAGES
+    from faultwise.expect.context import basis_num as _num
 
     width = width or max(60, min(shutil.get_terminal_size((100, 24)).columns, 120))
     rows = list(expectations.values())

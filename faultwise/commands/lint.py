@@ -8,7 +8,7 @@ import sys
 
 
 def register(subparsers) -> None:
-    from faultwise.cli import add_workspace_options
+    from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser("lint", help="validate the knowledge; exit 1 with located errors",
                               description="Check the knowledge folder: schema, routes, cycles, "
@@ -19,8 +19,8 @@ def register(subparsers) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from faultwise.lint import lint
-    from faultwise.workspace import workspace_from_args
+    from faultwise.graph.lint import lint
+    from faultwise.core.workspace import workspace_from_args
 
     ws = workspace_from_args(args)
     report = lint(ws.knowledge_dir)

@@ -9,7 +9,7 @@ SHOWN = 5   # lines in the plain-text output; --json lists every symptom
 
 
 def register(subparsers) -> None:
-    from faultwise.cli import add_workspace_options
+    from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser("match", help="rank symptom ids for a free-text complaint",
                               description="Rank the knowledge's symptoms for a complaint "
@@ -21,10 +21,10 @@ def register(subparsers) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from faultwise.errors import InputError
-    from faultwise.graph import load_symptoms
-    from faultwise.match import match
-    from faultwise.workspace import workspace_from_args
+    from faultwise.core.errors import InputError
+    from faultwise.graph.knowledge import load_symptoms
+    from faultwise.graph.match import match
+    from faultwise.core.workspace import workspace_from_args
 
     if not args.text.strip():
         raise InputError("the complaint is empty", hint='give it in quotes, e.g. '

@@ -8,7 +8,7 @@ from pathlib import Path
 
 
 def register(subparsers) -> None:
-    from faultwise.cli import add_workspace_options
+    from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser("replay", help="re-walk cases against the current knowledge",
                               description="Give each recorded case's answers to the current "
@@ -25,9 +25,9 @@ def register(subparsers) -> None:
 def _targets(given: list[str], folder: Path) -> list[Path]:
     """Case files for what was given: a folder gives every case in it (subfolders too), a
     file itself, anything else is a case id in the cases folder."""
-    from faultwise.cases import case_path
-    from faultwise.errors import CaseError
-    from faultwise.replay import case_files
+    from faultwise.cases.store import case_path
+    from faultwise.core.errors import CaseError
+    from faultwise.shop.replay import case_files
 
     out = []
     for item in given:
@@ -54,9 +54,9 @@ def _targets(given: list[str], folder: Path) -> list[Path]:
 
 
 def run(args: argparse.Namespace) -> int:
-    from faultwise.graph import load_knowledge
-    from faultwise.replay import case_files, replay_files
-    from faultwise.workspace import workspace_from_args
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.shop.replay import case_files, replay_files
+    from faultwise.core.workspace import workspace_from_args
 
     ws = workspace_from_args(args)
     knowledge = load_knowledge(ws.knowledge_dir)

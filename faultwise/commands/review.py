@@ -8,7 +8,7 @@ import sys
 
 
 def register(subparsers) -> None:
-    from faultwise.cli import add_workspace_options
+    from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser(
         "review", help="shop statistics and suggested orders from the closed cases",
@@ -68,12 +68,12 @@ def _learn_text(learning, changes, path, dry_run: bool) -> str:
 def run(args: argparse.Namespace) -> int:
     from pathlib import Path
 
-    from faultwise.errors import FaultwiseError
-    from faultwise.graph import load_knowledge
-    from faultwise.index import scan_cases
-    from faultwise.review import (REOPEN_DAYS, parse_since, review_scan, review_to_dict,
-                                  selected_cases)
-    from faultwise.workspace import workspace_from_args
+    from faultwise.core.errors import FaultwiseError
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.cases.index import scan_cases
+    from faultwise.shop.review import (REOPEN_DAYS, parse_since, review_scan, review_to_dict,
+                                       selected_cases)
+    from faultwise.core.workspace import workspace_from_args
 
     if args.dry_run and not args.learn:
         raise FaultwiseError("--dry-run goes with --learn", key="--dry-run",
@@ -89,7 +89,7 @@ def run(args: argparse.Namespace) -> int:
     review = review_scan(scan, knowledge, since=since, reopen_days=days)
     learned = None
     if args.learn:
-        from faultwise.learn import LEARNED_NAME, learn_changes, learn_counts, write_learned
+        from faultwise.shop.learn import LEARNED_NAME, learn_changes, learn_counts, write_learned
 
         learning = learn_counts(selected_cases(scan.summaries, since), knowledge)
         changes = learn_changes(knowledge, learning)
@@ -98,10 +98,10 @@ def run(args: argparse.Namespace) -> int:
             path = write_learned(ws.knowledge_dir, learning)
         learned = (learning, changes, path, args.dry_run)
     if args.html:
-        from faultwise.report_html import review_html
+        from faultwise.report.html_report import review_html
 
         try:
-            Path(args.html).write_text(review_html(review), encoding="utf-8")
+            Path(args.html).write_text(review_html(review, ws.shop.name), encoding="utf-8")
         except OSError as exc:
             raise FaultwiseError(f"cannot write the HTML review ({exc.strerror})",
                                  file=args.html, hint="choose a writable path") from None
@@ -111,7 +111,7 @@ def run(args: argparse.Namespace) -> int:
             doc["learn"] = _learn_dict(*learned)
         print(json.dumps(doc, indent=2))
     else:
-        from faultwise.report import review_text
+        from faultwise.report.job import review_text
 
         sys.stdout.write(review_text(review))
         if learned:

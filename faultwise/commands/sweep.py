@@ -8,7 +8,7 @@ import sys
 
 
 def register(subparsers) -> None:
-    from faultwise.cli import add_workspace_options
+    from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser(
         "sweep", help="walk every fault signature through the graph: isolated or not, checks, minutes",
@@ -37,8 +37,8 @@ def register(subparsers) -> None:
 def _sets_dir(ws, given):
     from pathlib import Path
 
-    from faultwise.errors import FaultwiseError
-    from faultwise.workspace import bundled_knowledge_dir
+    from faultwise.core.errors import FaultwiseError
+    from faultwise.core.workspace import bundled_knowledge_dir
 
     if given:
         folder = Path(given)
@@ -54,11 +54,11 @@ def _sets_dir(ws, given):
 def run(args: argparse.Namespace) -> int:
     from dataclasses import replace
 
-    from faultwise.errors import FaultwiseError
-    from faultwise.graph import load_knowledge
-    from faultwise.sweep import RANDOM_SEED, learning_check, load_demo_sets, run_sweep
-    from faultwise.sweep_report import failure_sentence, sweep_text, sweep_to_dict
-    from faultwise.workspace import workspace_from_args
+    from faultwise.core.errors import FaultwiseError
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.shop.sweep import RANDOM_SEED, learning_check, load_demo_sets, run_sweep
+    from faultwise.shop.sweep_report import failure_sentence, sweep_text, sweep_to_dict
+    from faultwise.core.workspace import workspace_from_args
 
     ws = workspace_from_args(args)
     knowledge = load_knowledge(ws.knowledge_dir)

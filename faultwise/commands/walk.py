@@ -24,7 +24,7 @@ ANSWER_KEYS = ("readings", "observations")
 
 
 def register(subparsers) -> None:
-    from faultwise.cli import add_workspace_options
+    from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser("walk", help="walk the graph with answers from a file",
                               description="Walk from a complaint to a conclusion without a "
@@ -48,10 +48,10 @@ def tube_dir(knowledge_dir: Path) -> Path | None:
 
 def load_answers(path, knowledge, expectations) -> tuple[dict, dict]:
     """Read and check an answers file; InputError names file, line and key of a problem."""
-    from faultwise.errors import FaultwiseError, InputError
-    from faultwise.nodes import MEASURE_OUTCOMES, Check
-    from faultwise.units import parse_reading
-    from faultwise.yamlload import line_of, load_yaml_file
+    from faultwise.core.errors import FaultwiseError, InputError
+    from faultwise.graph.nodes import MEASURE_OUTCOMES, Check
+    from faultwise.core.units import parse_reading
+    from faultwise.core.yamlload import line_of, load_yaml_file
 
     file = str(path)
     try:
@@ -127,11 +127,11 @@ def _missing_json(exc) -> dict:
 
 
 def run(args: argparse.Namespace) -> int:
-    from faultwise.expect import expect
-    from faultwise.graph import load_knowledge
-    from faultwise.profile import load_profile
-    from faultwise.walk import auto_walk
-    from faultwise.workspace import workspace_from_args
+    from faultwise.expect.expected import expect
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.profile.load import load_profile
+    from faultwise.walk.state import auto_walk
+    from faultwise.core.workspace import workspace_from_args
 
     ws = workspace_from_args(args)
     knowledge = load_knowledge(ws.knowledge_dir)
@@ -139,7 +139,7 @@ def run(args: argparse.Namespace) -> int:
     profile = load_profile(args.profile, knowledge_dir=tubes)
     table = None
     if tubes is not None:
-        from faultwise.tubes import load_tube_table
+        from faultwise.profile.tubes import load_tube_table
 
         table = load_tube_table(tubes)
     expectations = expect(profile, tube_table=table)

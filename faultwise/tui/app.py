@@ -7,7 +7,6 @@ holds domain logic.
 
 from __future__ import annotations
 
-import importlib.util
 from typing import Callable, Iterable
 
 from textual.app import App, SystemCommand
@@ -19,7 +18,7 @@ from textual.worker import Worker, WorkerState
 from faultwise.tui.context import Bench, Clock, system_clock
 from faultwise.tui.messages import KnowledgeReady
 from faultwise.tui.settings import Settings
-from faultwise.workspace import Workspace
+from faultwise.core.workspace import Workspace
 
 BENCH_THEME = Theme(
     name="bench-lamp",
@@ -35,11 +34,6 @@ BENCH_THEME = Theme(
     error="#E0604A",
     dark=True,
 )
-
-
-def review_available() -> bool:
-    """True when the shop review screen (faultwise/tui/screens/review.py) is installed."""
-    return importlib.util.find_spec("faultwise.tui.screens.review") is not None
 
 
 class FaultwiseApp(App[None]):
@@ -101,7 +95,7 @@ class FaultwiseApp(App[None]):
                         exit_on_error=False)
 
     def _load_knowledge(self):
-        from faultwise.graph import load_knowledge
+        from faultwise.graph.knowledge import load_knowledge
 
         return load_knowledge(self.bench.workspace.knowledge_dir)
 
@@ -120,7 +114,7 @@ class FaultwiseApp(App[None]):
 
     def fatal(self, error: BaseException | None) -> None:
         """Leave with status 1 and one sentence (a fatal start-up problem)."""
-        from faultwise.errors import FaultwiseError
+        from faultwise.core.errors import FaultwiseError
 
         if isinstance(error, FaultwiseError):
             text = f"faultwise: {error}"

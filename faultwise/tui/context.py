@@ -9,7 +9,7 @@ from datetime import datetime, timezone
 from typing import Any, Callable
 
 from faultwise.tui.settings import Settings
-from faultwise.workspace import Workspace
+from faultwise.core.workspace import Workspace
 
 Clock = Callable[[], datetime]
 
@@ -26,14 +26,14 @@ class Bench:
     workspace: Workspace
     clock: Clock = system_clock
     settings: Settings = field(default_factory=Settings)
-    knowledge: Any = None                 # faultwise.nodes Knowledge, set by the loader worker
+    knowledge: Any = None                 # faultwise.graph.nodes Knowledge, set by the loader worker
     _store: Any = field(default=None, repr=False)
 
     @property
     def store(self):
         """The case store for this bench's cases folder (imported on first use)."""
         if self._store is None:
-            from faultwise.cases import CaseStore
+            from faultwise.cases.store import CaseStore
 
             self._store = CaseStore(self.workspace.cases_dir, self.workspace.bench, self.clock)
         return self._store

@@ -4,14 +4,14 @@ from __future__ import annotations
 
 import argparse
 
-from faultwise.errors import FaultwiseError
+from faultwise.core.errors import FaultwiseError
 
 
 def run_tui(args: argparse.Namespace) -> int:
     """Run the bench program; the exit status is the app's return code."""
     from faultwise.tui.app import build_app
     from faultwise.tui.settings import Settings, default_settings_path
-    from faultwise.workspace import workspace_from_args
+    from faultwise.core.workspace import workspace_from_args
 
     workspace = workspace_from_args(args)
     try:

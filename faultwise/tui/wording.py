@@ -69,7 +69,7 @@ def caution_title(knowledge, caution_id) -> str:
 
 
 def printable(text) -> str:
-    """``text`` made harmless on screen (see :mod:`faultwise.safe_text`); the record is unchanged."""
-    from faultwise.safe_text import shown_text
+    """``text`` made harmless on screen (see :mod:`faultwise.core.safe_text`); the record is unchanged."""
+    from faultwise.core.safe_text import shown_text
 
     return shown_text(text)

@@ -29,10 +29,10 @@ def best_ms(fn) -> float:
 
 def main() -> int:
     from faultwise.calc.rectifier import simulate
-    from faultwise.expect import expect
-    from faultwise.profile import load_profile
-    from faultwise.tubes import load_tube_table
-    from faultwise.yamlload import load_yaml_text
+    from faultwise.expect.expected import expect
+    from faultwise.profile.load import load_profile
+    from faultwise.profile.tubes import load_tube_table
+    from faultwise.core.yamlload import load_yaml_text
 
     table = load_tube_table()
     sets = sorted(SETS.glob("*.yaml"))

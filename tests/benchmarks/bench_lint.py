@@ -22,7 +22,7 @@ HERE = Path(__file__).resolve().parent
 
 
 def yaml_files(root: Path) -> list[Path]:
-    from faultwise.graph import knowledge_files
+    from faultwise.graph.knowledge import knowledge_files
 
     return knowledge_files(root)
 
@@ -33,7 +33,7 @@ def parse_only(root: Path) -> None:
 
 
 def run_lint(root: Path) -> None:
-    from faultwise.lint import lint
+    from faultwise.graph.lint import lint
 
     report = lint(root)
     assert report.summary.get("loaded"), [f.text() for f in report.errors[:5]]
@@ -65,7 +65,7 @@ def main() -> int:
     if args.knowledge:
         root = Path(args.knowledge)
     else:
-        from faultwise.workspace import bundled_knowledge_dir
+        from faultwise.core.workspace import bundled_knowledge_dir
 
         root = bundled_knowledge_dir()
         if not (root / "symptoms.yaml").is_file():

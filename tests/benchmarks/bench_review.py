@@ -34,9 +34,9 @@ def plain_parse_s(folder: Path) -> float:
 
 
 def knowledge_for_bench():
-    from faultwise.errors import FaultwiseError
-    from faultwise.graph import load_knowledge
-    from faultwise.workspace import bundled_knowledge_dir
+    from faultwise.core.errors import FaultwiseError
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.core.workspace import bundled_knowledge_dir
 
     try:
         return load_knowledge(bundled_knowledge_dir())
@@ -45,8 +45,8 @@ def knowledge_for_bench():
 
 
 def main(n: int) -> None:
-    from faultwise.index import INDEX_NAME
-    from faultwise.review import review_folder
+    from faultwise.cases.index import INDEX_NAME
+    from faultwise.shop.review import review_folder
 
     knowledge = knowledge_for_bench()
     # Fixed costs that do not grow with the cases (paid by any run of the command, and

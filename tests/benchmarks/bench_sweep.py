@@ -23,9 +23,9 @@ HERE = Path(__file__).resolve().parent
 
 
 def knowledge_dir(given: str | None) -> Path:
-    from faultwise.errors import FaultwiseError
-    from faultwise.graph import load_knowledge
-    from faultwise.workspace import bundled_knowledge_dir
+    from faultwise.core.errors import FaultwiseError
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.core.workspace import bundled_knowledge_dir
 
     if given:
         return Path(given)
@@ -49,8 +49,8 @@ def best_s(fn, runs: int) -> float:
 
 def main() -> int:
     from faultwise.calc.rectifier import simulate
-    from faultwise.graph import load_knowledge
-    from faultwise.sweep import load_demo_sets, run_sweep
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.shop.sweep import load_demo_sets, run_sweep
 
     ap = argparse.ArgumentParser()
     ap.add_argument("knowledge", nargs="?")

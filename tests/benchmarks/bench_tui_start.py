@@ -39,7 +39,7 @@ FAULTWISE = r"""
 import sys
 from faultwise.tui.app import build_app
 from faultwise.tui.settings import Settings
-from faultwise.workspace import resolve_workspace
+from faultwise.core.workspace import resolve_workspace
 
 ws = resolve_workspace(knowledge=sys.argv[2], cases=sys.argv[1])
 app = build_app(ws, settings=Settings(None, safety_acknowledged="2026-01-01T00:00:00+00:00"))
@@ -63,7 +63,7 @@ def time_once_s(code: str, *args: str) -> float:
 
 def knowledge_dir() -> str:
     """The bundled knowledge once it is written, else the TUI tests' small fixture."""
-    from faultwise.workspace import bundled_knowledge_dir
+    from faultwise.core.workspace import bundled_knowledge_dir
 
     bundled = bundled_knowledge_dir()
     if (bundled / "symptoms.yaml").is_file():

@@ -7,6 +7,7 @@ reads back ``.meas`` results. Tests skip with a reason when ngspice is not insta
 from __future__ import annotations
 
 import math
+import os
 import re
 import shutil
 import subprocess
@@ -22,6 +23,8 @@ _MEAS = re.compile(r"^\s*(\w+)\s*=\s*([-+0-9.eE]+)", re.MULTILINE)
 def need_ngspice() -> str:
     """Path of ngspice, or skip the calling test."""
     path = shutil.which("ngspice")
+    if path is None and os.environ.get("CI"):
+        pytest.fail("ngspice is missing on CI: .ci/run must install the Debian package ngspice")
     if path is None:
         pytest.skip("ngspice is not installed (apt-get install ngspice); the oracle checks need it")
     return path

@@ -12,11 +12,10 @@ import math
 
 import pytest
 
-from faultwise.codes import (
-    SERIES, decode_cap_code, decode_colour_bands, decode_letter_code, decode_marking,
-    is_preferred, nearest_preferred, tolerance_letter,
-)
-from faultwise.errors import InputError
+from faultwise.core.codes import (SERIES, decode_cap_code, decode_colour_bands, decode_letter_code,
+                                  decode_marking, is_preferred, nearest_preferred,
+                                  tolerance_letter)
+from faultwise.core.errors import InputError
 
 # IEC 60063 (secondary source): the published tables
 E6 = "1.0 1.5 2.2 3.3 4.7 6.8"

@@ -19,10 +19,10 @@ import pytest
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-from faultwise.graph import load_knowledge  # noqa: E402
-from faultwise.report import job_report  # noqa: E402
-from faultwise.report_html import job_report_html, review_html  # noqa: E402
-from faultwise.review import review_folder  # noqa: E402
+from faultwise.graph.knowledge import load_knowledge  # noqa: E402
+from faultwise.report.job import job_report  # noqa: E402
+from faultwise.report.html_report import job_report_html, review_html  # noqa: E402
+from faultwise.shop.review import review_folder  # noqa: E402
 from review_case_factory import make_case, write_case  # noqa: E402
 
 CHROMIUM = shutil.which("chromium") or ("/usr/bin/chromium" if Path("/usr/bin/chromium").exists()

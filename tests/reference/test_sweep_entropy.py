@@ -13,9 +13,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.stats import entropy as scipy_entropy
 
-from faultwise.graph import load_knowledge
-from faultwise.rank import fault_probabilities
-from faultwise.sweep import entropy_bits, load_demo_sets, renormalised, run_sweep
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.walk.rank import fault_probabilities
+from faultwise.shop.sweep import entropy_bits, load_demo_sets, renormalised, run_sweep
 
 FIXTURE = Path(__file__).resolve().parents[1] / "fixtures" / "kb_sweep"
 

@@ -13,9 +13,9 @@ import math
 
 import pytest
 
-from faultwise.errors import KnowledgeError
-from faultwise.tubes import load_tube_table, lookup, parse_tube_table
-from faultwise.yamlload import load_yaml_text
+from faultwise.core.errors import KnowledgeError
+from faultwise.profile.tubes import load_tube_table, lookup, parse_tube_table
+from faultwise.core.yamlload import load_yaml_text
 
 
 @pytest.fixture(scope="module")

@@ -75,8 +75,8 @@ def arm(point: str, save: int) -> None:
 
 
 def main(folder: str, point: str, save: int, saves_per_step: int = 1) -> int:
-    from faultwise.cases import CaseStore
-    from faultwise.walk import Walk, walk_from_case
+    from faultwise.cases.store import CaseStore
+    from faultwise.walk.state import Walk, walk_from_case
 
     if point != "none":
         arm(point, save)

@@ -46,10 +46,10 @@ def run_script(walk, script=H.SCRIPT, upto: int | None = None):
 def recorded_case(case_id: str = CASE_ID, *, upto: int | None = None, customer="ticket 4411",
                   status_closed: bool = True) -> dict:
     """A case dict as the store writes it, walked on kb_walk with the fixture bands."""
-    from faultwise.cases import CaseStore  # noqa: F401  (import check: module loads)
-    from faultwise.cases import CASE_FORMAT, ordered
-    from faultwise.profile import profile_to_dict
-    from faultwise.walk import Walk
+    from faultwise.cases.store import CaseStore  # noqa: F401  (import check: module loads)
+    from faultwise.cases.store import CASE_FORMAT, ordered
+    from faultwise.profile.model import profile_to_dict
+    from faultwise.walk.state import Walk
 
     walk = Walk(H.knowledge(), H.series_profile(), "dead-lights-on",
                 expectations=H.expectations(), clock=clock)
@@ -69,7 +69,7 @@ def recorded_case(case_id: str = CASE_ID, *, upto: int | None = None, customer="
 
 
 def case_bytes(data: dict) -> bytes:
-    from faultwise.cases import dump_case
+    from faultwise.cases.store import dump_case
 
     return dump_case(data)
 

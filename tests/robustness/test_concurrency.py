@@ -21,12 +21,12 @@ from pathlib import Path
 from rb_helpers import (HERE, KB_WALK, PY, case_bytes, json_out, recorded_case, run_cli,
                         tree_hashes, write_case)
 
-from faultwise.cases import CaseStore
+from faultwise.cases.store import CaseStore
 
 PRELUDE = (f"import sys, time, os; sys.path.insert(0, {str(HERE)!r})\n"
            "from rb_helpers import H, clock\n"
-           "from faultwise.cases import CaseStore\n"
-           "from faultwise.errors import CaseLockedError\n"
+           "from faultwise.cases.store import CaseStore\n"
+           "from faultwise.core.errors import CaseLockedError\n"
            "go = sys.argv[2]\n"
            "while not os.path.exists(go): time.sleep(0.005)\n")
 
@@ -102,7 +102,7 @@ def test_review_while_a_bench_writes(tmp_path):
     damaged = {"20261130-B3-001.json", "20261130-B3-002.json"}
     writer = (f"import sys, time; sys.path.insert(0, {str(HERE)!r})\n"
               "from rb_helpers import clock\n"
-              "from faultwise.cases import CaseStore\n"
+              "from faultwise.cases.store import CaseStore\n"
               "case = CaseStore(sys.argv[1], 'B2', clock=clock).open('20261201-B2-001')\n"
               "print('open', flush=True)\n"
               "for i in range(400):\n"

@@ -29,8 +29,8 @@ import pytest
 
 from rb_helpers import PY, TUI_KB, H, clock, run_script
 
-from faultwise.cases import CaseStore, read_case_bytes
-from faultwise.walk import Walk, walk_from_case
+from faultwise.cases.store import CaseStore, read_case_bytes
+from faultwise.walk.state import Walk, walk_from_case
 
 CHILD = str(Path(__file__).with_name("kill_child.py"))
 KILL_RUNS = int(os.environ.get("FAULTWISE_KILL_RUNS", "4"))
@@ -206,6 +206,15 @@ class Tmux:
             time.sleep(0.1)
         raise AssertionError(f"none of {texts} showed:\n{self.screen()}")
 
+    def wait_changed(self, before: str, timeout: float = 45.0) -> None:
+        """Until the screen differs from ``before`` (a dialog closed, the next one drawn)."""
+        end = time.monotonic() + timeout
+        while time.monotonic() < end:
+            if self.screen() != before:
+                return
+            time.sleep(0.1)
+        raise AssertionError(f"the screen never changed:\n{before}")
+
     def keys(self, *keys: str, literal: bool = False) -> None:
         self.run("send-keys", *(["-l"] if literal else []), *keys)
 
@@ -228,6 +237,19 @@ def wait_events(path: Path, n: int, timeout: float = 45.0, tmux=None) -> dict:
                          f"{tmux.screen() if tmux else '?'}")
 
 
+def the_new_case(cases: Path, tmux: Tmux, timeout: float = 45.0) -> Path:
+    """The one case file a fresh run made in an empty cases folder, whatever today is."""
+    end = time.monotonic() + timeout
+    while time.monotonic() < end:
+        made = sorted(cases.glob("*.json")) if cases.is_dir() else []
+        if made:
+            assert len(made) == 1, made
+            return made[0]
+        time.sleep(0.1)
+    raise AssertionError(f"no case file appeared in {cases}; the screen:\n{tmux.screen()}")
+
+
+@pytest.mark.real_clock
 @pytest.mark.skipif(TMUX is None or not FAULTWISE.exists(),
                     reason="needs tmux and the installed console script")
 @pytest.mark.parametrize("round_", range(TUI_KILL_ROUNDS))
@@ -236,9 +258,9 @@ def test_tui_killed_mid_walk_reopens_at_the_last_answer(tmp_path, kill, round_):
     """The installed `faultwise` in a real terminal, on a cases folder whose path has spaces
     and non-ASCII letters: answer checks with send-keys, kill it, check the file, start it
     again and resume: the screen shows the check after the last answer."""
-    from faultwise.expect import expect
-    from faultwise.graph import load_knowledge
-    from faultwise.profile import load_profile
+    from faultwise.expect.expected import expect
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.profile.load import load_profile
 
     kb = tmp_path / "knowledge"
     shutil.copytree(TUI_KB, kb)
@@ -262,19 +284,17 @@ def test_tui_killed_mid_walk_reopens_at_the_last_answer(tmp_path, kill, round_):
             time.sleep(0.6)
             tmux.keys("Enter")
             time.sleep(1.0)           # typed-ahead keys can land in the wrong field (report)
-        # The TUI runs on the real clock: the case is named by today's date.
-        deadline = time.monotonic() + 45
-        while not list(cases.glob("*-B1-001.json")) and time.monotonic() < deadline:
-            time.sleep(0.1)
-        path = next(iter(cases.glob("*-B1-001.json")), cases / "missing.json")
+        # The case is named for the day it runs (real clock): find the one file it made.
+        path = the_new_case(cases, tmux)
         script = [("1", "Do the heaters glow?"), (low, "DC at the first filter"), ("2", "bridg")]
         n_events = len(wait_events(path, 0, tmux=tmux)["events"])
         for typed, title in script[:answers]:
-            while "Understood" in tmux.wait_for_any(title, "Understood"):
+            while "Understood" in (shown := tmux.wait_for_any(title, "Understood")):
                 tmux.wait_for("Enter: understood")           # the caution's guard time
+                shown = tmux.screen()
                 tmux.keys("Enter")                           # the caution before this check
                 n_events = len(wait_events(path, n_events + 1, tmux=tmux)["events"])
-                time.sleep(0.2)
+                tmux.wait_changed(shown)        # a stale screen must not take a second Enter
             tmux.keys(typed, literal=True)
             if len(typed) > 1:
                 tmux.keys("Enter")

@@ -27,9 +27,9 @@ import pytest
 
 from rb_helpers import KB_WALK, H, clock, json_out, run_cli
 
-from faultwise.cases import CaseStore
-from faultwise.errors import CaseError
-from faultwise.walk import Walk
+from faultwise.cases.store import CaseStore
+from faultwise.core.errors import CaseError
+from faultwise.walk.state import Walk
 
 NON_ASCII = Path("Bänk 2") / "cases ü"
 

@@ -25,8 +25,8 @@ import pytest
 from rb_helpers import (KB_WALK, PY, assert_one_sentence, case_bytes, json_out,
                         recorded_case, run_cli, sha, tree_hashes, write_case)
 
-from faultwise.cases import CaseStore, read_case_bytes
-from faultwise.errors import CaseError, DamagedCaseError
+from faultwise.cases.store import CaseStore, read_case_bytes
+from faultwise.core.errors import CaseError, DamagedCaseError
 
 REASONS = {"empty", "truncated", "not JSON", "binary", "not a mapping", "wrong format version",
            "unknown format version"}
@@ -140,7 +140,7 @@ def test_a_fifo_or_folder_named_like_a_case_does_not_hang_anything(tmp_path):
     os.mkfifo(folder / "20261201-B1-050.json")
     (folder / "20261201-B1-051.json").mkdir()
     before = tree_hashes(folder)
-    probe = ("import sys; from faultwise.cases import CaseStore\n"
+    probe = ("import sys; from faultwise.cases.store import CaseStore\n"
              "listing = CaseStore(sys.argv[1], 'B2').list()\n"
              "print(len(listing.closed), sorted(d.path.name for d in listing.damaged))\n")
     runs = {
@@ -279,13 +279,13 @@ def test_a_case_file_symlinked_outside_is_never_written_through(tmp_path):
 async def test_tui_resume_of_a_hand_edited_case_reports_and_keeps_running(tmp_path):
     """An open case whose event number was hand-edited to text: resuming it must give a
     message and leave the case unlocked and unchanged, not end the program."""
-    from faultwise.cases import CaseStore
-    from faultwise.graph import load_knowledge
-    from faultwise.profile import load_profile
+    from faultwise.cases.store import CaseStore
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.profile.load import load_profile
     from faultwise.tui.app import build_app
     from faultwise.tui.settings import Settings
-    from faultwise.walk import Walk
-    from faultwise.workspace import Workspace
+    from faultwise.walk.state import Walk
+    from faultwise.core.workspace import Workspace
 
     from rb_helpers import TUI_KB, clock
 

@@ -24,9 +24,9 @@ import pytest
 
 from rb_helpers import KB_WALK, TUI_KB, assert_one_sentence, clock, run_cli
 
-from faultwise.errors import FaultwiseError
-from faultwise.graph import load_knowledge
-from faultwise.profile import load_profile
+from faultwise.core.errors import FaultwiseError
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.profile.load import load_profile
 
 
 def payloads(marker: Path) -> dict[str, bytes]:
@@ -132,7 +132,7 @@ async def test_tui_set_library_lists_hostile_profiles_as_unusable(tmp_path, mark
     with their error, the good ones stay usable, and no code runs."""
     from faultwise.tui.app import build_app
     from faultwise.tui.settings import Settings
-    from faultwise.workspace import Workspace
+    from faultwise.core.workspace import Workspace
 
     kb = tmp_path / "knowledge"
     shutil.copytree(TUI_KB, kb)

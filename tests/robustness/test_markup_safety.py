@@ -27,7 +27,7 @@ LITERAL = ("[/b]", "[link=x]click[/link]", "[bold red]loud[/]")
 
 
 def _workspace(tmp_path):
-    from faultwise.workspace import Workspace
+    from faultwise.core.workspace import Workspace
 
     kb = tmp_path / "knowledge"
     shutil.copytree(TUI_KB, kb)
@@ -38,10 +38,10 @@ def _workspace(tmp_path):
 
 def _hostile_open_case(ws) -> str:
     """An open case, written through the domain, whose text fields are all hostile."""
-    from faultwise.cases import CaseStore
-    from faultwise.graph import load_knowledge
-    from faultwise.profile import load_profile
-    from faultwise.walk import Walk
+    from faultwise.cases.store import CaseStore
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.profile.load import load_profile
+    from faultwise.walk.state import Walk
 
     kn = load_knowledge(ws.knowledge_dir)
     profile = load_profile(ws.sets_dir / "demo-5-tube-table.yaml")
@@ -138,9 +138,9 @@ async def test_a_pasted_note_with_escapes_is_recorded_exactly_and_shown_safely(t
 
 
 async def test_viewer_shows_a_closed_hostile_case_safely(tmp_path):
-    from faultwise.cases import CaseStore
-    from faultwise.graph import load_knowledge
-    from faultwise.walk import walk_from_case
+    from faultwise.cases.store import CaseStore
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.walk.state import walk_from_case
 
     ws = _workspace(tmp_path)
     case_id = _hostile_open_case(ws)
@@ -176,9 +176,9 @@ def _hostile_closed_case() -> dict:
 
 
 def test_markdown_and_html_reports_escape_hostile_text():
-    from faultwise.graph import load_knowledge
-    from faultwise.report import job_report, job_report_markdown
-    from faultwise.report_html import job_report_html
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.report.job import job_report, job_report_markdown
+    from faultwise.report.html_report import job_report_html
 
     report = job_report(_hostile_closed_case(), load_knowledge(KB_WALK))
     md = job_report_markdown(report)

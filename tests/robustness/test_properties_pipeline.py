@@ -24,8 +24,8 @@ from hypothesis import strategies as st
 
 from rb_helpers import KB_SMALL, PY, H, recorded_case
 
-from faultwise.cases import CaseStore, read_case_bytes
-from faultwise.errors import DamagedCaseError, FaultwiseError
+from faultwise.cases.store import CaseStore, read_case_bytes
+from faultwise.core.errors import DamagedCaseError, FaultwiseError
 
 EXAMPLES = 120
 SETTINGS = settings(max_examples=EXAMPLES, deadline=None, derandomize=True,
@@ -160,12 +160,15 @@ def test_case_loader_on_damaged_bytes(tmp_path, raw):
 @given(mutated_case())
 @found
 def test_summary_of_mutated_case_never_crashes(data):
-    from faultwise.casesummary import summarise
+    from faultwise.cases.summary import summarise
 
     loaded = _loaded(data)
     if loaded is not None:
         summary = summarise(loaded, "mutated.json")
         json.dumps(summary, allow_nan=True)          # stays JSON-ready for the index
+        answers = [e for e in loaded["events"] if type(e) is dict and e.get("type") == "answer"
+                   and e.get("phase", "diagnose") == "diagnose"]
+        assert len(summary["checks"]) == 2 * len(answers)   # node, outcome per answer
 
 
 @SETTINGS
@@ -174,7 +177,7 @@ def test_summary_of_mutated_case_never_crashes(data):
 def test_walk_rebuilt_from_mutated_case_raises_only_located_errors(data):
     """walk_from_case is what the TUI's resume and replay call: an odd type in a hand-edited
     case must come back as a WalkError/ProfileError, not a TypeError that ends the program."""
-    from faultwise.walk import walk_from_case
+    from faultwise.walk.state import walk_from_case
 
     loaded = _loaded(data)
     if loaded is not None:
@@ -186,8 +189,8 @@ def test_walk_rebuilt_from_mutated_case_raises_only_located_errors(data):
 @given(mutated_case())
 @found
 def test_job_report_of_mutated_case_raises_only_located_errors(data):
-    from faultwise.report import job_report, job_report_markdown
-    from faultwise.report_html import job_report_html
+    from faultwise.report.job import job_report, job_report_markdown
+    from faultwise.report.html_report import job_report_html
 
     loaded = _loaded(data)
     if loaded is not None:
@@ -202,12 +205,16 @@ def test_job_report_of_mutated_case_raises_only_located_errors(data):
 @given(mutated_case())
 @found
 def test_replay_of_mutated_case_raises_only_located_errors(data):
-    from faultwise.replay import replay_case
+    from faultwise.shop.replay import replay_case
 
     loaded = _loaded(data)
     if loaded is not None:
-        _only_located_errors(lambda: replay_case(H.knowledge(), loaded,
-                                                 expectations=H.expectations(), file="m.json"))
+        got = []
+        _only_located_errors(lambda: got.append(replay_case(
+            H.knowledge(), loaded, expectations=H.expectations(), file="m.json")))
+        for result in got:                       # a replay names the case it re-walked
+            assert (result.case, result.file) == (loaded["id"], "m.json")
+            assert result.same == (result.step is None)
 
 
 # ------------------------------------------------------------------ profile through expect()
@@ -218,7 +225,7 @@ PROFILE = None
 def _profile_dict():
     global PROFILE
     if PROFILE is None:
-        from faultwise.profile import profile_to_dict
+        from faultwise.profile.model import profile_to_dict
 
         PROFILE = profile_to_dict(H.series_profile())
         PROFILE.pop("typical", None)
@@ -301,7 +308,7 @@ def kb_copy(tmp_path_factory):
 @SETTINGS
 @given(damaged_knowledge())
 def test_knowledge_loader_on_damaged_bytes(kb_copy, mutation):
-    from faultwise.graph import load_knowledge
+    from faultwise.graph.knowledge import load_knowledge
 
     name, raw = mutation
     for rel in KB_FILES:
@@ -317,8 +324,8 @@ def test_knowledge_loader_on_damaged_bytes(kb_copy, mutation):
 
 HANG_PROBE = r"""
 import sys
-from faultwise.units import parse_reading
-from faultwise.errors import FaultwiseError
+from faultwise.core.units import parse_reading
+from faultwise.core.errors import FaultwiseError
 texts = [
     "1" * 200_000 + "x",
     "1" + "0" * 100_000 + " kV",

@@ -34,7 +34,7 @@ def cases_dir(tmp_path: Path) -> Path:
 
 @pytest.fixture
 def workspace(knowledge_dir: Path, cases_dir: Path):
-    from faultwise.workspace import Workspace
+    from faultwise.core.workspace import Workspace
 
     return Workspace(knowledge_dir=knowledge_dir, cases_dir=cases_dir, bench="B1")
 

@@ -189,7 +189,7 @@ async def test_transformer_set_gets_its_own_chassis_wording(cases_dir):
     from conftest import FIXED_NOW, fixed_clock
     from faultwise.tui.app import build_app
     from faultwise.tui.settings import Settings
-    from faultwise.workspace import Workspace, bundled_knowledge_dir
+    from faultwise.core.workspace import Workspace, bundled_knowledge_dir
 
     app = build_app(Workspace(knowledge_dir=bundled_knowledge_dir(), cases_dir=cases_dir,
                               bench="B1"), clock=fixed_clock,
@@ -229,7 +229,7 @@ async def test_template_shows_the_familys_lineup_and_supply_fields(make_app, num
     heater voltages, handbook values from memory as tubes.yaml says). A series string sums
     to about the 120 V line (common practice, no source: within 10 %); a transformer set's
     tubes (rectifier aside) have 6.3 V heaters for the 6.3 V winding."""
-    from faultwise.tubes import load_tube_table
+    from faultwise.profile.tubes import load_tube_table
     from tui_helpers import ready
 
     app = make_app()
@@ -274,7 +274,7 @@ async def test_start_list_shows_short_set_labels_and_full_symptoms(tmp_path, wid
     from faultwise.tui.app import build_app
     from faultwise.tui.settings import Settings
     from faultwise.tui.wording import symptom_title
-    from faultwise.workspace import Workspace, bundled_knowledge_dir
+    from faultwise.core.workspace import Workspace, bundled_knowledge_dir
 
     kd = bundled_knowledge_dir()
     cases = tmp_path / "cases"

@@ -11,7 +11,7 @@ from __future__ import annotations
 from conftest import FIXED_NOW, fixed_clock, read_case
 from tui_helpers import acknowledge_cautions, new_case, type_text
 
-from faultwise.workspace import Workspace, bundled_knowledge_dir
+from faultwise.core.workspace import Workspace, bundled_knowledge_dir
 
 
 async def test_walk_on_the_bundled_knowledge(cases_dir):

@@ -12,10 +12,10 @@ from tui_helpers import acknowledge_cautions, answer, new_case, ready
 
 def open_case_on_disk(workspace, *answers: str) -> str:
     """A case created and walked through the domain API (as another session left it)."""
-    from faultwise.cases import CaseStore
-    from faultwise.graph import load_knowledge
-    from faultwise.profile import load_profile
-    from faultwise.walk import Walk
+    from faultwise.cases.store import CaseStore
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.profile.load import load_profile
+    from faultwise.walk.state import Walk
 
     knowledge = load_knowledge(workspace.knowledge_dir)
     profile = load_profile(workspace.sets_dir / "demo-5-tube-table.yaml")
@@ -79,7 +79,7 @@ async def test_damaged_case_is_listed_and_refused(make_app, cases_dir):
 
 
 async def test_case_locked_at_another_bench(make_app, workspace, cases_dir):
-    from faultwise.cases import CaseStore
+    from faultwise.cases.store import CaseStore
 
     case_id = open_case_on_disk(workspace)
     other = CaseStore(cases_dir, "B2", fixed_clock).open(case_id)
@@ -151,9 +151,9 @@ async def test_save_failure_keeps_answer_and_retry_works(make_app, cases_dir):
 
 
 async def test_viewer_shows_closed_case_step_by_step(make_app, workspace, cases_dir):
-    from faultwise.cases import CaseStore
-    from faultwise.graph import load_knowledge
-    from faultwise.walk import walk_from_case
+    from faultwise.cases.store import CaseStore
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.walk.state import walk_from_case
 
     case_id = open_case_on_disk(workspace, "1", "1k")
     store = CaseStore(cases_dir, "B1", fixed_clock)

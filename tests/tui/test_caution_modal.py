@@ -11,7 +11,7 @@ import pytest
 from conftest import FIXED_NOW, fixed_clock, read_case
 from tui_helpers import acknowledge_cautions, new_case, wait_armed
 
-from faultwise.workspace import Workspace, bundled_knowledge_dir
+from faultwise.core.workspace import Workspace, bundled_knowledge_dir
 
 
 def bundled_app(cases_dir):
@@ -24,7 +24,7 @@ def bundled_app(cases_dir):
 
 
 def leakage_cautions():
-    from faultwise.graph import load_knowledge
+    from faultwise.graph.knowledge import load_knowledge
 
     knowledge = load_knowledge(bundled_knowledge_dir())
     check = knowledge.node("supply.leakage-check")

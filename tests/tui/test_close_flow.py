@@ -15,8 +15,8 @@ import pytest
 from conftest import FIXED_NOW, read_case
 from tui_helpers import acknowledge_cautions, answer, new_case, type_text
 
-from faultwise.expect import expect
-from faultwise.profile import load_profile
+from faultwise.expect.expected import expect
+from faultwise.profile.load import load_profile
 
 
 @pytest.fixture

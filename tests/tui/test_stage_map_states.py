@@ -11,8 +11,8 @@ from __future__ import annotations
 import pytest
 from tui_helpers import acknowledge_cautions, answer, new_case
 
-from faultwise.expect import expect
-from faultwise.profile import load_profile
+from faultwise.expect.expected import expect
+from faultwise.profile.load import load_profile
 
 
 def box_text(screen, box_id: str) -> str:

@@ -15,6 +15,7 @@ import subprocess
 import sys
 import time
 import uuid
+from datetime import date
 from pathlib import Path
 
 import pytest
@@ -24,6 +25,7 @@ TMUX = shutil.which("tmux")
 FAULTWISE = Path(sys.executable).parent / "faultwise"
 
 pytestmark = [
+    pytest.mark.real_clock,                 # runs the app on the machine's clock
     pytest.mark.skipif(TMUX is None, reason="tmux is not installed"),
     pytest.mark.skipif(not FAULTWISE.exists(), reason="the faultwise console script is not "
                        "installed beside this Python"),
@@ -96,6 +98,7 @@ class Terminal:
 
 
 def test_walk_a_case_in_a_real_terminal(tmp_path):
+    started = date.today()
     cases = tmp_path / "cases"
     env = {"XDG_CONFIG_HOME": str(tmp_path / "config"), "TERM": "xterm-256color",
            "COLORTERM": "truecolor"}
@@ -162,6 +165,9 @@ def test_walk_a_case_in_a_real_terminal(tmp_path):
     assert (data["status"], data["outcome"], data["minutes"]) == ("closed", "repaired", 30)
     assert data["conclusion"]["fault"] == "supply.weak-rectifier"
     assert data["customer"] == "T-9"
+    # The id is named for the day the app ran on this machine's clock (which may be faked).
+    days = {started.strftime("%Y%m%d"), date.today().strftime("%Y%m%d")}
+    assert data["id"][:8] in days and files[0].name == f"{data['id']}.json"
     kinds = [(e["type"], e.get("phase")) for e in data["events"]]
     assert ("answer", "verify") in kinds and ("answer", "closing") in kinds
     assert (tmp_path / "config" / "faultwise" / "bench.json").is_file()   # notice remembered

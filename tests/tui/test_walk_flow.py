@@ -14,10 +14,10 @@ import pytest
 from conftest import read_case
 from tui_helpers import CASE_ID, acknowledge_cautions, answer, new_case, ready, type_text
 
-from faultwise.errors import InputError
-from faultwise.expect import expect
-from faultwise.profile import load_profile
-from faultwise.units import parse_reading
+from faultwise.core.errors import InputError
+from faultwise.expect.expected import expect
+from faultwise.profile.load import load_profile
+from faultwise.core.units import parse_reading
 
 
 @pytest.fixture

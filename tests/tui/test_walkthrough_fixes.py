@@ -10,8 +10,8 @@ from __future__ import annotations
 from textual.geometry import Region
 from tui_helpers import past_first_observation, acknowledge_cautions, answer, make_cases, new_case, ready
 
-from faultwise.errors import InputError
-from faultwise.units import parse_reading
+from faultwise.core.errors import InputError
+from faultwise.core.units import parse_reading
 
 SCREEN = Region(0, 0, 80, 24)
 
@@ -176,7 +176,7 @@ async def test_start_screen_names_the_symptom(make_app, workspace):
 
 def test_share_lines_fit_the_screen():
     """A fault share line (label, bar, percentage, count) fits in 80 columns."""
-    from faultwise.review import FaultShare
+    from faultwise.shop.review import FaultShare
     from faultwise.tui.screens.review import chart_widths, share_chart
 
     class Pair:

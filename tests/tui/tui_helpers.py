@@ -78,10 +78,10 @@ def make_cases(workspace) -> None:
     """Case files for the start screen: 001 closed (waiting-parts), 002 open, one damaged."""
     from conftest import fixed_clock
 
-    from faultwise.cases import CaseStore
-    from faultwise.graph import load_knowledge
-    from faultwise.profile import load_profile
-    from faultwise.walk import Walk
+    from faultwise.cases.store import CaseStore
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.profile.load import load_profile
+    from faultwise.walk.state import Walk
 
     knowledge = load_knowledge(workspace.knowledge_dir)
     profile = load_profile(workspace.sets_dir / "demo-5-tube-table.yaml")

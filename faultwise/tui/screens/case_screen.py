@@ -27,7 +27,7 @@ def open_walk(bench: Bench, case_id: str):
     FaultwiseError (locked, damaged, events that no longer fit the knowledge) leaves the
     case unlocked.
     """
-    from faultwise.walk import walk_from_case
+    from faultwise.walk.state import walk_from_case
 
     case = bench.store.open(case_id)
     try:
@@ -59,7 +59,7 @@ class CaseScreen(Screen):
 
     def _try_save(self) -> str | None:
         """Save the walk into the case; None on success, else the error sentence."""
-        from faultwise.errors import FaultwiseError
+        from faultwise.core.errors import FaultwiseError
 
         try:
             self.case.record(self.walk)
@@ -93,7 +93,7 @@ class CaseScreen(Screen):
 
         Returns True when the walk changed (and the save was started).
         """
-        from faultwise.errors import FaultwiseError
+        from faultwise.core.errors import FaultwiseError
 
         try:
             action()
@@ -108,7 +108,7 @@ class CaseScreen(Screen):
 
     def answer_text(self, text: str, panel) -> None:
         """Give typed text to the walk; a refusal goes under the field, nothing recorded."""
-        from faultwise.errors import FaultwiseError
+        from faultwise.core.errors import FaultwiseError
 
         try:
             self.walk.answer(text)

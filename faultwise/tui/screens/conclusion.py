@@ -238,8 +238,8 @@ class ConclusionScreen(CaseScreen):
         self._choose_outcome(event.value)
 
     def _choose_outcome(self, text: str) -> None:
-        from faultwise.errors import FaultwiseError
-        from faultwise.walk import resolve_choice
+        from faultwise.core.errors import FaultwiseError
+        from faultwise.walk.state import resolve_choice
 
         error = self.query_one("#close-error", Static)
         if not str(text or "").strip():

@@ -46,8 +46,8 @@ def tube_table_dir(bench: Bench) -> Path | None:
 
 def read_library(bench: Bench) -> list[LibrarySet]:
     """Every ``<knowledge>/sets/*.yaml``, loaded and validated (slow: run in a worker)."""
-    from faultwise.errors import FaultwiseError
-    from faultwise.profile import load_profile
+    from faultwise.core.errors import FaultwiseError
+    from faultwise.profile.load import load_profile
 
     out = []
     folder = bench.workspace.sets_dir
@@ -168,7 +168,7 @@ class NewCaseScreen(Screen):
             box.highlighted = 0
 
     def _rank_symptoms(self, text: str) -> None:
-        from faultwise.match import match
+        from faultwise.graph.match import match
 
         knowledge = self.bench.knowledge
         family = getattr(self.chosen_set.profile, "family", None) if self.chosen_set else None
@@ -292,8 +292,8 @@ class NewCaseScreen(Screen):
 
     def action_start(self) -> None:
         """Create the case file and start the walk (nothing is written on a refusal)."""
-        from faultwise.errors import FaultwiseError
-        from faultwise.walk import Walk
+        from faultwise.core.errors import FaultwiseError
+        from faultwise.walk.state import Walk
 
         complaint = self.query_one("#complaint", Input).value.strip()
         if self.chosen_set is None:

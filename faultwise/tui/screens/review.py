@@ -1,6 +1,6 @@
 """The shop review screen: the review of the closed cases, with terminal bar charts.
 
-``ReviewScreen(workspace)`` takes a :class:`faultwise.workspace.Workspace` or the bench
+``ReviewScreen(workspace)`` takes a :class:`faultwise.core.workspace.Workspace` or the bench
 context (anything with ``.workspace`` and, once loaded, ``.knowledge``). The review runs in
 a thread worker (``exit_on_error=False``) that reports progress while it scans the cases
 folder; the screen then shows the pairs, the selected pair's fault shares as bars, skipped
@@ -164,12 +164,12 @@ class ReviewScreen(Screen):
 
     @work(thread=True, exit_on_error=False, group="review", exclusive=True)
     def _run_review(self) -> None:
-        from faultwise.review import review_folder
+        from faultwise.shop.review import review_folder
 
         try:
             knowledge = self._knowledge or getattr(self.context, "knowledge", None)
             if knowledge is None:
-                from faultwise.graph import load_knowledge
+                from faultwise.graph.knowledge import load_knowledge
 
                 knowledge = load_knowledge(self.workspace.knowledge_dir)
             review = review_folder(self.workspace.cases_dir, knowledge,

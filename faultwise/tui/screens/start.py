@@ -232,10 +232,6 @@ class StartScreen(Screen):
             return chosen is not None
         if action == "view_selected":
             return chosen is not None and chosen[0] != "damaged"
-        if action == "review":
-            from faultwise.tui.app import review_available
-
-            return review_available()
         return True
 
     def action_safety(self) -> None:
@@ -279,7 +275,7 @@ class StartScreen(Screen):
 
     def resume(self, case_id: str) -> None:
         """Open the case for writing (takes the lock) and continue its walk."""
-        from faultwise.errors import FaultwiseError
+        from faultwise.core.errors import FaultwiseError
         from faultwise.tui.screens.walk import WalkScreen, open_walk
 
         try:

@@ -81,7 +81,7 @@ FIELDS = {
 
 def parse_lineup(text: str, family: str) -> list[dict]:
     """'converter=12BE6, if=12BA6' -> [{role, type}] (tubes) or [{role, material}] (transistors)."""
-    from faultwise.errors import InputError
+    from faultwise.core.errors import InputError
 
     value_key = "material" if family == "transistor" else "type"
     items = []
@@ -100,8 +100,8 @@ def field_id(key: str) -> str:
 
 def check_field(field: Field, text: str, family: str) -> str | None:
     """The parser's refusal for one field's text, or None when it reads (or is empty)."""
-    from faultwise.errors import FaultwiseError
-    from faultwise.units import parse_reading
+    from faultwise.core.errors import FaultwiseError
+    from faultwise.core.units import parse_reading
 
     if not text.strip() or field.unit is None:
         return None
@@ -188,8 +188,8 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
     @on(Input.Submitted, "#tf-family")
     @on(Input.Changed, "#tf-family")
     async def family_typed(self, event) -> None:
-        from faultwise.errors import FaultwiseError
-        from faultwise.walk import resolve_choice
+        from faultwise.core.errors import FaultwiseError
+        from faultwise.walk.state import resolve_choice
 
         text = event.value.strip()
         if self.family and text[:-1] == self.family and text[-1:] in ("1", "2", "3"):
@@ -252,8 +252,8 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
                 for f in FIELDS[self.family]}
 
     def action_use(self) -> None:
-        from faultwise.errors import FaultwiseError
-        from faultwise.profile import profile_from_dict
+        from faultwise.core.errors import FaultwiseError
+        from faultwise.profile.load import profile_from_dict
 
         if self.family is None:
             self._say("#tf-error", "Choose the family first (1, 2 or 3).")

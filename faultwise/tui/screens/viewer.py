@@ -150,7 +150,7 @@ class CaseViewerScreen(Screen):
     def on_mount(self) -> None:
         from rich.text import Text
 
-        from faultwise.errors import FaultwiseError
+        from faultwise.core.errors import FaultwiseError
 
         self.sub_title = f"case {self.case_id} (read-only)"
         table = self.query_one(DataTable)

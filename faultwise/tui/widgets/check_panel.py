@@ -21,7 +21,7 @@ PHASE_TAGS = {"diagnose": "CHECK", "verify": "VERIFY", "closing": "BEFORE IT GOE
 
 def reading_text(value: float, unit: str) -> str:
     """A value with its unit, as the trade writes it (units.format_reading)."""
-    from faultwise.units import format_reading
+    from faultwise.core.units import format_reading
 
     try:
         return format_reading(value, unit)

@@ -1,0 +1,184 @@
+"""In-memory model of the knowledge: symptoms, cautions and graph nodes.
+
+``graph.py`` builds these from the YAML (see DEVELOPERS.md, "Knowledge schema"); the walk,
+ranking, lint, sweep and review read them. Everything here is plain frozen data.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from types import MappingProxyType
+from typing import Mapping, Union
+
+STAGES = ("supply", "audio", "detector", "if", "oscillator", "antenna")
+FAMILIES = ("series-string", "transformer", "transistor")
+MEASURE_OUTCOMES = ("normal", "low", "high", "absent")
+CLEARED = "cleared"          # route target: this investigation found nothing, try the next
+SPECIAL_TARGETS = (CLEARED,)
+
+
+def _frozen(d: Mapping | None) -> Mapping:
+    return MappingProxyType(dict(d or {}))
+
+
+@dataclass(frozen=True)
+class Located:
+    """Where a piece of knowledge was written."""
+
+    file: str
+    line: int
+
+
+@dataclass(frozen=True)
+class Check:
+    """A measurement (``expect`` set) or an observation (``choices`` set).
+
+    ``outcomes`` maps every outcome (measurement: normal/low/high/absent; observation: each
+    choice) to a target node id or ``cleared``. ``normal`` is the outcome a healthy set
+    gives. ``unable`` is where a skipped check goes (default: ``cleared``, the next suspect).
+    ``closing``: done before any case of these families is closed (the leakage check).
+    ``when``: conditions on the set (key -> any of these values) for the check to apply;
+    empty: it applies to every set of its families (see :mod:`faultwise.graph.applicability`).
+    """
+
+    id: str
+    title: str
+    stage: str
+    families: tuple[str, ...]
+    how: str
+    why: str
+    minutes: float
+    outcomes: Mapping[str, str]
+    normal: str
+    expect: str | None = None
+    choices: Mapping[str, str] = field(default_factory=lambda: _frozen({}))
+    cautions: tuple[str, ...] = ()
+    unable: str | None = None
+    closing: bool = False
+    when: Mapping[str, tuple[str, ...]] = field(default_factory=lambda: _frozen({}))
+    where: Located | None = None
+    kind: str = "check"
+
+    @property
+    def is_measurement(self) -> bool:
+        return self.expect is not None
+
+    def outcome_names(self) -> tuple[str, ...]:
+        return MEASURE_OUTCOMES if self.is_measurement else tuple(self.choices)
+
+
+@dataclass(frozen=True)
+class Investigation:
+    """One entry of a suspects list: go to ``target``; ``minutes`` overrides its cost."""
+
+    target: str
+    label: str = ""
+    minutes: float | None = None
+
+
+@dataclass(frozen=True)
+class Suspects:
+    """An ordered list of investigations; the walk re-orders them by p/c.
+
+    When every investigation has ended in ``cleared``, the walk goes to ``exhausted``
+    (``cleared`` hands over to the enclosing suspects list).
+    """
+
+    id: str
+    title: str
+    stage: str
+    families: tuple[str, ...]
+    investigations: tuple[Investigation, ...]
+    exhausted: str = CLEARED
+    why: str = ""
+    where: Located | None = None
+    kind: str = "suspects"
+
+
+@dataclass(frozen=True)
+class Signature:
+    """What a fault does to the set: readings by expectation name and observations by check id.
+
+    A reading is an outcome class (``absent``, ``low``, ``high``, ``normal``) or a number in
+    the expectation's unit.
+    """
+
+    readings: Mapping[str, Union[str, float]] = field(default_factory=lambda: _frozen({}))
+    observations: Mapping[str, str] = field(default_factory=lambda: _frozen({}))
+
+
+@dataclass(frozen=True)
+class Fault:
+    """A conclusion: what is wrong, how to repair it, and how to prove the repair.
+
+    ``when``: conditions on the set for the fault to apply, as on :class:`Check`.
+    ``plain``: one sentence for the owner of the set, in plain words, of how this fault
+    caused the complaint (the customer copy of the job report prints it).
+    """
+
+    id: str
+    title: str
+    stage: str
+    families: tuple[str, ...]
+    repair: tuple[str, ...]
+    parts: tuple[str, ...]
+    verify: tuple[str, ...]             # check ids to repeat after the repair
+    signature: Signature
+    priors: Mapping[str, float]          # symptom id -> weight (jobs per 100 with that complaint)
+    cautions: tuple[str, ...] = ()
+    notes: str = ""
+    when: Mapping[str, tuple[str, ...]] = field(default_factory=lambda: _frozen({}))
+    where: Located | None = None
+    kind: str = "fault"
+    plain: str = ""
+
+
+@dataclass(frozen=True)
+class Escalate:
+    """Where the graph runs out: advice, and the tech records an off-graph finding."""
+
+    id: str
+    title: str
+    stage: str
+    families: tuple[str, ...]
+    advice: str
+    where: Located | None = None
+    kind: str = "escalate"
+
+
+Node = Union[Check, Suspects, Fault, Escalate]
+
+
+@dataclass(frozen=True)
+class Symptom:
+    id: str
+    title: str
+    families: tuple[str, ...]
+    entry: Mapping[str, str]            # family -> first node id
+    phrasings: tuple[str, ...] = ()
+    where: Located | None = None
+
+
+@dataclass(frozen=True)
+class Caution:
+    id: str
+    title: str
+    text: str
+    families: tuple[str, ...] = FAMILIES
+    where: Located | None = None
+    concern: str = ""       # one risk worded per family: cautions sharing it are one set
+
+
+@dataclass(frozen=True)
+class Learned:
+    """Closed-case counts: counts[symptom][family][fault id] = n (written by review --learn)."""
+
+    counts: Mapping[str, Mapping[str, Mapping[str, int]]] = field(default_factory=lambda: _frozen({}))
+    cases: int = 0
+    written: str = ""
+
+    def count(self, symptom: str, family: str, fault: str) -> int:
+        return int(self.counts.get(symptom, {}).get(family, {}).get(fault, 0))
+
+    def pair(self, symptom: str, family: str) -> Mapping[str, int]:
+        return self.counts.get(symptom, {}).get(family, {})
