@@ -210,13 +210,27 @@ class CaseScreen(Screen):
 
         if not event.is_printable or isinstance(self.focused, Input):
             return
+        if self.type_into_field(event.character or ""):
+            event.stop()
+            event.prevent_default()
+
+    def type_into_field(self, text: str) -> bool:
+        """Put ``text`` into the current step's field (focusing it); False when none."""
         field = self.current_field()
         if field is None:
-            return
-        event.stop()
-        event.prevent_default()
+            return False
         field.focus()
-        field.insert_text_at_cursor(event.character or "")
+        field.insert_text_at_cursor(text)
+        return True
+
+    def submit_field(self) -> bool:
+        """Enter on the current step's field, for a key that reached a closing dialog."""
+        field = self.current_field()
+        if field is None:
+            return False
+        field.focus()
+        field.action_submit()
+        return True
 
     # ------------------------------------------------------------------ leaving
 

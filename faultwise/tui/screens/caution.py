@@ -111,9 +111,30 @@ class CautionScreen(ModalScreen[bool]):
         else:
             self.action_leave()
 
+    def _beneath(self):
+        """The screen this dialog was opened over (while it is still on the stack)."""
+        stack = self.app.screen_stack
+        i = stack.index(self) if self in stack else 0
+        return stack[i - 1] if i > 0 else None
+
+    def on_key(self, event) -> None:
+        """Keys typed after the caution was answered, while the dialog is still closing,
+        belong to the next check's field: they are handed on, never lost."""
+        if self.read_s is None or self.read_s < 0 or not event.is_printable:
+            return                   # not answered yet, or left: nothing to hand on
+        typer = getattr(self._beneath(), "type_into_field", None)
+        if typer is not None and typer(event.character or ""):
+            event.stop()
+            event.prevent_default()
+
     def action_acknowledge(self) -> None:
         """Acknowledge, unless the guard time since the dialog opened has not passed."""
-        if not self.armed or self.read_s is not None:
+        if self.read_s is not None:          # answered, still closing: Enter is the field's
+            submit = getattr(self._beneath(), "submit_field", None)
+            if self.read_s >= 0 and submit is not None:
+                submit()
+            return
+        if not self.armed:
             return
         self.read_s = round(time.monotonic() - self._opened, 1)
         self.dismiss(True)
