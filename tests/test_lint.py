@@ -461,7 +461,7 @@ def test_lint_from_a_checkout_that_was_never_installed(tmp_path):
     root = Path(__file__).resolve().parent.parent
     site = str(Path(_yaml.__file__).resolve().parent.parent)
     checkout = tmp_path / "checkout"
-    shutil.copytree(root / "faultwise", checkout / "faultwise",
+    shutil.copytree(root / "faultwise", checkout / "faultwise", symlinks=True,
                     ignore=shutil.ignore_patterns("__pycache__"))
     shutil.copytree(root / "knowledge", checkout / "knowledge")
     env = {**os.environ, "PYTHONPATH": site}
