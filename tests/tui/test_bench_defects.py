@@ -307,3 +307,18 @@ async def test_start_list_shows_short_set_labels_and_full_symptoms(tmp_path, wid
             assert row[3].plain == title and len(title) <= sym_width, (title, sym_width)
         detail = str(app.screen.query_one("#case-detail").render())
         assert "Demo bench set: " in detail
+
+
+def test_library_search_breaks_ties_on_whole_words():
+    """'6.3 V console' found the 230 V set first (equal fuzzy scores, file order): the
+    words in common now decide. Checked on the bundled demo library."""
+    from faultwise.core.workspace import bundled_knowledge_dir
+    from faultwise.tui.screens.new_case import LibrarySet, rank_sets
+    import yaml
+
+    sets = [LibrarySet(p, yaml.safe_load(p.read_text(encoding="utf-8"))["label"], None)
+            for p in sorted((bundled_knowledge_dir() / "sets").glob("*.yaml"))]
+    for query, stem in (("6.3 V console", "demo-6v-console"),
+                        ("230 V noval", "demo-230v-transformer"),
+                        ("5 tube table", "demo-5-tube-table")):
+        assert rank_sets(query, sets)[0].path.stem == stem, query
