@@ -16,7 +16,8 @@ import sys
 from faultwise.commands import add_workspace_options
 from faultwise.core.errors import FaultwiseError
 
-COMMANDS = ("expect", "match", "lint", "walk", "replay", "review", "sweep", "report", "demo")
+COMMANDS = ("expect", "match", "lint", "walk", "replay", "review", "sweep", "report", "demo",
+            "meter")
 
 
 class _Parser(argparse.ArgumentParser):
@@ -34,6 +35,8 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=f"faultwise {__version__}")
     add_workspace_options(parser, top=True)
     parser.add_argument("--bench", metavar="NAME", help="this bench's name (default: B1)")
+    parser.add_argument("--meter", metavar="SPEC", help="the bench meter: visa:RESOURCE, "
+                        "sigrok:DRIVER[:conn=PORT] or manual (default: manual)")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     for name in COMMANDS:
         try:

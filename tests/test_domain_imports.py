@@ -14,7 +14,8 @@ import sys
 
 UI_PACKAGES = ("textual", "rich")
 # The domain layers (pyproject [tool.importlinter]); the probe must import modules of each.
-DOMAIN_PACKAGES = ("core", "calc", "profile", "expect", "graph", "walk", "cases", "shop", "report")
+DOMAIN_PACKAGES = ("core", "calc", "profile", "expect", "graph", "walk", "cases", "shop", "report",
+                   "meter")
 NOT_DOMAIN = ("faultwise.tui", "faultwise.commands", "faultwise.cli", "faultwise.__main__")
 
 PROBE = r"""

@@ -26,12 +26,16 @@ REQUIRED = ("id", "events")
 EVENT = {"n": _NUMBER, "at": _TEXT, "type": _TEXT, "phase": _TEXT, "node": _TEXT,
          "expect": _TEXT, "band": _MAP, "raw": _TEXT, "value": _NUMBER, "outcome": _TEXT,
          "reason": _TEXT, "text": _TEXT, "caution": _TEXT, "finding": _TEXT,
-         "parts": _LIST_OF_TEXT, "fault": _TEXT, "minutes": _NUMBER, "shown": _TEXT,
-         "read_s": _NUMBER, "assumed": _FLAG}
-EVENT_NULLABLE = {"expect", "band", "raw", "value", "node", "minutes", "phase", "outcome"}
+         "parts": _LIST_OF_TEXT, "fault": _TEXT, "minutes": _NUMBER, "meter": _MAP,
+         "shown": _TEXT, "read_s": _NUMBER, "assumed": _FLAG}
+EVENT_NULLABLE = {"expect", "band", "raw", "value", "node", "minutes", "phase", "outcome",
+                  "meter"}
 EVENT_REQUIRED = {"answer": ("node", "outcome"), "skip": ("node",), "parts": ("parts",),
                   "off-graph": ("finding",), "resume": (), "to-closing": (), "note": ("text",),
                   "acknowledge": ("caution",), "close": ("outcome",), "reopen": ()}
+# a reading taken from a bench meter (faultwise.meter): value null when the meter showed OL
+METER = {"value": _NUMBER, "unit": _TEXT, "mode": _TEXT, "meter": _TEXT, "at": _TEXT,
+         "overload": _FLAG}
 BAND = {"nominal": _NUMBER, "low": _NUMBER, "high": _NUMBER, "unit": _TEXT, "basis": _TEXT,
         "typical": _FLAG, "absent_below": _NUMBER}
 
@@ -98,6 +102,11 @@ def _event_problem(event: Any, i: int) -> str | None:
     band = event.get("band")
     if isinstance(band, dict):
         problem = _fields(band, BAND, (), where + "band ")
+        if problem:
+            return problem
+    meter = event.get("meter")
+    if isinstance(meter, dict):
+        problem = _fields(meter, METER, ("value",), where + "meter ")
         if problem:
             return problem
     return None

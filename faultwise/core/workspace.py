@@ -5,6 +5,10 @@ Resolution order for each folder: the command-line option, then the environment
 in the current folder (keys ``knowledge``, ``cases``, ``bench``), then the default: the
 bundled knowledge, ``./cases`` and bench ``B1``.
 
+The bench meter (key ``meter``, option ``--meter``, ``FAULTWISE_METER``; default ``manual``)
+resolves the same way; its format is in :mod:`faultwise.meter.config`. ``--meter`` and the
+environment replace the source and keep the options (time-out, backend) of the file.
+
 The shop that prints the reports comes only from ``faultwise.yaml`` (no default: a report
 shows no shop name when it is unset)::
 
@@ -24,9 +28,10 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from faultwise.core.errors import CaseError, FaultwiseError
+from faultwise.core.meter_setting import MeterConfig
 
 CONFIG_NAME = "faultwise.yaml"
-CONFIG_KEYS = ("knowledge", "cases", "bench", "shop")
+CONFIG_KEYS = ("knowledge", "cases", "bench", "shop", "meter")
 SHOP_KEYS = ("name", "contact", "terms")
 SHOP_LIMITS = {"name": 80, "contact": 300, "terms": 1200}   # characters; the page must hold them
 _BENCH_RE = re.compile(r"^[A-Za-z0-9_-]{1,40}\Z")
@@ -78,6 +83,7 @@ class Workspace:
     knowledge_dir: Path
     cases_dir: Path
     bench: str
+    meter: MeterConfig = MeterConfig()
     shop: Shop = Shop()
 
     @property
@@ -110,6 +116,15 @@ def _config(cwd: Path) -> dict:
             raise FaultwiseError(f"'{key}' must be a text", file=str(path),
                                  line=line_of(data, key), key=key,
                                  hint="write a folder path or a bench name")
+    if "meter" in data:
+        from faultwise.core.meter_setting import parse_meter_setting
+
+        try:
+            data["meter"] = parse_meter_setting(data["meter"], file=str(path), line_of=line_of)
+        except FaultwiseError as exc:
+            if exc.line is None:
+                exc.line = line_of(data, "meter")
+            raise
     return data
 
 
@@ -155,11 +170,11 @@ def shop_from_config(conf: dict, cwd: Path) -> Shop:
 def resolve_workspace(knowledge: str | os.PathLike | None = None,
                       cases: str | os.PathLike | None = None,
                       bench: str | None = None,
-                      cwd: Path | None = None) -> Workspace:
-    """Pick the knowledge folder, cases folder and bench name for this run."""
+                      cwd: Path | None = None, meter: str | None = None) -> Workspace:
+    """Pick the knowledge folder, cases folder, bench name and meter for this run."""
     cwd = Path.cwd() if cwd is None else cwd
     env = os.environ
-    conf = _config(cwd)          # always read: the shop is named only there
+    conf = _config(cwd)          # always read: the shop and the meter's options
     k = knowledge or env.get("FAULTWISE_KNOWLEDGE") or conf.get("knowledge")
     c = cases or env.get("FAULTWISE_CASES") or conf.get("cases") or "cases"
     b = bench or env.get("FAULTWISE_BENCH") or conf.get("bench") or "B1"
@@ -173,11 +188,16 @@ def resolve_workspace(knowledge: str | os.PathLike | None = None,
     if not kdir.is_dir():
         raise FaultwiseError("the knowledge folder does not exist", file=str(kdir),
                              hint="pass --knowledge with a folder that holds symptoms.yaml and graph/")
+    from faultwise.core.meter_setting import with_spec
+
+    meter_config = with_spec(conf.get("meter") or MeterConfig(), env.get("FAULTWISE_METER"),
+                             key="FAULTWISE_METER")
+    meter_config = with_spec(meter_config, meter)
     return Workspace(knowledge_dir=kdir, cases_dir=cdir, bench=str(b),
-                     shop=shop_from_config(conf, cwd))
+                     shop=shop_from_config(conf, cwd), meter=meter_config)
 
 
 def workspace_from_args(args) -> Workspace:
     """The workspace for a parsed command line (options given before or after the command)."""
     return resolve_workspace(getattr(args, "knowledge", None), getattr(args, "cases", None),
-                             getattr(args, "bench", None))
+                             getattr(args, "bench", None), meter=getattr(args, "meter", None))

@@ -27,6 +27,7 @@ class Bench:
     clock: Clock = system_clock
     settings: Settings = field(default_factory=Settings)
     knowledge: Any = None                 # faultwise.graph.nodes Knowledge, set by the loader worker
+    meter: Any = None                     # tui.meter_keys.MeterState, opened on first use
     _store: Any = field(default=None, repr=False)
 
     @property

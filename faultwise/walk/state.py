@@ -86,6 +86,7 @@ class Step:
     reason: str = ""
     normal: bool = True
     minutes: float = 0.0
+    meter: Mapping | None = None      # the meter sample when the reading came from a meter
     assumed: bool = False             # no answer given: normal assumed (walk --assume-normal)
 
 
@@ -433,9 +434,14 @@ class Walk:
         return self._push(self._event("answer", node=check.id, raw=text.strip(), outcome=choice,
                                       **mark))
 
-    def answer_value(self, value: float, raw: str | None = None, *,
-                     assumed: bool = False) -> dict:
-        """Answer the current measurement with a number in its unit."""
+    def answer_value(self, value: float, raw: str | None = None,
+                     meter: Mapping | None = None, *, assumed: bool = False) -> dict:
+        """Answer the current measurement with a number in its unit.
+
+        ``meter`` is the sample a bench meter gave (:func:`faultwise.meter.fit.answer_from_meter`:
+        value, unit as reported, mode, meter identity, time); it is kept in the event.
+        ``assumed`` marks an answer nobody gave (``walk --assume-normal``).
+        """
         check, expected = self._asked_check()
         if not check.is_measurement or expected is None:
             raise WalkError(f"'{check.id}' does not take a number", node=check.id,
@@ -444,10 +450,12 @@ class Walk:
         if not math.isfinite(value):
             raise InputError("the reading must be a finite number", node=check.id)
         raw = f"{value:g} {expected.unit}" if raw is None else raw
-        mark = {"assumed": True} if assumed else {}
+        extra = {"meter": dict(meter)} if meter else {}
+        if assumed:
+            extra["assumed"] = True
         return self._push(self._event("answer", node=check.id, expect=check.expect,
                                       band=band_of(expected), raw=raw, value=value,
-                                      outcome=classify(value, expected), **mark))
+                                      outcome=classify(value, expected), **extra))
 
     def skip(self, reason: str = "") -> dict:
         """Record that the check could not be made; follow its `unable` route (default cleared)."""
@@ -675,7 +683,8 @@ class Walk:
                              value=float(value) if isinstance(value, (int, float)) else None,
                              outcome=outcome, reason=str(event.get("reason", "") or ""),
                              normal=normal, minutes=float(check.minutes),
-                             assumed=event.get("assumed") is True))
+                             meter=event.get("meter") if isinstance(event.get("meter"), dict)
+                             else None, assumed=event.get("assumed") is True))
         if st.phase == "diagnose":
             st.memory[node_id] = outcome
             st.came_from = (node_id, outcome)

@@ -17,6 +17,7 @@ from textual.content import Content
 from textual.validation import Integer
 from textual.widgets import Footer, Header, Input, Static
 
+from faultwise.tui.meter_keys import MeterKeys
 from faultwise.tui.screens.case_screen import CaseScreen
 from faultwise.tui.widgets.bench_input import BenchInput
 from faultwise.tui.widgets.check_panel import CheckPanel
@@ -63,7 +64,7 @@ def failed_verify_lines(walk) -> list[str]:
     return lines
 
 
-class ConclusionScreen(CaseScreen):
+class ConclusionScreen(MeterKeys, CaseScreen):
     """Repair, verify, closing checks and close."""
 
     BINDINGS = [
@@ -76,6 +77,7 @@ class ConclusionScreen(CaseScreen):
                 "in the field", priority=True),
         Binding("pagedown", "scroll_steps(4)", "More steps", show=False, priority=True),
         Binding("pageup", "scroll_steps(-4)", "Steps back", show=False, priority=True),
+        *MeterKeys.BINDINGS,
         CaseScreen.UNDO,
         CaseScreen.CAUTIONS,
         CaseScreen.BACK,

@@ -14,6 +14,7 @@ from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.content import Content
 from textual.widgets import Footer, Header, Static
 
+from faultwise.tui.meter_keys import MeterKeys
 from faultwise.tui.screens.case_screen import CaseScreen, open_walk
 from faultwise.tui.widgets.check_panel import CheckPanel
 from faultwise.tui.widgets.history import History
@@ -55,7 +56,7 @@ def map_states(walk) -> dict[str, str]:
     return stage_states(views, fault.stage if fault is not None else None)
 
 
-class WalkScreen(CaseScreen):
+class WalkScreen(MeterKeys, CaseScreen):
     """Diagnosis: checks, skips, notes, off-graph findings, undo, why-this-check."""
 
     BINDINGS = [
@@ -66,6 +67,7 @@ class WalkScreen(CaseScreen):
         Binding("f5", "off_graph", "Found", tooltip="Record an off-graph finding",
                 priority=True),
         CaseScreen.READINGS,
+        *MeterKeys.BINDINGS,
         CaseScreen.UNDO,
         CaseScreen.CAUTIONS,
         CaseScreen.BACK,

@@ -68,6 +68,7 @@ class CheckPanel(Vertical):
     CheckPanel #answer { margin-top: 1; background: $panel-lighten-1; }
     CheckPanel #answer-error { color: $error; height: auto; }
     CheckPanel #check-warning { color: $warning; height: auto; }
+    CheckPanel #meter-line { color: $text-muted; height: auto; display: none; }
     """
 
     class Answered(Message):
@@ -91,6 +92,7 @@ class CheckPanel(Vertical):
         yield BenchInput(id="answer", compact=True, select_on_focus=False,
                          placeholder="type the reading, Enter records it")
         yield Static("", id="answer-error")
+        yield Static("", id="meter-line")
 
     @property
     def input(self) -> Input:
@@ -136,6 +138,15 @@ class CheckPanel(Vertical):
         choices_box.display = not prompt.is_measurement
         self.input.value = ""
         self.show_error(None)
+        from faultwise.tui.meter_keys import meter_hint
+
+        self.show_meter(meter_hint(self.app, prompt))
+
+    def show_meter(self, text: str) -> None:
+        """The bench meter's line (tui.meter_keys), hidden when the bench has none."""
+        box = self.query_one("#meter-line", Static)
+        box.update(Content(text))
+        box.display = bool(text)
 
     def show_error(self, message: str | None) -> None:
         """The reason the last input was refused (nothing was recorded), or clear it."""

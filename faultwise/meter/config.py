@@ -1,0 +1,22 @@
+"""Open the bench meter a setting names (:mod:`faultwise.core.meter_setting` parses it)."""
+
+from __future__ import annotations
+
+from faultwise.core.meter_setting import MANUAL, MeterConfig
+
+
+def open_meter(config: MeterConfig, *, clock=None):
+    """The :class:`~faultwise.meter.base.Meter` for a setting (nothing is contacted yet)."""
+    if config.kind == "visa":
+        from faultwise.meter.visa import VisaMeter
+
+        return VisaMeter(config.target, timeout_s=config.timeout, backend=config.backend,
+                         clock=clock)
+    if config.kind == "sigrok":
+        from faultwise.meter.sigrok import SigrokMeter
+
+        return SigrokMeter(config.target, conn=config.conn, channel=config.channel,
+                           timeout_s=config.timeout, clock=clock)
+    from faultwise.meter.base import ManualMeter
+
+    return ManualMeter(MANUAL, clock=clock)
