@@ -192,9 +192,17 @@ class CaseScreen(Screen):
         return None
 
     def focus_field(self) -> None:
-        """Give the focus back to the field the current step needs."""
-        field = self.current_field()
-        if field is not None and self.app.screen is self:
+        """Give the focus back to the field the current step needs (only while this screen
+        is the one shown: a resume can come after the screen was switched away)."""
+        from textual.css.query import NoMatches
+
+        if not self.is_attached or self.app.screen is not self:
+            return
+        try:
+            field = self.current_field()
+        except NoMatches:
+            return
+        if field is not None:
             field.focus()
 
     def on_screen_resume(self) -> None:
@@ -216,7 +224,12 @@ class CaseScreen(Screen):
 
     def type_into_field(self, text: str) -> bool:
         """Put ``text`` into the current step's field (focusing it); False when none."""
-        field = self.current_field()
+        from textual.css.query import NoMatches
+
+        try:
+            field = self.current_field() if self.is_attached else None
+        except NoMatches:
+            field = None
         if field is None:
             return False
         field.focus()
@@ -225,7 +238,12 @@ class CaseScreen(Screen):
 
     def submit_field(self) -> bool:
         """Enter on the current step's field, for a key that reached a closing dialog."""
-        field = self.current_field()
+        from textual.css.query import NoMatches
+
+        try:
+            field = self.current_field() if self.is_attached else None
+        except NoMatches:
+            field = None
         if field is None:
             return False
         field.focus()
