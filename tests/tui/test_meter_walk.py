@@ -88,8 +88,7 @@ async def test_meter_reading_recorded_with_value_unit_meter_and_time(meter_app, 
         assert app.screen.id == "caution"
         assert "wired to the computer" in str(app.screen.query_one("#caution-scroll")
                                                .query_one(".caution-text").render())
-        await pilot.press("enter")
-        await pilot.pause()
+        await acknowledge_cautions(pilot)          # after its guard time, like any caution
         await app.workers.wait_for_complete()
         await pilot.pause()
         await pilot.pause()
