@@ -1,4 +1,6 @@
-"""``faultwise expect PROFILE [--json] [--knowledge DIR]``: expected readings for a set profile."""
+"""``faultwise expect PROFILE [--json] [--chart [--html FILE]] [--knowledge DIR]``: expected
+readings for a set profile; ``--chart`` prints them as a voltage chart by device and pin,
+``--chart --html FILE`` writes the printable chart page."""
 
 from __future__ import annotations
 
@@ -19,6 +21,10 @@ def register(subparsers) -> None:
     p.add_argument("profile", metavar="PROFILE", help="set profile YAML (faultwise-set/1)")
     add_workspace_options(p)
     p.add_argument("--json", action="store_true", help="print one JSON document")
+    p.add_argument("--chart", action="store_true",
+                   help="print the voltage chart: every electrode of every device, by pin")
+    p.add_argument("--html", metavar="FILE",
+                   help="with --chart: write the chart as a printable HTML page to FILE")
     p.set_defaults(func=run)
 
 
@@ -39,12 +45,40 @@ def run(args: argparse.Namespace) -> int:
 
         table = load_tube_table(knowledge)
     expectations = expect(profile, tube_table=table)
+    if args.html and not args.chart:
+        from faultwise.core.errors import InputError
+
+        raise InputError("--html goes with --chart", key="--html",
+                         hint="write: faultwise expect PROFILE --chart --html FILE")
+    if args.chart:
+        return _chart(args, profile, expectations, table)
     if args.json:
         doc = {"profile": profile_to_dict(profile),
                "expectations": {name: _json_entry(e) for name, e in expectations.items()}}
         print(json.dumps(doc, indent=2, ensure_ascii=False))
         return 0
     print("\n".join(render_table(profile, expectations)))
+    return 0
+
+
+def _chart(args, profile, expectations, table) -> int:
+    from pathlib import Path
+
+    from faultwise.expect.chart import chart_rows, render_chart
+
+    rows = chart_rows(profile, expectations, table)
+    if args.html:
+        from faultwise.report.chart_html import chart_html
+        from faultwise.core.errors import FaultwiseError
+
+        try:
+            Path(args.html).write_text(chart_html(profile, rows, table), encoding="utf-8")
+        except OSError as exc:
+            raise FaultwiseError(f"cannot write the chart page ({exc.strerror})", file=args.html,
+                                 hint="choose a writable path") from None
+        print(f"Voltage chart written to {args.html}")
+        return 0
+    print("\n".join(render_chart(profile, rows)))
     return 0
 
 

@@ -21,6 +21,9 @@ def register(subparsers) -> None:
                    help="only cases closed on or after DATE (YYYY-MM-DD)")
     p.add_argument("--json", action="store_true", help="print one JSON document")
     p.add_argument("--html", metavar="FILE", help="also write a printable HTML review to FILE")
+    p.add_argument("--inject", action="store_true",
+                   help="with --html: add the injected sweep per complaint (found, mean minutes, "
+                        "ratio to the optimal order); takes some seconds")
     p.add_argument("--learn", action="store_true",
                    help="write the fault counts to <knowledge>/learned.yaml")
     p.add_argument("--dry-run", action="store_true",
@@ -65,6 +68,22 @@ def _learn_text(learning, changes, path, dry_run: bool) -> str:
     return "\n".join(lines) + "\n"
 
 
+def _with_inject(page: str, ws, knowledge) -> str:
+    """The review page with the injected sweep's tables before its safety section."""
+    from faultwise.commands.sweep import _sets_dir, _tube_table
+    from faultwise.shop.sweep import load_demo_sets
+    from faultwise.shop.sweep_inject import run_inject
+    from faultwise.shop.sweep_inject_report import inject_html
+
+    sets = load_demo_sets(_sets_dir(ws, None), ws.knowledge_dir)
+    from faultwise.graph.inject_known import load_known
+
+    section = inject_html(run_inject(knowledge, sets, band_pass=False, tube_table=_tube_table(ws),
+                                     known=load_known(knowledge, ws.knowledge_dir)))
+    mark = "<h2>Safety</h2>"
+    return page.replace(mark, section + mark, 1) if mark in page else page + section
+
+
 def run(args: argparse.Namespace) -> int:
     from pathlib import Path
 
@@ -100,8 +119,11 @@ def run(args: argparse.Namespace) -> int:
     if args.html:
         from faultwise.report.html_report import review_html
 
+        page = review_html(review, ws.shop.name)
+        if args.inject:
+            page = _with_inject(page, ws, knowledge)
         try:
-            Path(args.html).write_text(review_html(review, ws.shop.name), encoding="utf-8")
+            Path(args.html).write_text(page, encoding="utf-8")
         except OSError as exc:
             raise FaultwiseError(f"cannot write the HTML review ({exc.strerror})",
                                  file=args.html, hint="choose a writable path") from None

@@ -29,6 +29,10 @@ def register(subparsers) -> None:
     p.add_argument("--learning", action="store_true",
                    help="also measure learning: counts from the earlier half of the closed cases, "
                         "mean checks on the later half with and without them")
+    p.add_argument("--inject", action="store_true",
+                   help="break every modelled fault in every set's calc model and walk on the "
+                        "computed readings: found, wrong, missed; the healthy sets; the p/c order "
+                        "against the optimal order (exit 1 when anything is wrong, missed or blamed)")
     p.add_argument("--seed", type=int, default=None, metavar="N",
                    help="seed of the random baseline order (default: a fixed one)")
     p.set_defaults(func=run)
@@ -63,6 +67,8 @@ def run(args: argparse.Namespace) -> int:
     ws = workspace_from_args(args)
     knowledge = load_knowledge(ws.knowledge_dir)
     sets = load_demo_sets(_sets_dir(ws, args.sets), ws.knowledge_dir)
+    if args.inject:
+        return run_inject_command(args, ws, knowledge, sets)
     seed = RANDOM_SEED if args.seed is None else args.seed
     report = run_sweep(knowledge, sets, family=args.family, symptom=args.symptom,
                        all_sets=args.all_sets, seed=seed)
@@ -82,3 +88,41 @@ def run(args: argparse.Namespace) -> int:
         print(f"faultwise: {sentence}", file=sys.stderr)
         return 1
     return 0
+
+
+def run_inject_command(args, ws, knowledge, sets) -> int:
+    """``sweep --inject``: the injected sweep and the optimal-order bound."""
+    from faultwise.core.errors import FaultwiseError
+    from faultwise.shop.sweep_inject import SEED, run_inject
+    from faultwise.shop.sweep_inject_report import failure_sentence, inject_text, inject_to_dict
+
+    if args.family:
+        sets = {f: v for f, v in sets.items() if f == args.family}
+    seed = SEED if args.seed is None else args.seed
+    from faultwise.graph.inject_known import load_known
+
+    report = run_inject(knowledge, sets, seed=seed, tube_table=_tube_table(ws),
+                        known=load_known(knowledge, ws.knowledge_dir))
+    if not report.walks:
+        raise FaultwiseError("no modelled fault could be injected", file=str(ws.knowledge_dir),
+                             hint="give faults a 'model:' and put set profiles in the sets folder")
+    if args.json:
+        print(json.dumps(inject_to_dict(report), indent=2))
+    else:
+        sys.stdout.write(inject_text(report))
+    sentence = failure_sentence(report)
+    if sentence:
+        sys.stdout.flush()
+        print(f"faultwise: {sentence}", file=sys.stderr)
+        return 1
+    return 0
+
+
+def _tube_table(ws):
+    from pathlib import Path
+
+    from faultwise.profile.tubes import load_tube_table
+
+    if (Path(ws.knowledge_dir) / "tubes.yaml").is_file():
+        return load_tube_table(ws.knowledge_dir)
+    return None

@@ -49,11 +49,23 @@ def add_bias(ctx: Context) -> None:
     p = ctx.p
     if p.battery_v is None or not p.transistors:
         return
+    from faultwise.expect.output_pair import add_output_pair
+
     standby_nom = 0.0
     ends = {"low": [0.0, 0.0], "high": [0.0, 0.0]}   # battery end -> [sum of mins, sum of maxes]
     parts: list[str] = []
     keys_all: list[str] = ["battery"]
+    pair = add_output_pair(ctx)
+    if pair is not None:   # the push-pull pair: its own model, its whole band at either end
+        standby_nom += pair[0]
+        for end in ends.values():
+            end[0] += pair[1]
+            end[1] += pair[2]
+        parts.append(f"output pair {_n(pair[0])}")
+        keys_all.append("transistors.output")
     for tr in p.transistors:
+        if pair is not None and tr.role in ("output", "output2"):
+            continue
         sp = _bias_spreads(ctx, tr)
         bands = worst_case_fields(divider_bias, sp)
         nom = divider_bias(**{k: s.nominal for k, s in sp.items()})

@@ -48,6 +48,7 @@ def expectation_names(family: str) -> frozenset[str]:
         names = common | {"supply.battery_v", "supply.standby_ma", "oscillator.emitter_shift_v"}
         for role in _transistor_roles():
             names |= {f"bias.{role}.{f}" for f in BIAS_FIELDS}
+        names |= {"bias.output.idle_ma", "bias.output.bases_v", "bias.output.midpoint_v"}
         return frozenset(names)
     if family not in ("series-string", "transformer"):
         return frozenset()
@@ -59,8 +60,12 @@ def expectation_names(family: str) -> frozenset[str]:
         names |= {"heaters.string_v", "heaters.string_ma", "heaters.dropping_ohm"}
     else:
         names |= {"heaters.winding_v", "heaters.total_a", "supply.secondary_v"}
+    from faultwise.expect.stages import NO_STAGE_ROLES, STAGE_FIELDS
+
     for role in _tube_roles():
         names |= {f"heater.{role}.v", f"heater.{role}.cold_ohm"}
+        if role not in NO_STAGE_ROLES:
+            names |= {f"stage.{role}.{f}" for f in STAGE_FIELDS}
     return frozenset(names)
 
 
@@ -74,6 +79,7 @@ def expect(profile, *, tube_table=None) -> dict[str, Expected]:
     from faultwise.expect.bias import add_battery, add_bias
     from faultwise.expect.context import Context
     from faultwise.expect.heaters import add_heaters
+    from faultwise.expect.stages import add_tube_stages
     from faultwise.expect.signal import add_detector, add_if_strip, add_oscillator
     from faultwise.expect.supply import add_mains, add_rectifier
     from faultwise.expect.tuning import add_antenna, add_tuning
@@ -84,6 +90,7 @@ def expect(profile, *, tube_table=None) -> dict[str, Expected]:
         add_heaters(ctx)
         add_rectifier(ctx)
         add_output_tube(ctx)
+        add_tube_stages(ctx)
     else:
         add_battery(ctx)
         add_bias(ctx)

@@ -383,6 +383,7 @@ class _Lint:
                         "list the parts, or write 'parts: []' when none are needed")
             self._verify(node)
             self._signature(node)
+            self._model(node)
             for sid in node.priors:
                 if sid not in k.symptoms:
                     self.at(node, f"'priors' names the unknown symptom '{sid}'",
@@ -412,6 +413,13 @@ class _Lint:
             if covered and family not in covered:
                 self.at(node, f"no verify check applies to {family} sets",
                         "add one, or narrow the fault's 'families'")
+
+    def _model(self, node: Fault) -> None:
+        """Every model entry names a target of the vocabulary with a change it takes."""
+        from faultwise.expect.fault_models import model_problems
+
+        for target, message, hint in model_problems(node.model, node.families):
+            self.at(node, f"model '{target}': {message}", hint)
 
     def _signature(self, node: Fault) -> None:
         k = self.k
@@ -492,6 +500,17 @@ def _summary(k: Knowledge | None, result: LoadResult) -> dict:
             "files": sum(len(v) for v in result.stage_files.values())}
 
 
+def _inject_known(k: Knowledge, path: Path, run) -> None:
+    """inject_known.yaml (faults readings cannot find): every entry must check out."""
+    from faultwise.core.errors import FaultwiseError
+    from faultwise.graph.inject_known import load_known
+
+    try:
+        load_known(k, path)
+    except FaultwiseError as e:
+        run.errors.append(Finding(e.file or str(path), e.line, e.node, e.message, e.hint or ""))
+
+
 def lint(path: str | Path, expectation_names: NamesFn | None = None) -> LintReport:
     """Check a knowledge folder; ``expectation_names`` defaults to faultwise.expect.expected's."""
     path = Path(path)
@@ -529,6 +548,7 @@ def lint(path: str | Path, expectation_names: NamesFn | None = None) -> LintRepo
         run.priors()
     run.phrasings()
     run.learned()
+    _inject_known(k, path, run)
     summary = _summary(k, result)
     summary.update(errors=len(run.errors), warnings=len(run.warnings))
     return LintReport(run.errors, run.warnings, summary)

@@ -114,6 +114,8 @@ class Fault:
     ``when``: conditions on the set for the fault to apply, as on :class:`Check`.
     ``plain``: one sentence for the owner of the set, in plain words, of how this fault
     caused the complaint (the customer copy of the job report prints it).
+    ``model``: the change the fault makes to the set's profile or calc model, target ->
+    change (:mod:`faultwise.fault_models`); empty when the calc engine cannot compute it.
     """
 
     id: str
@@ -131,6 +133,7 @@ class Fault:
     where: Located | None = None
     kind: str = "fault"
     plain: str = ""
+    model: Mapping[str, str] = field(default_factory=lambda: _frozen({}))   # fault_models
 
 
 @dataclass(frozen=True)

@@ -26,7 +26,7 @@ KEYS = {
                                   "normal", "outcomes", OTHERWISE, "unable", "closing", "when")),
     "suspects": frozenset(_COMMON + ("why", "investigations", "exhausted")),
     "fault": frozenset(_COMMON + ("repair", "parts", "verify", "signature", "priors",
-                                  "cautions", "notes", "when", "plain")),
+                                  "cautions", "notes", "when", "plain", "model")),
     "escalate": frozenset(_COMMON + ("advice",)),
 }
 INVESTIGATION_KEYS = frozenset(("target", "label", "minutes"))
@@ -227,6 +227,20 @@ def _signature(r: KnowledgeReader) -> Signature:
                      observations=MappingProxyType(observations))
 
 
+def _model(r: KnowledgeReader) -> Mapping:
+    """``model``: {target: change}; the vocabulary is checked by lint (fault_models)."""
+    raw = r.mapping("model")
+    out: dict[str, str] = {}
+    for name, value in (raw or {}).items():
+        if not isinstance(name, str) or isinstance(value, (dict, list)) or value is None:
+            r.p.add(f"model entry '{name}' must map a target to a change", file=r.file,
+                    line=key_line(raw, name), node=r.node, key="model",
+                    hint="write e.g. 'supply.first_cap_uf: x0.1' or 'heater.output: open'")
+            continue
+        out[name] = str(value)
+    return MappingProxyType(out)
+
+
 def _priors(r: KnowledgeReader) -> dict[str, float]:
     out: dict[str, float] = {}
     raw = r.mapping("priors")
@@ -283,7 +297,8 @@ def _node(raw, file: str, stage: str, families: tuple[str, ...], problems: Probl
         return Fault(**base, repair=r.texts("repair"), parts=r.texts("parts"),
                      verify=r.texts("verify"), signature=_signature(r),
                      priors=MappingProxyType(_priors(r)), cautions=r.texts("cautions"),
-                     notes=r.text("notes"), when=_when(r), plain=r.text("plain"))
+                     notes=r.text("notes"), when=_when(r), plain=r.text("plain"),
+                     model=_model(r))
     return Escalate(**base, advice=r.text("advice", required=True))
 
 

@@ -15,7 +15,8 @@ from faultwise.core.errors import InputError, ProfileError
 _UNIT_OF_SUFFIX = (("_khz", "kHz"), ("_ohm", "ohm"), ("_uf", "uF"), ("_pf", "pF"),
                    ("_uh", "uH"), ("_hz", "Hz"), ("_ma", "mA"), ("_v", "V"), ("_a", "A"))
 TOP_KEYS = ("format", "label", "family", "mains", "battery", "band", "if_khz", "gang",
-            "tubes", "heater_winding_v", "supply", "audio", "transistors", "typical")
+            "tubes", "heater_winding_v", "supply", "audio", "transistors", "output_stage",
+            "typical")
 SECTION_KEYS = {
     "mains": ("volts_v", "freq_hz"), "battery": ("volts_v",), "band": ("low_khz", "high_khz"),
     "gang": ("min_pf", "max_pf", "stray_pf"),
@@ -23,7 +24,10 @@ SECTION_KEYS = {
                "second_cap_uf", "load_ma", "filter_load_ma", "secondary_v"),
     "audio": ("speaker_ohm", "output_turns_ratio"),
 }
-TUBE_KEYS = ("role", "type", "heater_v", "heater_a", "cathode_ohm", "cathode_ma")
+TUBE_KEYS = ("role", "type", "heater_v", "heater_a", "cathode_ohm", "cathode_ma", "plate_ohm",
+             "screen_ohm", "grid_ohm", "supply")
+TUBE_SUPPLY_POINTS = ("first", "second")
+"""Where a tube's plate load returns: the first or the second filter capacitor."""
 TRANSISTOR_KEYS = ("role", "material", "polarity", "beta", "bias")
 BIAS_KEYS = ("top_ohm", "bottom_ohm", "emitter_ohm", "collector_ohm")
 

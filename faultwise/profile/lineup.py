@@ -7,10 +7,12 @@ read and raises ProfileError located by file, line and key.
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 from faultwise.profile.model import (OUTPUT_ROLES, MATERIALS, POLARITIES, TRANSISTOR_ROLES,
                                      TUBE_ROLES, Bias, Transistor, Tube)
-from faultwise.profile.fields import (TRANSISTOR_KEYS, TUBE_KEYS, BIAS_KEYS, ProfileReader,
+from faultwise.profile.fields import (TRANSISTOR_KEYS, TUBE_KEYS, TUBE_SUPPLY_POINTS, BIAS_KEYS,
+                                      ProfileReader,
                                       item_line, nearest)
 from faultwise.profile.typical import (TYPICAL_BETA, TYPICAL_MATERIAL, TYPICAL_OUTPUT,
                                        TYPICAL_POLARITY, typical_bias)
@@ -54,8 +56,12 @@ def read_tubes(r: ProfileReader, data: dict, family: str, table) -> list[Tube]:
             role=role, type=known.name if known else normalise_name(typed),
             heater_v=heater_v if heater_v is not None else known.heater_v,
             heater_a=heater_a if heater_a is not None else known.heater_a,
-            cathode_ohm=r.number(item, "cathode_ohm", path),
-            cathode_ma=r.number(item, "cathode_ma", path)))
+            cathode_ohm=r.number(item, "cathode_ohm", path, strict=role in OUTPUT_ROLES),
+            cathode_ma=r.number(item, "cathode_ma", path),
+            plate_ohm=r.number(item, "plate_ohm", path, strict=False),
+            screen_ohm=r.number(item, "screen_ohm", path, strict=False),
+            grid_ohm=r.number(item, "grid_ohm", path),
+            supply=r.choice(item, "supply", path, TUBE_SUPPLY_POINTS)))
     if "output" not in roles:
         raise r.error("no tube has the role 'output'", "tubes", r.line(data, "tubes"),
                       "mark the audio output tube with role: output")
@@ -82,9 +88,9 @@ def fill_output_tubes(r: ProfileReader, tubes: list[Tube], family: str, table) -
             rk, ik, _ = TYPICAL_OUTPUT[family]
             if op is not None:
                 rk, ik = op.cathode_ohm, op.cathode_ma
-            tube = Tube(tube.role, tube.type, tube.heater_v, tube.heater_a,
-                        cathode_ohm=r.fill(tube.cathode_ohm, rk, f"tubes.{tube.role}.cathode_ohm"),
-                        cathode_ma=r.fill(tube.cathode_ma, ik, f"tubes.{tube.role}.cathode_ma"))
+            tube = replace(tube,
+                           cathode_ohm=r.fill(tube.cathode_ohm, rk, f"tubes.{tube.role}.cathode_ohm"),
+                           cathode_ma=r.fill(tube.cathode_ma, ik, f"tubes.{tube.role}.cathode_ma"))
         out.append(tube)
     return out
 

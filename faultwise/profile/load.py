@@ -14,11 +14,21 @@ from faultwise.core.errors import FaultwiseError, ProfileError
 from faultwise.profile.fields import SECTION_KEYS, TOP_KEYS, ProfileReader
 from faultwise.profile.lineup import (check_series_string, fill_output_tubes, heater_winding,
                                       read_transistors, read_tubes)
-from faultwise.profile.model import FAMILIES, FORMAT, LINE_FAMILIES, Profile
+from faultwise.profile.model import (FAMILIES, FORMAT, LINE_FAMILIES, OUTPUT_ROLES, OUTPUT_STAGES,
+                                     Profile)
 from faultwise.profile.sections import read_audio, read_common, read_supply, read_typical_list
 from faultwise.profile.typical import TYPICAL_BATTERY_V, TYPICAL_MAINS_HZ, TYPICAL_MAINS_V
 
-__all__ = ["profile_from_dict", "load_profile"]
+__all__ = ["profile_from_dict", "load_profile", "typical_output_stage"]
+
+
+def typical_output_stage(transistors) -> str:
+    """Two output transistors of opposite polarity: complementary; of the same polarity:
+    push-pull with a driver transformer; one: single-ended (trade practice)."""
+    outs = [t for t in transistors if t.role in OUTPUT_ROLES]
+    if len(outs) < 2:
+        return "single-ended"
+    return "complementary" if outs[0].polarity != outs[1].polarity else "push-pull-transformer"
 
 
 # --- entry points ------------------------------------------------------------------------
@@ -40,7 +50,7 @@ def profile_from_dict(data, source: str = "<profile>", knowledge_dir=None) -> Pr
     fields = read_common(r, data, family)
     tube_family = family in LINE_FAMILIES
     if tube_family:
-        for key in ("battery", "transistors"):
+        for key in ("battery", "transistors", "output_stage"):
             r.forbid(data, key, "", f"a {family} set is line-powered with tubes",
                      "remove it, or make the family transistor")
         if family == "series-string":
@@ -75,9 +85,11 @@ def profile_from_dict(data, source: str = "<profile>", knowledge_dir=None) -> Pr
                            "battery.volts_v")
         transistors = read_transistors(r, data, battery_v)
         audio = read_audio(r, data, family, [], None)
+        output_stage = r.fill(r.choice(data, "output_stage", "", OUTPUT_STAGES),
+                              typical_output_stage(transistors), "output_stage")
         profile = Profile(label=label, family=family, battery_v=battery_v,
                           transistors=tuple(transistors), audio=audio, source=str(source),
-                          **fields)
+                          output_stage=output_stage, **fields)
     declared = read_typical_list(r, data, profile)
     return _replace(profile, typical=frozenset(r.typical | declared))
 

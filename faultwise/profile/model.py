@@ -26,7 +26,7 @@ from faultwise.profile.typical import (  # re-exported: the typical tables
 
 __all__ = [
     "FAMILIES", "LINE_FAMILIES", "TUBE_ROLES", "RECTIFIERS", "CIRCUITS", "FORMAT",
-    "TRANSISTOR_ROLES", "MATERIALS", "POLARITIES", "OUTPUT_ROLES",
+    "TRANSISTOR_ROLES", "MATERIALS", "POLARITIES", "OUTPUT_ROLES", "OUTPUT_STAGES",
     "Tube", "Bias", "Transistor", "Supply", "Audio", "Profile", "profile_to_dict",
     # the typical tables, from faultwise.profile.typical
     "TYPICAL_MAINS_V", "TYPICAL_MAINS_HZ", "TYPICAL_BAND_KHZ", "TYPICAL_IF_KHZ",
@@ -51,6 +51,10 @@ class Tube:
     heater_a: float
     cathode_ohm: float | None = None
     cathode_ma: float | None = None
+    plate_ohm: float | None = None     # plate load: transformer primary DC or plate resistor
+    screen_ohm: float | None = None    # screen dropping resistor; 0 = fed directly
+    grid_ohm: float | None = None      # grid leak / oscillator grid resistor
+    supply: str | None = None          # first | second: the filter point the plate returns to
 
 
 @dataclass(frozen=True)
@@ -107,6 +111,7 @@ class Profile:
     supply: Supply = field(default_factory=Supply)
     audio: Audio = field(default_factory=Audio)
     transistors: tuple[Transistor, ...] = ()
+    output_stage: str | None = None    # transistor: push-pull-transformer | complementary | single-ended
     typical: frozenset[str] = frozenset()
     source: str | None = None          # the file it came from, for messages
 
@@ -141,6 +146,7 @@ TRANSISTOR_ROLES = ("rf", "converter", "mixer", "oscillator", "if", "if2", "if3"
 MATERIALS = ("germanium", "silicon")
 POLARITIES = ("pnp", "npn")
 OUTPUT_ROLES = ("output", "output2")
+OUTPUT_STAGES = ("push-pull-transformer", "complementary", "single-ended")
 
 
 # --- writer ----------------------------------------------------------------------------
@@ -159,7 +165,9 @@ def profile_to_dict(profile: Profile, with_typical: bool = True) -> dict:
     if p.line_powered:
         d["tubes"] = [_drop_none({"role": t.role, "type": t.type, "heater_v": t.heater_v,
                                   "heater_a": t.heater_a, "cathode_ohm": t.cathode_ohm,
-                                  "cathode_ma": t.cathode_ma}) for t in p.tubes]
+                                  "cathode_ma": t.cathode_ma, "plate_ohm": t.plate_ohm,
+                                  "screen_ohm": t.screen_ohm, "grid_ohm": t.grid_ohm,
+                                  "supply": t.supply}) for t in p.tubes]
         if p.heater_winding_v is not None:
             d["heater_winding_v"] = p.heater_winding_v
         s = p.supply
@@ -170,6 +178,8 @@ def profile_to_dict(profile: Profile, with_typical: bool = True) -> dict:
         d["transistors"] = [
             {"role": t.role, "material": t.material, "polarity": t.polarity, "beta": t.beta,
              "bias": {k: getattr(t.bias, k) for k in BIAS_KEYS}} for t in p.transistors]
+        if p.output_stage is not None:
+            d["output_stage"] = p.output_stage
     if with_typical:
         d["typical"] = sorted(p.typical)
     return d

@@ -23,7 +23,12 @@ ROLE_HINTS = ("rf", "converter", "mixer", "oscillator", "if", "detector", "audio
               "rectifier")
 
 _ENTRY_KEYS = {"type", "also", "heater_v", "heater_a", "series_ma", "dial_tap_v", "base",
-               "kind", "roles", "source", "note", "rectifier", "operation"}
+               "kind", "roles", "source", "note", "rectifier", "operation", "pins", "pins_source"}
+ELECTRODES = ("heater", "cathode", "cathode2", "grid", "screen", "suppressor", "plate", "plate2",
+              "osc_grid", "osc_plate", "signal_grid", "diode1", "diode2", "diode3")
+"""Electrode names of a pin map (``pins:``): a pin number, ``cap`` (top cap) or a list."""
+BASE_PINS = {"7-pin miniature": 7, "9-pin miniature": 9, "octal": 8, "loctal": 8, "4-pin": 4,
+             "6-pin": 6}
 _RECT_KEYS = {"circuit", "drop_v", "drop_at_ma", "max_dc_ma", "max_first_cap_uf",
               "min_surge_ohm", "source"}
 _OP_KEYS = {"plate_v", "screen_v", "grid_v", "plate_ma", "screen_ma", "load_ohm", "power_w",
@@ -75,6 +80,12 @@ class TubeType:
     note: str | None = None
     rectifier: RectifierData | None = None
     operation: Operation | None = None
+    pins: tuple[tuple[str, tuple], ...] = ()      # (electrode, (pin, ...)) in table order
+    pins_source: str | None = None
+
+    def pin(self, electrode: str) -> tuple:
+        """The pins of an electrode (numbers or 'cap'), () when the map has none."""
+        return dict(self.pins).get(electrode, ())
 
     @property
     def is_rectifier(self) -> bool:
@@ -195,6 +206,54 @@ def _operation(data, where: str, source: str) -> Operation:
     return Operation(source=_text(data, "source", where, source), **nums)
 
 
+def required_electrodes(kind: str, rectifier: RectifierData | None) -> tuple[str, ...]:
+    """The electrodes a complete pin map of this kind names (the handbooks' base diagrams)."""
+    need = ["heater", "cathode"]
+    if rectifier is not None:
+        return tuple(need + ["plate"] + (["plate2"] if rectifier.circuit != "half-wave" else []))
+    if "twin diode" in kind:
+        return tuple(need + ["cathode2", "diode1", "diode2"])
+    if "converter" in kind:
+        return tuple(need + ["plate", "screen", "osc_grid"]
+                     + (["signal_grid"] if "pentagrid" in kind else ["grid", "osc_plate"]
+                        if "triode" in kind else []))
+    need += ["grid", "plate"]
+    if "pentode" in kind or "beam" in kind:
+        need.append("screen")
+    if "duplex-diode" in kind or "triple-diode" in kind:
+        need += ["diode1", "diode2"]
+    if "triple-diode" in kind:
+        need.append("diode3")
+    return tuple(need)
+
+
+def missing_electrodes(tube: TubeType) -> list[str]:
+    """Electrodes a complete pin map of the type would name that its map lacks."""
+    have = dict(tube.pins)
+    return [e for e in required_electrodes(tube.kind, tube.rectifier) if e not in have]
+
+
+def _pins(data, base: str, where: str, source: str) -> tuple:
+    if not isinstance(data, dict):
+        raise _bad("pins must be a mapping of electrode to pin", source, None, where,
+                   "for example pins: {heater: [3, 4], cathode: 7, plate: 5}")
+    top = BASE_PINS[base]
+    out = []
+    for name, value in data.items():
+        if name not in ELECTRODES:
+            raise _bad(f"unknown electrode {name!r}", source, _line(data, name), f"{where}.{name}",
+                       "use " + ", ".join(ELECTRODES))
+        values = value if isinstance(value, list) else [value]
+        for v in values:
+            ok = v == "cap" or (isinstance(v, int) and not isinstance(v, bool) and 1 <= v <= top)
+            if not ok:
+                raise _bad(f"pin {v!r} of {name} is not a pin of a {base} base", source,
+                           _line(data, name), f"{where}.{name}",
+                           f"give a pin number 1-{top} or cap (top cap)")
+        out.append((name, tuple(values)))
+    return tuple(out)
+
+
 def _entry(entry, i: int, source: str) -> TubeType:
     where = f"tubes[{i}]"
     if not isinstance(entry, dict):
@@ -226,7 +285,10 @@ def _entry(entry, i: int, source: str) -> TubeType:
         dial_tap_v=_number(entry, "dial_tap_v", where, source, required=False),
         note=_text(entry, "note", where, source, required=False),
         rectifier=None if rect is None else _rectifier(rect, f"{where}.rectifier", source),
-        operation=None if op is None else _operation(op, f"{where}.operation", source))
+        operation=None if op is None else _operation(op, f"{where}.operation", source),
+        pins=() if entry.get("pins") is None else _pins(entry.get("pins"), base,
+                                                          f"{where}.pins", source),
+        pins_source=_text(entry, "pins_source", where, source, required=False))
 
 
 def parse_tube_table(data, source: str = "<tubes>") -> TubeTable:

@@ -197,3 +197,24 @@ async def test_help_page_opens_from_the_start_screen(make_app):
         assert "ctrl+z" in help_text() and "F5" in help_text()
         await pilot.press("escape")
         assert app.screen.id == "start"
+
+
+async def test_readings_sheet_shows_the_chart_of_the_stage_under_test(make_app, knowledge_dir):
+    """F6 on a check puts that stage's voltage chart (device, pin, electrode, nominal) above
+    the table; the rows are the domain's chart rows for the check's stage."""
+    from faultwise.expect.chart import chart_rows, stage_chart_lines
+
+    profile = load_profile(knowledge_dir / "sets" / "demo-5-tube-table.yaml")
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot)
+        await acknowledge_cautions(pilot)
+        stage = app.screen.walk.prompt().stage
+        await pilot.press("f6")
+        await pilot.pause()
+        assert app.screen.id == "readings"
+        lines = stage_chart_lines(chart_rows(profile, expect(profile)), stage)
+        assert lines, f"the demo set has chart rows for stage {stage}"
+        shown = str(app.screen.query_one("#readings-chart").render())
+        assert lines[0][:30] in shown
+        assert "pin " in shown

@@ -91,7 +91,9 @@ def test_conclusion_screen(snap_app, snap_compare):
 
 
 def test_readings_sheet(snap_app, snap_compare):
-    """Readings sheet of the demo 5-tube set: caption with the set's label; the table with
+    """Readings sheet of the demo 5-tube set: caption with the set's label; the voltage chart
+    of the stage under test (supply: each tube's heater pins, the rectifier's cathode) above
+    the table; the table with
     the SUPPLY heading row first and its readings (low, nominal, high, and the ≈ column in
     view at the right where typical);
     the first reading selected and its basis in the panel at the bottom."""

@@ -290,10 +290,18 @@ class CaseScreen(Screen):
     def action_readings(self) -> None:
         from faultwise.tui.screens.readings import ReadingsScreen
 
+        from faultwise.expect.chart import chart_rows, stage_chart_lines
+        from faultwise.core.errors import FaultwiseError
+
         prompt = self.walk.prompt()
         current = getattr(getattr(prompt, "expected", None), "name", None)
+        try:
+            rows = chart_rows(self.walk.profile, self.walk.expectations)
+        except FaultwiseError:          # no tube table: the sheet still opens, without a chart
+            rows = []
+        chart = stage_chart_lines(rows, getattr(prompt, "stage", None))
         self.app.push_screen(ReadingsScreen(self.walk.profile.label, self.walk.expectations,
-                                            selected=current))
+                                            selected=current, chart=tuple(chart)))
 
     def action_cautions(self) -> None:
         prompt = self.walk.prompt()

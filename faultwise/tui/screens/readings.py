@@ -37,9 +37,11 @@ class ReadingsScreen(Screen):
 
     BINDINGS = [Binding("escape,f6", "back", "Back", priority=True)]
 
-    def __init__(self, label: str, expectations: dict, *, selected: str | None = None) -> None:
+    def __init__(self, label: str, expectations: dict, *, selected: str | None = None,
+                 chart: tuple[str, ...] = ()) -> None:
         super().__init__(id="readings")
         self.label = label
+        self.chart = tuple(chart)      # voltage chart lines of the stage under test
         self.expectations = dict(expectations)
         self.first = selected          # the current check's reading, selected on opening
 
@@ -47,6 +49,10 @@ class ReadingsScreen(Screen):
         yield Header()
         yield Static(Content.from_markup("[b]Readings sheet[/b]  $label  [dim](≈ typical)[/dim]",
                                          label=printable(self.label)), id="readings-caption")
+        if self.chart:
+            yield Static(Content.from_markup("[b]Chart, this stage[/b] [dim](* typical)[/dim]\n$rows",
+                                             rows=printable("\n".join(self.chart))),
+                         id="readings-chart")
         yield DataTable(id="readings-table", cursor_type="row", zebra_stripes=True)
         yield Static("", id="readings-basis")
         yield Footer()

