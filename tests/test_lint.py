@@ -468,7 +468,7 @@ def test_lint_from_a_checkout_that_was_never_installed(tmp_path):
     out = subprocess.run([sys.executable, "-S", "-m", "faultwise", "lint"], cwd=checkout,
                          env=env, capture_output=True, text=True, timeout=120)
     assert out.returncode == 0, out.stderr
-    assert out.stdout.startswith("knowledge OK")
+    assert "knowledge OK" in out.stdout
     # Without the folder either: one sentence that says how to install.
     shutil.rmtree(checkout / "knowledge")
     out = subprocess.run([sys.executable, "-S", "-m", "faultwise", "lint"], cwd=checkout,
