@@ -69,26 +69,42 @@ def index_path(cases_dir: str | os.PathLike) -> Path:
 
 
 def _case_entries(cases_dir: Path) -> list[tuple[str, int, int, int]]:
-    """(name, size, mtime_ns, inode) of every ``*.json`` file, hidden and temp files aside."""
-    out = []
-    try:
-        it = os.scandir(cases_dir)
-    except FileNotFoundError:
-        return out
-    with it:
-        for entry in it:
-            name = entry.name
-            if not name.endswith(".json") or name.startswith("."):
-                continue
-            try:
-                if not entry.is_file():
+    """(name, size, mtime_ns, inode) of every ``*.json`` file, hidden and temp files aside.
+
+    Subfolders are read too (a shop that files old jobs by year keeps them in the review):
+    the name is then the path relative to the cases folder with '/' separators, which is
+    also the index's key. Hidden folders and links to folders are not entered.
+    """
+    out: list[tuple[str, int, int, int]] = []
+    pending = [(cases_dir, "")]
+    while pending:
+        folder, prefix = pending.pop()
+        try:
+            it = os.scandir(folder)
+        except (FileNotFoundError, NotADirectoryError, PermissionError):
+            continue
+        with it:
+            for entry in it:
+                name = entry.name
+                if name.startswith("."):
                     continue
-                st = entry.stat()
-            except OSError:
-                continue  # removed between listing and stat
-            out.append((name, st.st_size, st.st_mtime_ns, st.st_ino))
+                try:
+                    if entry.is_dir(follow_symlinks=False):
+                        pending.append((Path(entry.path), prefix + name + "/"))
+                        continue
+                    if not name.endswith(".json") or not entry.is_file():
+                        continue
+                    st = entry.stat()
+                except OSError:
+                    continue  # removed between listing and stat
+                out.append((prefix + name, st.st_size, st.st_mtime_ns, st.st_ino))
     out.sort()
     return out
+
+
+def case_entries(cases_dir: Path) -> list[tuple[str, int, int, int]]:
+    """The listing the review uses, for other readers of a cases folder (replay)."""
+    return _case_entries(Path(cases_dir))
 
 
 def read_one(path: str | Path, key: tuple[int, int, int]

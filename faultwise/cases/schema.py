@@ -77,7 +77,8 @@ REQUIRED = ("id", "events")
 EVENT = {"n": _NUMBER, "at": _TEXT, "type": _TEXT, "phase": _TEXT, "node": _TEXT,
          "expect": _TEXT, "band": _MAP, "raw": _TEXT, "value": _NUMBER, "outcome": _TEXT,
          "reason": _TEXT, "text": _TEXT, "caution": _TEXT, "finding": _TEXT,
-         "parts": _LIST_OF_TEXT, "fault": _TEXT, "minutes": _NUMBER, "meter": _MAP}
+         "parts": _LIST_OF_TEXT, "fault": _TEXT, "minutes": _NUMBER, "meter": _MAP,
+         "shown": _TEXT, "read_s": _NUMBER, "assumed": _FLAG}
 EVENT_NULLABLE = {"expect", "band", "raw", "value", "node", "minutes", "phase", "outcome",
                   "meter"}
 EVENT_REQUIRED = {"answer": ("node", "outcome"), "skip": ("node",), "parts": ("parts",),

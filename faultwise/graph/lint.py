@@ -215,11 +215,36 @@ class _Lint:
                             "use a name those sets have")
 
     def cautions(self) -> None:
+        """Every caution id is known; a node names only cautions that concern one of its
+        families (else it is never shown); where one concern is worded per family (the
+        cautions share a ``concern``), a node naming one names the wording of each of its
+        families."""
+        by_concern: dict[str, list] = {}
+        for caution in self.k.cautions.values():
+            if caution.concern:
+                by_concern.setdefault(caution.concern, []).append(caution)
         for node in self.k.nodes.values():
-            for cid in getattr(node, "cautions", ()):
-                if cid not in self.k.cautions:
+            named = tuple(getattr(node, "cautions", ()))
+            families = tuple(getattr(node, "families", ()) or ())
+            for cid in named:
+                caution = self.k.cautions.get(cid)
+                if caution is None:
                     self.at(node, f"unknown caution '{cid}'",
                             "add it to cautions.yaml or fix the id")
+                    continue
+                if families and not set(caution.families) & set(families):
+                    self.at(node, f"the caution '{cid}' concerns only "
+                            f"{', '.join(caution.families)} sets and this node applies to "
+                            f"{', '.join(families)} sets, so it is never shown",
+                            "name the caution worded for this node's families")
+                if not caution.concern:
+                    continue
+                for other in by_concern.get(caution.concern, ()):
+                    wanted = set(other.families) & set(families) - set(caution.families)
+                    if other.id not in named and wanted:
+                        self.at(node, f"the caution '{cid}' has a wording for "
+                                f"{', '.join(sorted(wanted))} sets, '{other.id}', that this "
+                                "node does not name", f"add '{other.id}' to its cautions")
 
     def symptoms(self, path: Path) -> None:
         k = self.k

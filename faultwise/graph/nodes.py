@@ -175,6 +175,7 @@ class Caution:
     text: str
     families: tuple[str, ...] = FAMILIES
     where: Located | None = None
+    concern: str = ""       # one risk worded per family: cautions sharing it are one set
 
 
 @dataclass(frozen=True)

@@ -207,9 +207,12 @@ def replay_files(knowledge, paths: Iterable[Path], *, knowledge_dir=None) -> Rep
 
 
 def case_files(folder: Path) -> list[Path]:
-    """Every case file of a cases folder, sorted (temp and hidden files left out)."""
+    """Every case file of a cases folder and its subfolders, sorted (temp and hidden files
+    and hidden folders left out; the same listing as the review's index)."""
+    from faultwise.cases.index import case_entries
+
     folder = Path(folder)
     if not folder.is_dir():
         return []
-    return sorted(p for p in folder.glob("*.json")
-                  if not p.name.startswith(".") and p.is_file())   # a FIFO would block the read
+    # case_entries keeps regular files only: a FIFO would block the read.
+    return [folder / name for name, *_ in case_entries(folder)]

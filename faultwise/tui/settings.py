@@ -26,10 +26,14 @@ class Settings:
     """Read once at start; ``acknowledge_safety`` writes through (best effort)."""
 
     def __init__(self, path: Path | None = None, *, safety_acknowledged: str | None = None,
-                 cursor_blink: bool = True) -> None:
+                 cursor_blink: bool = True, caution_guard_s: float | None = None) -> None:
+        from faultwise.tui.screens.caution import GUARD_S
+
         self.path = path
         self.safety_acknowledged = safety_acknowledged
         self.cursor_blink = cursor_blink          # off for deterministic screenshots
+        # Keys are ignored this long after a caution opens (tests of other flows shorten it).
+        self.caution_guard_s = GUARD_S if caution_guard_s is None else caution_guard_s
         self.write_error: str | None = None
 
     @classmethod

@@ -86,6 +86,7 @@ class Step:
     normal: bool = True
     minutes: float = 0.0
     meter: Mapping | None = None      # the meter sample when the reading came from a meter
+    assumed: bool = False             # no answer given: normal assumed (walk --assume-normal)
 
 
 @dataclass(frozen=True)
@@ -120,6 +121,7 @@ class WalkResult:
     checks: int
     minutes: float
     walk: Walk
+    missing: object | None = None     # errors.MissingAnswerError where an answer was missing
 
 
 # -------------------------------------------------------------------------- classifying
@@ -415,8 +417,10 @@ class Walk:
 
     # ---------------------------------------------------------------- actions
 
-    def answer(self, text: str) -> dict:
-        """Answer the current check with what the tech typed; InputError leaves nothing recorded."""
+    def answer(self, text: str, *, assumed: bool = False) -> dict:
+        """Answer the current check with what the tech typed; InputError leaves nothing recorded.
+
+        ``assumed`` marks an answer nobody gave (``walk --assume-normal``) in the event."""
         check, expected = self._asked_check()
         text = "" if text is None else str(text)
         if check.is_measurement and expected is not None:
@@ -427,18 +431,21 @@ class Walk:
             except InputError as exc:
                 raise InputError(exc.message, node=check.id, key=check.expect,
                                  hint=exc.hint or f"type a reading in {expected.unit}") from None
-            return self.answer_value(value, raw=text.strip())
+            return self.answer_value(value, raw=text.strip(), assumed=assumed)
         choices = tuple((o, o) for o in MEASURE_OUTCOMES) if check.is_measurement \
             else tuple(check.choices.items())
         choice = resolve_choice(text, choices, check.id)
-        return self._push(self._event("answer", node=check.id, raw=text.strip(), outcome=choice))
+        mark = {"assumed": True} if assumed else {}
+        return self._push(self._event("answer", node=check.id, raw=text.strip(), outcome=choice,
+                                      **mark))
 
     def answer_value(self, value: float, raw: str | None = None,
-                     meter: Mapping | None = None) -> dict:
+                     meter: Mapping | None = None, *, assumed: bool = False) -> dict:
         """Answer the current measurement with a number in its unit.
 
         ``meter`` is the sample a bench meter gave (:func:`faultwise.meter.fit.answer_from_meter`:
         value, unit as reported, mode, meter identity, time); it is kept in the event.
+        ``assumed`` marks an answer nobody gave (``walk --assume-normal``).
         """
         check, expected = self._asked_check()
         if not check.is_measurement or expected is None:
@@ -449,6 +456,8 @@ class Walk:
             raise InputError("the reading must be a finite number", node=check.id)
         raw = f"{value:g} {expected.unit}" if raw is None else raw
         extra = {"meter": dict(meter)} if meter else {}
+        if assumed:
+            extra["assumed"] = True
         return self._push(self._event("answer", node=check.id, expect=check.expect,
                                       band=band_of(expected), raw=raw, value=value,
                                       outcome=classify(value, expected), **extra))
@@ -485,10 +494,18 @@ class Walk:
             raise InputError("the note is empty", hint="type what you want to keep")
         return self._push(self._event("note", text=text))
 
-    def acknowledge(self, caution_id: str) -> dict:
+    def acknowledge(self, caution_id: str, *, shown: str | None = None,
+                    read_s: float | None = None) -> dict:
+        """Record a caution as read; ``shown`` is when it was put before the tech and
+        ``read_s`` how long it was open (the event's ``at`` is the acknowledgement time)."""
         if caution_id not in self.knowledge.cautions:
             raise InputError(f"unknown caution '{caution_id}'", key="caution")
-        return self._push(self._event("acknowledge", caution=caution_id))
+        extra: dict = {}
+        if shown is not None:
+            extra["shown"] = str(shown)
+        if read_s is not None:
+            extra["read_s"] = float(read_s)
+        return self._push(self._event("acknowledge", caution=caution_id, **extra))
 
     def off_graph(self, finding: str) -> dict:
         """Record a fault the graph does not know; diagnosis ends with no conclusion."""
@@ -672,7 +689,7 @@ class Walk:
                              outcome=outcome, reason=str(event.get("reason", "") or ""),
                              normal=normal, minutes=float(check.minutes),
                              meter=event.get("meter") if isinstance(event.get("meter"), dict)
-                             else None))
+                             else None, assumed=event.get("assumed") is True))
         if st.phase == "diagnose":
             st.memory[node_id] = outcome
             st.came_from = (node_id, outcome)
@@ -883,22 +900,48 @@ def walk_from_case(knowledge, data: Mapping, *, knowledge_dir=None, **kwargs) ->
 
 
 def auto_answer(walk: Walk, readings: Mapping | None = None,
-                observations: Mapping | None = None) -> dict:
-    """Answer the asked check the way ``walk --answers`` does; returns the event."""
+                observations: Mapping | None = None, *, missing: str = "normal") -> dict:
+    """Answer the asked check the way ``walk --answers`` does; returns the event.
+
+    A check the answers leave out: ``missing="normal"`` answers normal silently (sweep's
+    signatures list only what a fault changes), ``"mark"`` answers normal and marks the
+    event ``assumed``, ``"stop"`` raises :class:`MissingAnswerError` naming the check and
+    what it accepts.
+    """
+    from faultwise.core.errors import MissingAnswerError
     from faultwise.core.units import format_reading, parse_reading
 
     readings = readings or {}
     observations = observations or {}
     check, expected = walk._asked_check()
+    given = (check.expect in readings) if check.is_measurement else (check.id in observations)
+    if not given and missing == "stop":
+        if check.is_measurement:
+            unit = expected.unit if expected is not None else ""
+            accepts = ((f"a reading in {unit}",) if expected is not None else ()) + \
+                MEASURE_OUTCOMES
+            raise MissingAnswerError(
+                f"the answers file gives no reading for the check '{check.title}'",
+                node=check.id, key=check.expect, section="readings", accepts=accepts,
+                title=check.title,
+                hint=f"add '{check.expect}: <answer>' under 'readings:' (it accepts "
+                     f"{' or '.join(accepts)}), or run with --assume-normal")
+        raise MissingAnswerError(
+            f"the answers file gives no observation for the check '{check.title}'",
+            node=check.id, key=check.id, section="observations",
+            accepts=tuple(check.choices), title=check.title,
+            hint=f"add '{check.id}: <choice>' under 'observations:' (it accepts "
+                 f"{' or '.join(check.choices)}), or run with --assume-normal")
+    mark = not given and missing == "mark"
     if check.is_measurement:
         spec = readings.get(check.expect)
         if expected is None:
             word = spec if isinstance(spec, str) and spec in MEASURE_OUTCOMES else "normal"
-            return walk.answer(word)
+            return walk.answer(word, assumed=mark)
         if spec is None:
             value = representative_value(expected, "normal")
             return walk.answer_value(value, raw=f"{format_reading(value, expected.unit, 4)} "
-                                                "(nominal)")
+                                                "(nominal)", assumed=mark)
         if isinstance(spec, bool):
             raise InputError(f"the reading for '{check.expect}' must be a number",
                              key=check.expect)
@@ -917,15 +960,22 @@ def auto_answer(walk: Walk, readings: Mapping | None = None,
     if choice not in check.choices:
         raise InputError(f"'{choice}' is not a choice of '{check.id}'", key=check.id,
                          hint="use one of " + ", ".join(check.choices))
-    return walk.answer(choice)
+    return walk.answer(choice, assumed=mark)
 
 
 def auto_walk(knowledge, profile, symptom: str, readings: Mapping | None = None,
               observations: Mapping | None = None, *, expectations: Mapping | None = None,
               counts: Mapping[str, int] | None = None, through: bool = False,
               clock: Callable[[], datetime] | None = None,
-              order: Callable | None = None) -> WalkResult:
-    """Walk with readings by expectation name and observations by check id (missing: normal)."""
+              order: Callable | None = None, missing: str = "normal") -> WalkResult:
+    """Walk with readings by expectation name and observations by check id.
+
+    ``missing`` says what a check without an answer gets (see :func:`auto_answer`); with
+    ``"stop"`` the result's ``missing`` holds the MissingAnswerError and the walk stands
+    at that check."""
+    from faultwise.core.errors import MissingAnswerError
+
+    stopped = None
     walk = Walk(knowledge, profile, symptom, expectations=expectations, counts=counts,
                 clock=clock, order=order)
     limit = 4 * len(knowledge.nodes) + 10
@@ -940,7 +990,11 @@ def auto_walk(knowledge, profile, symptom: str, readings: Mapping | None = None,
             continue
         if prompt.phase != "diagnose" and not through:
             break
-        auto_answer(walk, readings, observations)
+        try:
+            auto_answer(walk, readings, observations, missing=missing)
+        except MissingAnswerError as exc:
+            stopped = exc
+            break
     prompt = walk.prompt()
     escalate = None
     if walk.phase == "diagnose" and prompt is not None and prompt.kind == "escalate":
@@ -948,4 +1002,4 @@ def auto_walk(knowledge, profile, symptom: str, readings: Mapping | None = None,
     diag = tuple(s for s in walk.steps if s.phase == "diagnose")
     return WalkResult(walk.conclusion, escalate, walk.steps,
                       sum(1 for s in diag if s.outcome != "skipped"),
-                      walk.diagnosis_minutes(), walk)
+                      walk.diagnosis_minutes(), walk, missing=stopped)

@@ -68,8 +68,14 @@ def rank_sets(query: str, sets: list[LibrarySet]) -> list[LibrarySet]:
         return sorted(sets, key=lambda s: s.label.casefold())
     from rapidfuzz import fuzz, process, utils
 
-    found = process.extract(query, [s.search_text for s in sets], scorer=fuzz.WRatio,
+    texts = [s.search_text for s in sets]
+    found = process.extract(query, texts, scorer=fuzz.WRatio,
                             processor=utils.default_process, limit=None, score_cutoff=40)
+    # WRatio ties often on short words ('6.3 V console' scored the 230 V set as high as the
+    # 6.3 V console): the whole words in common break the tie, then the file order.
+    tie = {index: fuzz.token_set_ratio(query, texts[index], processor=utils.default_process)
+           for _, _, index in found}
+    found = sorted(found, key=lambda hit: (-hit[1], -tie[hit[2]], hit[2]))
     return [sets[index] for _, _, index in found]
 
 

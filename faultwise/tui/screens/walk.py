@@ -125,6 +125,13 @@ class WalkScreen(MeterKeys, CaseScreen):
             self.set_focus(None)
         self.refresh_bindings()
 
+    def current_field(self):
+        panel = self.query_one(CheckPanel)
+        prompt = self.walk.prompt()
+        if prompt is None or prompt.kind != "check" or not panel.display:
+            return None
+        return panel.input
+
     # ------------------------------------------------------------------ answering
 
     @on(CheckPanel.Answered)
