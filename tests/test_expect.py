@@ -116,7 +116,7 @@ def test_names_are_exactly_within_expectation_names(family):
 
 @pytest.mark.parametrize("family", list(BUILDERS))
 def test_every_expectation_is_well_formed(family):
-    units = {"V", "mA", "A", "ohm", "kHz", "uH", "pF", "Vpp", "us", "m", "ratio", "W"}
+    units = {"V", "mA", "A", "ohm", "kHz", "uH", "pF", "uF", "Vpp", "us", "m", "ratio", "W"}
     for name, x in expect(BUILDERS[family]()).items():
         assert isinstance(x, Expected) and x.name == name
         assert x.stage in STAGES

@@ -405,3 +405,73 @@ def test_mutations_never_crash(scratch, mutation):
     assert isinstance(report, LintReport)
     for f in report.errors + report.warnings:
         assert f.file and f.message and f.text()
+
+
+def test_caution_for_none_of_the_nodes_families_is_never_shown(tmp_path):
+    """supply.heaters-glow applies to series-string sets only; a caution narrowed to
+    transformer sets would never be shown there."""
+    kb = broken(tmp_path, "cautions.yaml", "    families: [series-string]\n",
+                "    families: [transformer]\n")
+    [f] = only(lint(kb, names), "caution 'live-chassis' concerns only transformer")
+    assert f.node == "supply.heaters-glow" and "never shown" in f.message
+
+
+def test_a_concern_worded_per_family_must_be_named_for_each(tmp_path):
+    """Two wordings of one concern (series-string and transformer); a check that applies to
+    both families and names only the series-string one is an error naming the other."""
+    kb = broken(tmp_path, "cautions.yaml", "    families: [series-string]\n",
+                "    families: [series-string]\n    concern: chassis\n"
+                "  - id: transformer-chassis\n    title: B+ is lethal\n"
+                "    text: The chassis is normally not live.\n"
+                "    families: [transformer]\n    concern: chassis\n")
+    assert not lint(kb, names).errors
+    path = kb / "graph" / "supply.yaml"
+    path.write_text(path.read_text().replace("    cautions: [charged-caps]\n    minutes: 2\n",
+                                             "    cautions: [live-chassis, charged-caps]\n"
+                                             "    minutes: 2\n", 1))
+    [f] = only(lint(kb, names), "wording for transformer sets, 'transformer-chassis'")
+    assert f.node == "supply.b-plus"
+
+
+def test_shipped_cautions_fit_each_family():
+    """The bundled knowledge: no transformer set is told its chassis is tied to the line
+    (the series-string wording); every check that warns a series-string set of a live
+    chassis warns a transformer set with its own wording (B+ lethal, the line bypass
+    capacitor). Trade fact, common practice, no source: a transformer set's chassis is
+    isolated from the line unless a line-to-chassis capacitor or a winding fails."""
+    from faultwise.core.workspace import bundled_knowledge_dir
+
+    k = load_knowledge(bundled_knowledge_dir())
+    assert k.cautions["live-chassis"].families == ("series-string",)
+    own = k.cautions["transformer-chassis"]
+    assert own.families == ("transformer",) and "line bypass capacitor" in own.text
+    assert "lethal" in own.title
+    for node in k.nodes.values():
+        named = getattr(node, "cautions", ())
+        if "live-chassis" in named and "transformer" in node.families:
+            assert "transformer-chassis" in named, node.id
+
+
+def test_lint_from_a_checkout_that_was_never_installed(tmp_path):
+    """`python -m faultwise lint` at the root of a checkout without an install finds the
+    knowledge beside the package. Simulated with -S: no site processing, so no editable
+    install's finder; only the dependencies' folder is on the path."""
+    import yaml as _yaml
+
+    root = Path(__file__).resolve().parent.parent
+    site = str(Path(_yaml.__file__).resolve().parent.parent)
+    checkout = tmp_path / "checkout"
+    shutil.copytree(root / "faultwise", checkout / "faultwise", symlinks=True,
+                    ignore=shutil.ignore_patterns("__pycache__"))
+    shutil.copytree(root / "knowledge", checkout / "knowledge")
+    env = {**os.environ, "PYTHONPATH": site}
+    out = subprocess.run([sys.executable, "-S", "-m", "faultwise", "lint"], cwd=checkout,
+                         env=env, capture_output=True, text=True, timeout=120)
+    assert out.returncode == 0, out.stderr
+    assert "knowledge OK" in out.stdout
+    # Without the folder either: one sentence that says how to install.
+    shutil.rmtree(checkout / "knowledge")
+    out = subprocess.run([sys.executable, "-S", "-m", "faultwise", "lint"], cwd=checkout,
+                         env=env, capture_output=True, text=True, timeout=120)
+    assert out.returncode == 1 and "Traceback" not in out.stderr
+    assert "pip install ." in out.stderr and out.stderr.count("\n") == 1

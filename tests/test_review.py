@@ -349,3 +349,33 @@ def test_review_modules_do_not_import_textual():
             "print('textual' in sys.modules or 'rich' in sys.modules)")
     out = subprocess.run([PY, "-c", code], capture_output=True, text=True, timeout=60)
     assert out.stdout.strip() == "False", out.stderr
+
+
+def test_review_reads_subfolders_and_the_index_keeps_relative_paths(folder):
+    """A shop that files old jobs by year: cases in subfolders count in the review, a
+    damaged one there is named by its path under the cases folder, and the index beside
+    the cases keys them by that relative path (a second scan reads them from it)."""
+    import sqlite3
+
+    from faultwise.cases.index import INDEX_NAME, scan_cases
+
+    files = sorted(folder.glob("*.json"))
+    (folder / "2025").mkdir()
+    (folder / "2024" / "old").mkdir(parents=True)
+    for path in files[:3]:
+        path.rename(folder / "2025" / path.name)
+    (folder / "2024" / "old" / "cut.json").write_bytes(b'{"format": "faultwise-case/1", ')
+    proc = subprocess.run([PY, "-m", "faultwise", "review", "--cases", str(folder),
+                           "--knowledge", str(KB), "--json"], capture_output=True, text=True,
+                          timeout=120)
+    assert proc.returncode == 0, proc.stderr
+    doc = json.loads(proc.stdout)
+    assert doc["cases"] == 7
+    assert {d["file"]: d["reason"] for d in doc["damaged"]} == {"2024/old/cut.json": "truncated"}
+    with sqlite3.connect(folder / INDEX_NAME) as con:
+        tables = [r[0] for r in con.execute("select name from sqlite_master where type='table'")]
+        keys = {r[0] for t in tables for r in con.execute(f"select * from {t}")
+                if isinstance(r[0], str) and r[0].endswith(".json")}
+    assert {f"2025/{p.name}" for p in files[:3]} <= keys
+    again = scan_cases(folder)
+    assert again.parsed == 0 and again.from_index == len(files) + 1

@@ -23,7 +23,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Callable
 
-from faultwise.cases.store import read_case_bytes
+from faultwise.cases.store import DamagedFile, read_case_bytes
 from faultwise.cases.summary import SUMMARY_VERSION, summarise
 from faultwise.core.errors import DamagedCaseError
 
@@ -34,12 +34,7 @@ PROGRESS_EVERY = 250
 Progress = Callable[[int, int], None]
 
 
-@dataclass(frozen=True)
-class Damaged:
-    """A case file that could not be read; it is left exactly as it is."""
-
-    file: str
-    reason: str
+Damaged = DamagedFile      # older name of the one damaged-file record
 
 
 @dataclass(frozen=True)
@@ -47,11 +42,25 @@ class Scan:
     """Every readable case's summary (file-name order), the damaged files, and the counts."""
 
     summaries: tuple[dict, ...]
-    damaged: tuple[Damaged, ...]
+    damaged: tuple[DamagedFile, ...]
     parsed: int                   # files read and parsed in this run
     from_index: int               # files answered from the index
     index_note: str = ""          # why the index was rebuilt or not written, if it was
     rebuilt: bool = False
+
+
+def folder_generation(cases_dir: str | os.PathLike) -> str:
+    """``sha256:<hex>`` over every case file's (name, size, mtime ns, inode) and the schema.
+
+    Changes whenever a case file is added, removed, rewritten or replaced: the stat the
+    index keys its rows by, so what the index would re-read also changes the generation.
+    """
+    import hashlib
+
+    digest = hashlib.sha256(SCHEMA.encode("utf-8") + b"\0")
+    for name, size, mtime_ns, ino in _case_entries(Path(cases_dir)):
+        digest.update(f"{name}\0{size}\0{mtime_ns}\0{ino}\n".encode("utf-8"))
+    return "sha256:" + digest.hexdigest()
 
 
 def index_path(cases_dir: str | os.PathLike) -> Path:
@@ -60,26 +69,42 @@ def index_path(cases_dir: str | os.PathLike) -> Path:
 
 
 def _case_entries(cases_dir: Path) -> list[tuple[str, int, int, int]]:
-    """(name, size, mtime_ns, inode) of every ``*.json`` file, hidden and temp files aside."""
-    out = []
-    try:
-        it = os.scandir(cases_dir)
-    except FileNotFoundError:
-        return out
-    with it:
-        for entry in it:
-            name = entry.name
-            if not name.endswith(".json") or name.startswith("."):
-                continue
-            try:
-                if not entry.is_file():
+    """(name, size, mtime_ns, inode) of every ``*.json`` file, hidden and temp files aside.
+
+    Subfolders are read too (a shop that files old jobs by year keeps them in the review):
+    the name is then the path relative to the cases folder with '/' separators, which is
+    also the index's key. Hidden folders and links to folders are not entered.
+    """
+    out: list[tuple[str, int, int, int]] = []
+    pending = [(cases_dir, "")]
+    while pending:
+        folder, prefix = pending.pop()
+        try:
+            it = os.scandir(folder)
+        except (FileNotFoundError, NotADirectoryError, PermissionError):
+            continue
+        with it:
+            for entry in it:
+                name = entry.name
+                if name.startswith("."):
                     continue
-                st = entry.stat()
-            except OSError:
-                continue  # removed between listing and stat
-            out.append((name, st.st_size, st.st_mtime_ns, st.st_ino))
+                try:
+                    if entry.is_dir(follow_symlinks=False):
+                        pending.append((Path(entry.path), prefix + name + "/"))
+                        continue
+                    if not name.endswith(".json") or not entry.is_file():
+                        continue
+                    st = entry.stat()
+                except OSError:
+                    continue  # removed between listing and stat
+                out.append((prefix + name, st.st_size, st.st_mtime_ns, st.st_ino))
     out.sort()
     return out
+
+
+def case_entries(cases_dir: Path) -> list[tuple[str, int, int, int]]:
+    """The listing the review uses, for other readers of a cases folder (replay)."""
+    return _case_entries(Path(cases_dir))
 
 
 def read_one(path: str | Path, key: tuple[int, int, int]
@@ -249,7 +274,7 @@ def _scan(cases_dir: Path, use_index: bool, progress: Progress | None) -> Scan:
         store = _Store(index_path(cases_dir))
         rows = store.open()
     summaries: list[dict] = []
-    damaged: list[Damaged] = []
+    damaged: list[DamagedFile] = []
     upserts: list[tuple] = []
     parsed = hits = 0
     total = len(entries)
@@ -274,7 +299,7 @@ def _scan(cases_dir: Path, use_index: bool, progress: Progress | None) -> Scan:
         if summary is not None:
             summaries.append(summary)
         else:
-            damaged.append(Damaged(name, reason))
+            damaged.append(DamagedFile(name, reason))
         if progress is not None and i % PROGRESS_EVERY == 0:
             progress(i, total)
     note = ""

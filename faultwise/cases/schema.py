@@ -1,9 +1,60 @@
-"""The shape of a case file, checked when it is read (DEVELOPERS.md, "Case file").
+"""The shape of a case file, checked when it is read; the case file format is below.
 
 A case file may have been edited by hand, merged by git or written by another shop tool.
 Everything that reads a case (the walk on resume, replay, review, the job report) relies
 on the types below, so a file that breaks them is damaged, reported with the first bad key,
 and never written. Keys not listed here are kept and ignored (a later format may add them).
+
+Case file format
+----------------
+
+One JSON file per case, `<cases>/<id>.json`, UTF-8, indent 2, keys in the order below.
+Written atomically (temp file in the same folder, flush, fsync, rename, fsync the folder)
+after every event. Id: `YYYYMMDD-<bench>-<nnn>` (letters, digits and `-` only).
+
+```json
+{
+  "format": "faultwise-case/1",
+  "id": "20261201-B1-001",
+  "bench": "B1",
+  "status": "open",                      // open | closed
+  "opened": "2026-12-01T09:30:00+00:00",
+  "updated": "...",
+  "closed": null,
+  "customer": "ticket 4411",
+  "set": {"source": "demo-5-tube-table.yaml", "profile": { ...profile as dict... }},
+  "complaint": "hums loudly, no stations",
+  "symptom": "hum-loud",
+  "family": "series-string",
+  "knowledge": "sha256:0123abcd...",
+  "apprentice": false,
+  "acknowledged": ["live-chassis"],      // cautions acknowledged in this case
+  "events": [
+    {"n": 1, "at": "...", "type": "answer", "phase": "diagnose", "node": "supply.rectifier-out",
+     "expect": "supply.rectifier_out_v",
+     "band": {"nominal": 146.1, "low": 131.0, "high": 160.0, "unit": "V", "basis": "...", "typical": false},
+     "raw": "58 V", "value": 58.0, "outcome": "low"},
+    {"n": 2, "at": "...", "type": "answer", "phase": "diagnose", "node": "audio.hum-kind",
+     "raw": "ripple-hum", "outcome": "ripple-hum"},
+    {"n": 3, "at": "...", "type": "skip", "node": "...", "reason": "no ESR meter"},
+    {"n": 4, "at": "...", "type": "note", "text": "..."},
+    {"n": 5, "at": "...", "type": "off-graph", "finding": "..."},
+    {"n": 6, "at": "...", "type": "parts", "parts": ["50 uF 160 V electrolytic"]},
+    {"n": 7, "at": "...", "type": "answer", "phase": "verify", "node": "...", ...},
+    {"n": 8, "at": "...", "type": "answer", "phase": "closing", "node": "supply.leakage-check", ...},
+    {"n": 9, "at": "...", "type": "close", "outcome": "repaired", "minutes": 55}
+  ],
+  "conclusion": {"fault": "supply.open-first-cap", "title": "...", "stage": "supply"},
+  "off_graph": null,
+  "parts": ["50 uF 160 V electrolytic"],
+  "outcome": "repaired",                 // repaired | returned-unrepaired | waiting-parts | null
+  "minutes": 55,
+  "reopened_from": null
+}
+```
+
+`conclusion`, `off_graph`, `parts`, `outcome` and `minutes` are derived from the events and
+written for readers (review, report, other shop tools); the events are the record.
 """
 
 from __future__ import annotations
@@ -11,8 +62,8 @@ from __future__ import annotations
 import math
 from typing import Any, Mapping
 
-EVENT_TYPES = ("answer", "skip", "parts", "off-graph", "resume", "to-closing", "note",
-               "acknowledge", "close", "reopen")
+from faultwise.core.vocabulary import EVENT_TYPES
+
 _TEXT, _NUMBER, _FLAG, _LIST_OF_TEXT, _MAP = "text", "number", "flag", "list of text", "mapping"
 
 TOP = {"id": _TEXT, "bench": _TEXT, "status": _TEXT, "opened": _TEXT, "updated": _TEXT,
@@ -26,7 +77,8 @@ REQUIRED = ("id", "events")
 EVENT = {"n": _NUMBER, "at": _TEXT, "type": _TEXT, "phase": _TEXT, "node": _TEXT,
          "expect": _TEXT, "band": _MAP, "raw": _TEXT, "value": _NUMBER, "outcome": _TEXT,
          "reason": _TEXT, "text": _TEXT, "caution": _TEXT, "finding": _TEXT,
-         "parts": _LIST_OF_TEXT, "fault": _TEXT, "minutes": _NUMBER, "meter": _MAP}
+         "parts": _LIST_OF_TEXT, "fault": _TEXT, "minutes": _NUMBER, "meter": _MAP,
+         "shown": _TEXT, "read_s": _NUMBER, "assumed": _FLAG}
 EVENT_NULLABLE = {"expect", "band", "raw", "value", "node", "minutes", "phase", "outcome",
                   "meter"}
 EVENT_REQUIRED = {"answer": ("node", "outcome"), "skip": ("node",), "parts": ("parts",),

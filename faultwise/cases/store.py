@@ -1,6 +1,6 @@
 """The case store: one JSON file per job, written atomically after every event.
 
-DESIGN section 8 and DEVELOPERS.md "Case file" / "Walk and case store API". A case file is
+DESIGN section 8; the format is in :mod:`faultwise.cases.schema`. A case file is
 replaced whole through a temp file in the same folder (write, flush, fsync, rename, fsync the
 folder), so a crash leaves either the old or the new file, never half of one. A lock keeps
 two benches off one open case: filelock's SoftFileLock on ``<id>.lock`` (exclusive
@@ -14,7 +14,6 @@ from __future__ import annotations
 import json
 import os
 import re
-import secrets
 import socket
 import time
 from collections.abc import Callable, Mapping
@@ -22,6 +21,7 @@ from dataclasses import dataclass
 from datetime import UTC, datetime
 from pathlib import Path
 
+from faultwise.core.atomic import TEMP_SUFFIX, atomic_write, fsync_dir, write_temp
 from faultwise.core.errors import CaseError, CaseLockedError, DamagedCaseError
 from faultwise.core.workspace import check_bench
 
@@ -32,7 +32,6 @@ CASE_KEYS = ("format", "id", "bench", "status", "opened", "updated", "closed", "
              "acknowledged", "events", "conclusion", "off_graph", "parts", "outcome",
              "minutes", "reopened_from")
 EVENT_KEYS = ("n", "at", "type", "phase", "node", "expect", "band", "raw", "value", "outcome")
-TEMP_SUFFIX = ".fwtmp"
 # \Z, not "$" (which lets a final newline through); lengths keep names under NAME_MAX.
 _ID_RE = re.compile(r"^[A-Za-z0-9_-]{1,120}\Z")
 _TEMP_RE = re.compile(r"^\.(?P<id>[A-Za-z0-9_-]+)\.(?P<host>[A-Za-z0-9_-]*)\.(?P<pid>\d+)\."
@@ -90,8 +89,14 @@ class CaseSummary:
 
 @dataclass(frozen=True)
 class DamagedFile:
-    path: Path
+    """A case file that could not be read (listing, index, review); left exactly as it is."""
+
+    file: str                 # the path as found, or the name inside the cases folder
     reason: str
+
+    @property
+    def path(self) -> Path:
+        return Path(self.file)
 
 
 @dataclass(frozen=True)
@@ -196,35 +201,9 @@ def _pid_alive(pid: int) -> bool:
     return True
 
 
-def _fsync_dir(folder: Path) -> None:
-    try:
-        fd = os.open(folder, os.O_RDONLY)
-    except OSError:
-        return
-    try:
-        os.fsync(fd)
-    except OSError:
-        pass          # some filesystems do not sync folders
-    finally:
-        os.close(fd)
-
-
 def _write_temp(folder: Path, case_id: str, payload: bytes) -> Path:
-    name = f".{case_id}.{_safe_host()}.{os.getpid()}.{secrets.token_hex(6)}{TEMP_SUFFIX}"
-    tmp = folder / name
-    fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o644)
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(payload)
-            fh.flush()
-            os.fsync(fh.fileno())
-    except BaseException:
-        try:
-            tmp.unlink()
-        except OSError:
-            pass
-        raise
-    return tmp
+    """``.<id>.<host>.<pid>.<hex>.fwtmp``: the host and pid let a stale temp be traced."""
+    return write_temp(folder, f"{case_id}.{_safe_host()}.{os.getpid()}", payload)
 
 
 def _now_text(clock: Callable[[], datetime]) -> str:
@@ -275,24 +254,14 @@ class OpenCase:
         """Atomic write of the whole case; CaseError on failure with the data kept for a retry."""
         self._require_open()
         payload = dump_case(self.data)
-        folder = self.path.parent
-        tmp = None
         try:
-            tmp = _write_temp(folder, self.id, payload)
-            os.replace(tmp, self.path)
-            tmp = None
-            _fsync_dir(folder)
+            atomic_write(self.path, payload,
+                         temp_prefix=f"{self.id}.{_safe_host()}.{os.getpid()}")
         except OSError as exc:
             raise CaseError(f"the case {self.id} could not be saved ({exc.strerror or exc})",
                             file=str(self.path),
                             hint="check that the cases folder exists, is writable and has "
                                  "space, then save again; nothing is lost yet") from None
-        finally:
-            if tmp is not None:
-                try:
-                    tmp.unlink()
-                except OSError:
-                    pass
 
     def update(self, **fields) -> None:
         """Set top-level fields and save."""
@@ -471,10 +440,10 @@ class CaseStore:
             try:
                 data = read_case_bytes(path.read_bytes(), path)
             except DamagedCaseError as exc:
-                damaged.append(DamagedFile(path, exc.reason))
+                damaged.append(DamagedFile(str(path), exc.reason))
                 continue
             except OSError as exc:
-                damaged.append(DamagedFile(path, f"unreadable ({exc.strerror or exc})"))
+                damaged.append(DamagedFile(str(path), f"unreadable ({exc.strerror or exc})"))
                 continue
             summary = self._summary(path, data)
             (closed if summary.status == "closed" else opened).append(summary)
@@ -598,7 +567,7 @@ class CaseStore:
                         pass
                     raise
                 tmp = None
-            _fsync_dir(self.folder)
+            fsync_dir(self.folder)
             return True
         except OSError as exc:
             raise CaseError(f"the new case could not be written ({exc.strerror or exc})",

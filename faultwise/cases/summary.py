@@ -1,8 +1,8 @@
 """The part of a case file the shop review needs, as plain JSON-ready data.
 
 The review reads thousands of cases; the index (:mod:`faultwise.cases.index`) stores the compact
-summary built here, so an unchanged case is never parsed twice. Case format: DEVELOPERS.md,
-"Case file"; reading and damage detection: :func:`faultwise.cases.store.read_case_bytes`.
+summary built here, so an unchanged case is never parsed twice. Case format:
+:mod:`faultwise.cases.schema`; reading and damage detection: :func:`faultwise.cases.store.read_case_bytes`.
 """
 
 from __future__ import annotations

@@ -31,6 +31,7 @@ def register(subparsers) -> None:
 def run(args: argparse.Namespace) -> int:
     from faultwise.expect.expected import expect
     from faultwise.profile.load import load_profile
+    from faultwise.profile.tubes import workspace_tube_dir, workspace_tube_table
     from faultwise.profile.model import profile_to_dict
 
     knowledge = None
@@ -38,12 +39,8 @@ def run(args: argparse.Namespace) -> int:
         from faultwise.core.workspace import resolve_workspace
 
         knowledge = resolve_workspace(args.knowledge).knowledge_dir
-    profile = load_profile(args.profile, knowledge_dir=knowledge)
-    table = None
-    if knowledge is not None:
-        from faultwise.profile.tubes import load_tube_table
-
-        table = load_tube_table(knowledge)
+    profile = load_profile(args.profile, knowledge_dir=workspace_tube_dir(knowledge))
+    table = workspace_tube_table(knowledge)
     expectations = expect(profile, tube_table=table)
     if args.html and not args.chart:
         from faultwise.core.errors import InputError

@@ -15,19 +15,30 @@ def register(subparsers) -> None:
                               "graph and priors, and list every case whose path or conclusion "
                               "would change. Case files are only read.")
     p.add_argument("cases_given", nargs="*", metavar="CASES",
-                   help="case ids or case files (default: every case in the cases folder)")
+                   help="case ids, case files or folders (every case in them, subfolders "
+                        "too); default: every case in the cases folder")
     add_workspace_options(p)
     p.add_argument("--json", action="store_true", help="print one JSON document")
     p.set_defaults(func=run)
 
 
 def _targets(given: list[str], folder: Path) -> list[Path]:
+    """Case files for what was given: a folder gives every case in it (subfolders too), a
+    file itself, anything else is a case id in the cases folder."""
     from faultwise.cases.store import case_path
     from faultwise.core.errors import CaseError
+    from faultwise.shop.replay import case_files
 
     out = []
     for item in given:
         path = Path(item)
+        if path.is_dir():
+            found = case_files(path)
+            if not found:
+                raise CaseError("the folder holds no case files", file=item,
+                                hint="give a cases folder, a case file or a case id")
+            out.extend(p for p in found if p not in out)
+            continue
         if item.endswith(".json") or path.is_file():
             if not path.is_file():
                 raise CaseError("there is no such case file", file=item,
@@ -53,7 +64,7 @@ def run(args: argparse.Namespace) -> int:
         paths = _targets(args.cases_given, ws.cases_dir)
     else:
         paths = case_files(ws.cases_dir)
-    report = replay_files(knowledge, paths)
+    report = replay_files(knowledge, paths, knowledge_dir=ws.knowledge_dir)
     if args.json:
         print(json.dumps(report.to_json(), indent=2, ensure_ascii=False))
         return 0

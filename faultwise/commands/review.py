@@ -88,10 +88,7 @@ def run(args: argparse.Namespace) -> int:
     from pathlib import Path
 
     from faultwise.core.errors import FaultwiseError
-    from faultwise.graph.knowledge import load_knowledge
-    from faultwise.cases.index import scan_cases
-    from faultwise.shop.review import (REOPEN_DAYS, parse_since, review_scan, review_to_dict,
-                                       selected_cases)
+    from faultwise.shop.review import REOPEN_DAYS, parse_since, review_to_dict
     from faultwise.core.workspace import workspace_from_args
 
     if args.dry_run and not args.learn:
@@ -102,13 +99,36 @@ def run(args: argparse.Namespace) -> int:
     if not ws.cases_dir.is_dir():
         raise FaultwiseError("the cases folder does not exist", file=str(ws.cases_dir),
                              hint="pass --cases with the shop's cases folder")
-    knowledge = load_knowledge(ws.knowledge_dir)
     days = REOPEN_DAYS if args.reopen_days is None else args.reopen_days
-    scan = scan_cases(ws.cases_dir, use_index=not args.no_index)
-    review = review_scan(scan, knowledge, since=since, reopen_days=days)
+    review = None
+    cacheable = not args.no_index and not args.learn
+    if cacheable:       # nothing changed since the last review: no graph loaded, no shares
+        from faultwise.shop.review_cache import cache_key, read_cached, review_from_dict
+
+        key = cache_key(ws.cases_dir, ws.knowledge_dir, since=since, reopen_days=days)
+        doc = read_cached(ws.cases_dir, key)
+        if doc is not None:
+            from dataclasses import replace
+
+            cached = review_from_dict(doc)
+            review = replace(cached, parsed=0, from_index=cached.parsed + cached.from_index,
+                             index_note="nothing changed since the last review (review cache)")
+    if review is None:
+        from faultwise.cases.index import scan_cases
+        from faultwise.graph.knowledge import load_knowledge
+        from faultwise.shop.review import review_scan
+
+        knowledge = load_knowledge(ws.knowledge_dir)
+        scan = scan_cases(ws.cases_dir, use_index=not args.no_index)
+        review = review_scan(scan, knowledge, since=since, reopen_days=days)
+        if cacheable:
+            from faultwise.shop.review_cache import write_cached
+
+            write_cached(ws.cases_dir, key, review_to_dict(review))
     learned = None
     if args.learn:
         from faultwise.shop.learn import LEARNED_NAME, learn_changes, learn_counts, write_learned
+        from faultwise.shop.review import selected_cases
 
         learning = learn_counts(selected_cases(scan.summaries, since), knowledge)
         changes = learn_changes(knowledge, learning)

@@ -119,10 +119,6 @@ def run_inject_command(args, ws, knowledge, sets) -> int:
 
 
 def _tube_table(ws):
-    from pathlib import Path
+    from faultwise.profile.tubes import workspace_tube_table
 
-    from faultwise.profile.tubes import load_tube_table
-
-    if (Path(ws.knowledge_dir) / "tubes.yaml").is_file():
-        return load_tube_table(ws.knowledge_dir)
-    return None
+    return workspace_tube_table(ws.knowledge_dir)

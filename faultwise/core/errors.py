@@ -84,3 +84,18 @@ class DamagedCaseError(CaseError):
 
 class WalkError(FaultwiseError):
     """An action that does not apply to the walk's current state."""
+
+
+class MissingAnswerError(InputError):
+    """A screenless walk reached a check its answers file does not answer.
+
+    ``section`` is where the answer belongs (``readings`` or ``observations``), ``key`` the
+    name to write there, ``accepts`` the answers the check takes, ``title`` its title.
+    """
+
+    def __init__(self, message: str, *, section: str, accepts: tuple[str, ...],
+                 title: str = "", **kw) -> None:
+        super().__init__(message, **kw)
+        self.section = section
+        self.accepts = tuple(accepts)
+        self.title = title

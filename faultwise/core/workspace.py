@@ -38,10 +38,23 @@ _BENCH_RE = re.compile(r"^[A-Za-z0-9_-]{1,40}\Z")
 
 
 def bundled_knowledge_dir() -> Path:
-    """The knowledge folder shipped inside the installed package."""
+    """The knowledge folder shipped inside the installed package; from a checkout that was
+    never installed (``python -m faultwise`` at the repository root) the ``knowledge/``
+    folder beside the package. Neither: a KnowledgeError saying how to install."""
     from importlib.resources import files
 
-    return Path(str(files("faultwise.knowledge")))
+    try:
+        return Path(str(files("faultwise.knowledge")))
+    except ModuleNotFoundError:
+        pass
+    checkout = Path(__file__).resolve().parent.parent.parent / "knowledge"
+    if (checkout / "symptoms.yaml").is_file():
+        return checkout
+    from faultwise.core.errors import KnowledgeError
+
+    raise KnowledgeError("the bundled knowledge was not found",
+                         hint="install the package with 'pip install .' from the repository "
+                              "root, or give --knowledge DIR")
 
 
 def check_bench(bench) -> str:

@@ -64,7 +64,7 @@ def _tube_rows(profile, expectations: dict, tube_table) -> list[ChartRow]:
     rows: list[ChartRow] = []
     for tube in profile.tubes:
         data = lookup(tube.type, table)
-        pin = (lambda el: _pins(data.pin(el))) if data is not None else (lambda el: "?")
+        pin = (lambda el, data=data: _pins(data.pin(el))) if data is not None else (lambda el: "?")
         device = f"{tube.role} {tube.type}"
         heater = expectations.get(f"heater.{tube.role}.v")
         if heater is not None:

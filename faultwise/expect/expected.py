@@ -8,18 +8,19 @@ from. ``expectation_names(family)`` lists every name ``expect`` can produce for 
 The builders live beside this module, one file per part of the set: ``expect_supply``
 (line, leakage, rectifier and filter), ``expect_heaters``, ``expect_audio`` (output stage,
 speaker), ``expect_bias`` (battery and transistor bias), ``expect_signal`` (detector, IF,
-oscillator activity) and ``expect_tuning`` (tuning, antenna); they share
+oscillator activity), ``expect_tuning`` (tuning, antenna), ``meter`` (what an AC meter
+reads of the ripple) and ``parts`` (replacement part ratings for this set); they share
 :class:`faultwise.expect.context.Context`.
 """
 
 from __future__ import annotations
 
+from faultwise.core.vocabulary import STAGES
 from faultwise.expect.context import Expected
 
 
-__all__ = ["Expected", "STAGES", "expectation_names", "expect"]
+__all__ = ["Expected", "STAGES", "expectation_names", "expect", "expect_in_workspace"]
 
-STAGES = ("supply", "audio", "detector", "if", "oscillator", "antenna")
 
 
 def _tube_roles() -> tuple[str, ...]:
@@ -56,6 +57,9 @@ def expectation_names(family: str) -> frozenset[str]:
                       "supply.ripple_vpp", "supply.filtered_v", "supply.filter_drop_v",
                       "output.cathode_v", "output.plate_v", "output.primary_ohm",
                       "oscillator.grid_v"}
+    from faultwise.expect.parts import PART_NAMES
+
+    names |= set(PART_NAMES) | {"supply.ripple_meter_vac"}
     if family == "series-string":
         names |= {"heaters.string_v", "heaters.string_ma", "heaters.dropping_ohm"}
     else:
@@ -79,6 +83,8 @@ def expect(profile, *, tube_table=None) -> dict[str, Expected]:
     from faultwise.expect.bias import add_battery, add_bias
     from faultwise.expect.context import Context
     from faultwise.expect.heaters import add_heaters
+    from faultwise.expect.meter import add_ripple_meter
+    from faultwise.expect.parts import add_part_ratings
     from faultwise.expect.stages import add_tube_stages
     from faultwise.expect.signal import add_detector, add_if_strip, add_oscillator
     from faultwise.expect.supply import add_mains, add_rectifier
@@ -89,6 +95,8 @@ def expect(profile, *, tube_table=None) -> dict[str, Expected]:
         add_mains(ctx)
         add_heaters(ctx)
         add_rectifier(ctx)
+        add_ripple_meter(ctx)
+        add_part_ratings(ctx)
         add_output_tube(ctx)
         add_tube_stages(ctx)
     else:
@@ -104,3 +112,14 @@ def expect(profile, *, tube_table=None) -> dict[str, Expected]:
     items = sorted(ctx.out.items(), key=lambda kv: order[kv[1].stage])  # stable: build order
     return dict(items)
 
+
+
+def expect_in_workspace(profile, knowledge_dir) -> dict[str, Expected]:
+    """``expect(profile)`` with the workspace's own tube table when its knowledge has one.
+
+    Every place that turns a set into expectations for a workspace (the walk command, the
+    sweep, the bench screens) calls this, so they all expect the same readings.
+    """
+    from faultwise.profile.tubes import workspace_tube_table
+
+    return expect(profile, tube_table=workspace_tube_table(knowledge_dir))

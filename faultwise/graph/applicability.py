@@ -1,4 +1,4 @@
-"""Which checks and faults apply to the set on the bench (DEVELOPERS.md, "Walk").
+"""Which checks and faults apply to the set on the bench (the rule: knowledge/README.md, "Knowledge schema", ``when``).
 
 A node applies to a walk when (a) the set's family is in its ``families``, (b) for a
 measurement check, the set's expectations hold its ``expect`` name, and (c) every condition

@@ -2,7 +2,7 @@
 
 Reads ``symptoms.yaml``, ``cautions.yaml``, ``graph/*.yaml`` and the optional ``learned.yaml``
 through :mod:`faultwise.core.yamlload` (safe, line numbers kept) and builds the model of
-:mod:`faultwise.graph.nodes` (schema: DEVELOPERS.md, "Knowledge schema"). Nothing in the files is
+:mod:`faultwise.graph.nodes` (schema: knowledge/README.md, "Knowledge schema"). Nothing in the files is
 evaluated. Structural problems raise :class:`KnowledgeError` naming file, line and node;
 the loader collects every structural problem it can before raising the first one, and
 ``err.problems`` lists them all (``faultwise lint`` shows them). Graph-level checks
@@ -18,7 +18,6 @@ their schema constants are re-exported here.
 
 from __future__ import annotations
 
-import hashlib
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Iterable
@@ -32,6 +31,7 @@ from faultwise.graph.knowledge_parse import (CAUTION_KEYS, CAUTIONS_FORMAT, DEFA
                                              SYMPTOMS_FORMAT, read_cautions, read_learned,
                                              read_symptoms)
 from faultwise.graph.reader import LoadNote, Problems
+from faultwise.core.knowledge_version import content_version, knowledge_files  # re-exported
 from faultwise.graph.nodes import (CLEARED, STAGES, Caution, Check, Fault, Learned, Located, Node,
                                    Suspects, Symptom)
 
@@ -45,26 +45,6 @@ __all__ = [
 
 
 # ------------------------------------------------------------------------------ loading
-
-def knowledge_files(root: str | Path) -> list[Path]:
-    """The files that make up a knowledge folder's content, in sorted order (graph sorted)."""
-    root = Path(root)
-    files = [root / "symptoms.yaml", root / "cautions.yaml"]
-    files += sorted((root / "graph").glob("*.yaml"))
-    files.append(root / "learned.yaml")
-    return [f for f in files if f.is_file()]
-
-
-def content_version(root: str | Path) -> str:
-    """``sha256:<hex>`` over each file's path (relative to the folder) and bytes, sorted."""
-    root = Path(root)
-    digest = hashlib.sha256()
-    for path in sorted(knowledge_files(root), key=lambda p: p.relative_to(root).as_posix()):
-        digest.update(path.relative_to(root).as_posix().encode() + b"\0")
-        digest.update(path.read_bytes())
-        digest.update(b"\0")
-    return "sha256:" + digest.hexdigest()
-
 
 @dataclass
 class LoadResult:

@@ -18,7 +18,7 @@ LEARNED_FORMAT = "faultwise-learned/1"
 DEFAULT_PRIOR_STRENGTH = 10.0
 
 SYMPTOM_KEYS = frozenset(("id", "title", "families", "entry", "phrasings"))
-CAUTION_KEYS = frozenset(("id", "title", "text", "families"))
+CAUTION_KEYS = frozenset(("id", "title", "text", "families", "concern"))
 SETTINGS_KEYS = frozenset(("prior_strength",))
 
 
@@ -139,7 +139,7 @@ def read_cautions(path: Path, problems: Problems) -> dict[str, Caution]:
         r.unknown_keys(CAUTION_KEYS, "a caution")
         caution = Caution(id=cid, title=r.text("title", required=True),
                           text=r.text("text", required=True), families=r.families(FAMILIES),
-                          where=Located(file, r.line() or 0))
+                          where=Located(file, r.line() or 0), concern=r.text("concern"))
         if cid in out:
             r.bad("id", f"the caution id '{cid}' appears twice",
                   f"the first is at line {out[cid].where.line}; keep one")

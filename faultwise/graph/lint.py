@@ -3,8 +3,8 @@
 Every problem is a :class:`Finding` naming file, line and node, with a hint. Structural
 problems found while loading (YAML syntax, unknown keys, wrong types) come first; when there
 are any, the graph checks are skipped, since they would only repeat them. The graph checks
-use networkx (cycles, reachability). The list of checks is in DEVELOPERS.md, "Lint and
-match".
+use networkx (cycles, reachability). The list of checks is in knowledge/README.md, "What lint
+checks".
 """
 
 from __future__ import annotations
@@ -208,18 +208,43 @@ class _Lint:
                 missing = [f for f in node.families if not self.known[f](node.expect)]
                 if len(missing) == len(node.families):
                     self.at(node, f"unknown expectation name '{node.expect}'",
-                            "use a name from DEVELOPERS.md, 'Expectation names'")
+                            "use a name from knowledge/README.md, 'Expectation names'")
                 elif missing:
                     self.at(node, f"the expectation '{node.expect}' does not exist for "
                             f"{', '.join(missing)} sets", "narrow the check's 'families' or "
                             "use a name those sets have")
 
     def cautions(self) -> None:
+        """Every caution id is known; a node names only cautions that concern one of its
+        families (else it is never shown); where one concern is worded per family (the
+        cautions share a ``concern``), a node naming one names the wording of each of its
+        families."""
+        by_concern: dict[str, list] = {}
+        for caution in self.k.cautions.values():
+            if caution.concern:
+                by_concern.setdefault(caution.concern, []).append(caution)
         for node in self.k.nodes.values():
-            for cid in getattr(node, "cautions", ()):
-                if cid not in self.k.cautions:
+            named = tuple(getattr(node, "cautions", ()))
+            families = tuple(getattr(node, "families", ()) or ())
+            for cid in named:
+                caution = self.k.cautions.get(cid)
+                if caution is None:
                     self.at(node, f"unknown caution '{cid}'",
                             "add it to cautions.yaml or fix the id")
+                    continue
+                if families and not set(caution.families) & set(families):
+                    self.at(node, f"the caution '{cid}' concerns only "
+                            f"{', '.join(caution.families)} sets and this node applies to "
+                            f"{', '.join(families)} sets, so it is never shown",
+                            "name the caution worded for this node's families")
+                if not caution.concern:
+                    continue
+                for other in by_concern.get(caution.concern, ()):
+                    wanted = set(other.families) & set(families) - set(caution.families)
+                    if other.id not in named and wanted:
+                        self.at(node, f"the caution '{cid}' has a wording for "
+                                f"{', '.join(sorted(wanted))} sets, '{other.id}', that this "
+                                "node does not name", f"add '{other.id}' to its cautions")
 
     def symptoms(self, path: Path) -> None:
         k = self.k
@@ -406,7 +431,7 @@ class _Lint:
             for name in sig.readings:
                 if not any(self.known[f](name) for f in node.families):
                     self.at(node, f"the signature reading '{name}' is not an expectation name "
-                            "of the fault's families", "use a name from DEVELOPERS.md, "
+                            "of the fault's families", "use a name from knowledge/README.md, "
                             "'Expectation names'")
         for cid, choice in sig.observations.items():
             check = k.nodes.get(cid)
@@ -524,6 +549,9 @@ def lint(path: str | Path, expectation_names: NamesFn | None = None) -> LintRepo
     run.phrasings()
     run.learned()
     _inject_known(k, path, run)
+    from faultwise.graph.lint_text import text_rules
+
+    text_rules(run)
     summary = _summary(k, result)
     summary.update(errors=len(run.errors), warnings=len(run.warnings))
     return LintReport(run.errors, run.warnings, summary)

@@ -1,6 +1,6 @@
 """In-memory model of the knowledge: symptoms, cautions and graph nodes.
 
-``graph.py`` builds these from the YAML (see DEVELOPERS.md, "Knowledge schema"); the walk,
+``graph.py`` builds these from the YAML (format: knowledge/README.md, "Knowledge schema"); the walk,
 ranking, lint, sweep and review read them. Everything here is plain frozen data.
 """
 
@@ -10,8 +10,8 @@ from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Mapping, Union
 
-STAGES = ("supply", "audio", "detector", "if", "oscillator", "antenna")
-FAMILIES = ("series-string", "transformer", "transistor")
+from faultwise.core.vocabulary import FAMILIES, STAGES as STAGES  # re-exported
+
 MEASURE_OUTCOMES = ("normal", "low", "high", "absent")
 CLEARED = "cleared"          # route target: this investigation found nothing, try the next
 SPECIAL_TARGETS = (CLEARED,)
@@ -37,6 +37,8 @@ class Check:
     choice) to a target node id or ``cleared``. ``normal`` is the outcome a healthy set
     gives. ``unable`` is where a skipped check goes (default: ``cleared``, the next suspect).
     ``closing``: done before any case of these families is closed (the leakage check).
+    ``variants``: family -> {field: text} read from ``text_by_family`` (every node kind has
+    it): the text a walk of that family shows instead (see :mod:`faultwise.graph.node_text`).
     ``when``: conditions on the set (key -> any of these values) for the check to apply;
     empty: it applies to every set of its families (see :mod:`faultwise.graph.applicability`).
     """
@@ -56,6 +58,7 @@ class Check:
     unable: str | None = None
     closing: bool = False
     when: Mapping[str, tuple[str, ...]] = field(default_factory=lambda: _frozen({}))
+    variants: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "check"
 
@@ -91,6 +94,7 @@ class Suspects:
     investigations: tuple[Investigation, ...]
     exhausted: str = CLEARED
     why: str = ""
+    variants: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "suspects"
 
@@ -130,6 +134,7 @@ class Fault:
     cautions: tuple[str, ...] = ()
     notes: str = ""
     when: Mapping[str, tuple[str, ...]] = field(default_factory=lambda: _frozen({}))
+    variants: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "fault"
     plain: str = ""
@@ -145,6 +150,7 @@ class Escalate:
     stage: str
     families: tuple[str, ...]
     advice: str
+    variants: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "escalate"
 
@@ -169,6 +175,7 @@ class Caution:
     text: str
     families: tuple[str, ...] = FAMILIES
     where: Located | None = None
+    concern: str = ""       # one risk worded per family: cautions sharing it are one set
 
 
 @dataclass(frozen=True)

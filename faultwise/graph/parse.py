@@ -9,10 +9,12 @@ from __future__ import annotations
 
 from pathlib import Path
 from types import MappingProxyType
+from typing import Mapping
 
 from faultwise.graph.applicability import WHEN_KEYS
 from faultwise.graph.reader import (ID_RE, KnowledgeReader, Problems, is_number, key_line,
                                     key_text, read_yaml)
+from faultwise.graph.node_text import parse_variants
 from faultwise.graph.nodes import (CLEARED, FAMILIES, MEASURE_OUTCOMES, STAGES, Check, Escalate,
                                    Fault, Investigation, Located, Node, Signature, Suspects)
 
@@ -20,7 +22,7 @@ GRAPH_FORMAT = "faultwise-graph/1"
 DEFAULT_MINUTES = 1.0        # cost of a check that does not say (lint warns)
 OTHERWISE = "otherwise"      # outcome key that routes every outcome not listed
 
-_COMMON = ("id", "kind", "title", "stage", "families")
+_COMMON = ("id", "kind", "title", "stage", "families", "text_by_family")
 KEYS = {
     "check": frozenset(_COMMON + ("how", "why", "cautions", "minutes", "expect", "choices",
                                   "normal", "outcomes", OTHERWISE, "unable", "closing", "when")),
@@ -155,6 +157,7 @@ def _check(r: KnowledgeReader, base: dict) -> Check:
     if not isinstance(closing, bool):
         r.bad("closing", "'closing' must be true or false", "write 'closing: true'")
         closing = False
+    base["variants"] = parse_variants(r, "check", base["families"], choices)
     return Check(**base, how=r.text("how"), why=r.text("why"), minutes=minutes,
                  outcomes=MappingProxyType(outcomes), normal=normal, expect=expect,
                  choices=MappingProxyType(choices), cautions=r.texts("cautions"),
@@ -286,6 +289,7 @@ def _node(raw, file: str, stage: str, families: tuple[str, ...], problems: Probl
                 families=r.families(families), where=Located(file, r.line() or 0))
     if kind == "check":
         return _check(r, base)
+    base["variants"] = parse_variants(r, kind, base["families"])
     if kind == "suspects":
         return Suspects(**base, investigations=_investigations(r),
                         exhausted=r.text("exhausted") or CLEARED, why=r.text("why"))

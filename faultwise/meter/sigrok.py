@@ -32,8 +32,9 @@ INSTALL_HINT = "install it: apt-get install sigrok-cli"
 _PREFIXES = {"": 0, "p": -12, "n": -9, "u": -6, "µ": -6, "μ": -6, "m": -3, "k": 3, "M": 6,
              "G": 9}
 # units as libsigrok prints them -> the unit symbol faultwise uses
-_UNITS = {"V": "V", "A": "A", "Ω": "ohm", "Ω": "ohm", "ohm": "ohm", "Hz": "Hz", "F": "F",
-          "H": "H", "s": "s"}
+# (the Greek capital omega U+03A9 and the ohm sign U+2126 both name the ohm)
+_UNITS = {"V": "V", "A": "A", "Ω": "ohm", "\u2126": "ohm", "ohm": "ohm", "Hz": "Hz",
+          "F": "F", "H": "H", "s": "s"}
 _LINE = re.compile(
     r"^\s*(?P<channel>[^:\s][^:]*):\s+"
     r"(?P<number>[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?|[+-]?inf|[+-]?nan|OL)"

@@ -11,6 +11,7 @@ from __future__ import annotations
 import math
 
 from faultwise.core.errors import InputError, ProfileError
+from faultwise.core.safe_text import one_line
 
 _UNIT_OF_SUFFIX = (("_khz", "kHz"), ("_ohm", "ohm"), ("_uf", "uF"), ("_pf", "pF"),
                    ("_uh", "uH"), ("_hz", "Hz"), ("_ma", "mA"), ("_v", "V"), ("_a", "A"))
@@ -56,8 +57,8 @@ class ProfileReader:
 
     # errors and lines
     def error(self, message: str, key: str | None, line: int | None, hint: str) -> ProfileError:
-        return ProfileError(printable(message), file=self.source, line=line,
-                            key=printable(key) if key else None, hint=printable(hint))
+        return ProfileError(one_line(message), file=self.source, line=line,
+                            key=one_line(key) if key else None, hint=one_line(hint))
 
     @staticmethod
     def line(container, key=None) -> int | None:
@@ -187,12 +188,6 @@ def what_of(value) -> str:
     if isinstance(value, str):
         return f"the text '{value[:40]}'"
     return repr(value)[:40]
-
-
-def printable(text: str) -> str:
-    """Text safe for a one-line message: control characters shown as escapes."""
-    return "".join(c if c.isprintable() else c.encode("unicode_escape").decode("ascii")
-                   for c in str(text))  # stricter than safe_text.one_line: escapes newlines
 
 
 def join_key(path: str, key: str) -> str:

@@ -17,6 +17,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+from faultwise.calc.rectifier import CIRCUITS
+from faultwise.core.vocabulary import FAMILIES, LINE_FAMILIES
 from faultwise.profile.fields import BIAS_KEYS, SECTION_KEYS
 from faultwise.profile.typical import (  # re-exported: the typical tables
     SCREEN_SHARE, TYPICAL_BAND_KHZ, TYPICAL_BATTERY_V, TYPICAL_BETA, TYPICAL_BIAS,
@@ -35,12 +37,9 @@ __all__ = [
     "TYPICAL_POLARITY", "TYPICAL_MATERIAL", "TYPICAL_BIAS",
 ]
 
-FAMILIES = ("series-string", "transformer", "transistor")
-LINE_FAMILIES = ("series-string", "transformer")
 TUBE_ROLES = ("rf", "converter", "mixer", "oscillator", "if", "if2", "detector", "audio",
               "output", "output2", "rectifier", "tuning-eye", "ballast")
 RECTIFIERS = ("tube", "silicon", "selenium")
-CIRCUITS = ("half-wave", "full-wave", "bridge")
 
 
 @dataclass(frozen=True)

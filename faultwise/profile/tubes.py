@@ -343,3 +343,21 @@ def load_tube_table(knowledge_dir: str | Path | None = None) -> TubeTable:
         raise KnowledgeError("the tube table is missing", file=str(path),
                              hint="put a tubes.yaml in the knowledge folder") from None
     return _load_cached(str(path.resolve()), stat.st_mtime_ns, stat.st_size)
+
+
+def workspace_tube_dir(knowledge_dir: str | Path | None) -> Path | None:
+    """The knowledge folder when it carries its own ``tubes.yaml``, else None (the bundled table).
+
+    The one rule for "which tube table does this workspace use": the walk command, the
+    sweep, the expect command and every TUI screen ask here.
+    """
+    if knowledge_dir is None:
+        return None
+    folder = Path(knowledge_dir)
+    return folder if (folder / "tubes.yaml").is_file() else None
+
+
+def workspace_tube_table(knowledge_dir: str | Path | None) -> TubeTable | None:
+    """The workspace's own tube table, or None when it has none (the bundled one applies)."""
+    folder = workspace_tube_dir(knowledge_dir)
+    return load_tube_table(folder) if folder is not None else None

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from html import escape
 
-from faultwise.report.job import SAFETY_STATEMENT
+from faultwise.report.job import SAFETY_STATEMENT, num, pct
 from faultwise.report.svg import bar_chart_svg, column_chart_svg
 
 CSS = """
@@ -55,14 +55,6 @@ def job_report_html(r) -> str:
     return bench_html(r)
 
 
-def _pct(x) -> str:
-    return "-" if x is None else f"{100 * x:.0f}%"
-
-
-def _num(x, digits: int = 1) -> str:
-    return "-" if x is None else f"{x:.{digits}f}"
-
-
 def review_html(review, shop: str = "") -> str:
     """The shop review as one printable page with inline SVG charts; ``shop``: the configured
     shop name (none shown when empty)."""
@@ -81,25 +73,25 @@ def review_html(review, shop: str = "") -> str:
     for p in review.pairs:
         b.append(f"<h2>{_e(p.symptom)} / {_e(p.family)}</h2>")
         b.append(f"<p>{p.cases} closed case(s), {p.concluded} repaired with a concluded fault. "
-                 f"Mean checks to the fault {_num(p.mean_checks)}; mean minutes to the fault "
-                 f"{_num(p.mean_minutes)}.</p>")
+                 f"Mean checks to the fault {num(p.mean_checks)}; mean minutes to the fault "
+                 f"{num(p.mean_minutes)}.</p>")
         if p.note:
             b.append(f"<p class=\"bad\">{_e(p.note)}</p>")
         bars = [(f.title, f.smoothed if f.smoothed is not None else f.raw,
-                 f"{_pct(f.smoothed)} ({f.count})") for f in p.faults]
+                 f"{pct(f.smoothed)} ({f.count})") for f in p.faults]
         if bars:
             b.append(bar_chart_svg(bars, "Fault shares, smoothed (raw count in brackets)"))
         b.append("<table><tr><th>Fault</th><th>Cases</th><th>Raw</th><th>Prior</th>"
                  "<th>Smoothed</th></tr>" + "".join(
                      f"<tr><td>{_e(f.title)}<br><code>{_e(f.fault)}</code></td>"
-                     f"<td class=\"num\">{f.count}</td><td class=\"num\">{_pct(f.raw)}</td>"
-                     f"<td class=\"num\">{_pct(f.prior)}</td>"
-                     f"<td class=\"num\">{_pct(f.smoothed)}</td></tr>" for f in p.faults)
+                     f"<td class=\"num\">{f.count}</td><td class=\"num\">{pct(f.raw)}</td>"
+                     f"<td class=\"num\">{pct(f.prior)}</td>"
+                     f"<td class=\"num\">{pct(f.smoothed)}</td></tr>" for f in p.faults)
                  + "</table>")
         if p.saving_minutes is not None:
-            b.append(f"<p>Expected minutes per job: current order {_num(p.current_minutes)}, "
-                     f"order the data supports {_num(p.data_minutes)}; saving "
-                     f"<b>{_num(p.saving_minutes)} min</b> per job.</p>")
+            b.append(f"<p>Expected minutes per job: current order {num(p.current_minutes)}, "
+                     f"order the data supports {num(p.data_minutes)}; saving "
+                     f"<b>{num(p.saving_minutes)} min</b> per job.</p>")
             moved = [o for o in p.orders if o.current != o.data]
             if moved:
                 b.append("<table><tr><th>Suspects list</th><th>Current order</th>"
@@ -132,7 +124,7 @@ def review_html(review, shop: str = "") -> str:
     b.append("<h2>Cases back after a repair</h2>")
     b.append("<table><tr><th>Case</th><th>After</th><th>Rule</th><th>Days</th></tr>" + "".join(
         f"<tr><td>{_e(r.case)}</td><td>{_e(r.after)}</td><td>{_e(r.rule)}</td>"
-        f"<td class=\"num\">{_num(r.days, 0)}</td></tr>" for r in review.reopened) + "</table>"
+        f"<td class=\"num\">{num(r.days, 0)}</td></tr>" for r in review.reopened) + "</table>"
         if review.reopened else "<p>None.</p>")
     b.append(f"<h2>Safety</h2><div class=\"safety\"><p>{_e(SAFETY_STATEMENT)}</p></div>")
     return _page("Shop review", b)

@@ -125,11 +125,13 @@ def job_report_markdown(r) -> str:
 WIDTH = 100
 
 
-def _pct(x: float | None) -> str:
+def pct(x: float | None) -> str:
+    """A share 0..1 as a whole percent (``"-"`` when unknown): one rule for every report."""
     return "-" if x is None else f"{100 * x:.0f}%"
 
 
-def _num(x: float | None, digits: int = 1) -> str:
+def num(x: float | None, digits: int = 1) -> str:
+    """A number with ``digits`` decimals (``"-"`` when unknown): one rule for every report."""
     return "-" if x is None else f"{x:.{digits}f}"
 
 
@@ -163,18 +165,18 @@ def review_text(review) -> str:
         out += ["", "=" * WIDTH,
                 _cut(f"{p.symptom} / {p.family}: {p.cases} case(s), {p.concluded} repaired "
                      f"with a concluded fault", WIDTH),
-                _cut(f"mean checks to the fault {_num(p.mean_checks)}, mean minutes to the fault "
-                     f"{_num(p.mean_minutes)}", WIDTH)]
+                _cut(f"mean checks to the fault {num(p.mean_checks)}, mean minutes to the fault "
+                     f"{num(p.mean_minutes)}", WIDTH)]
         if p.note:
             out.append(_cut(f"note: {p.note}", WIDTH))
         out.append("")
         out += _table(("fault", "cases", "raw", "prior", "smoothed"),
-                      [(f"{f.title} ({f.fault})", str(f.count), _pct(f.raw), _pct(f.prior),
-                        _pct(f.smoothed)) for f in p.faults], (66, 5, 6, 6, 8))
+                      [(f"{f.title} ({f.fault})", str(f.count), pct(f.raw), pct(f.prior),
+                        pct(f.smoothed)) for f in p.faults], (66, 5, 6, 6, 8))
         if p.saving_minutes is not None:
-            out += ["", _cut(f"expected minutes: current order {_num(p.current_minutes)}, "
-                             f"data order {_num(p.data_minutes)}, saves "
-                             f"{_num(p.saving_minutes)} min per job", WIDTH)]
+            out += ["", _cut(f"expected minutes: current order {num(p.current_minutes)}, "
+                             f"data order {num(p.data_minutes)}, saves "
+                             f"{num(p.saving_minutes)} min per job", WIDTH)]
             for o in p.orders:
                 if o.current != o.data:
                     out.append(_cut(f"  {o.suspects}: now {' > '.join(o.current)}", WIDTH))

@@ -17,11 +17,10 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Mapping
 
-from faultwise.graph.nodes import STAGES
+from faultwise.core.vocabulary import LINE_FAMILIES, STAGES
 from faultwise.core.workspace import Shop
 
-MAINS_FAMILIES = ("series-string", "transformer")
-LINE_FAMILIES = MAINS_FAMILIES          # older name: sets that get the leakage check
+MAINS_FAMILIES = LINE_FAMILIES          # sets that get the leakage check
 # The bench copy says what the family means for the bench; the customer copy says what
 # kind of set it is, in words that do not alarm (a transformer set's chassis is not live).
 FAMILY_BENCH = {
@@ -96,7 +95,7 @@ class JobReport:
     minutes: float | None
     outcome: str
     notes: tuple[str, ...]
-    stages: Mapping[str, str]  # stage -> fault | cleared | checked
+    stages: Mapping[str, str]  # stage -> a state of faultwise.walk.stages (absent: untested)
 
     def phase(self, name: str) -> tuple[Step, ...]:
         return tuple(s for s in self.steps if s.phase == name)
@@ -193,20 +192,13 @@ def _stage_of(knowledge, node_id: str) -> str:
 
 
 def stage_states(checks, fault_stage: str, knowledge=None) -> dict:
-    """Stage -> ``fault`` (the conclusion's), ``cleared`` (a check there read normal) or
-    ``checked`` (checks there, none normal). Skipped checks say nothing of their stage."""
-    states: dict[str, str] = {}
-    for step in checks:
-        stage = _stage_of(knowledge, step.node)
-        if not stage or getattr(step, "skipped", False):
-            continue
-        if step.normal:
-            states[stage] = "cleared"
-        else:
-            states.setdefault(stage, "checked")
-    if fault_stage:
-        states[fault_stage] = "fault"
-    return states
+    """Stage -> state of :func:`faultwise.walk.stages.stage_states` (the bench map's rule)."""
+    from faultwise.walk.stages import StepView
+    from faultwise.walk.stages import stage_states as rule
+
+    return rule((StepView(_stage_of(knowledge, step.node),
+                          "skipped" if step.skipped else "answered", step.normal, step.phase)
+                 for step in checks), fault_stage or None)
 
 
 def _leakage_state(mains: bool, closing: tuple[Step, ...]) -> str:
@@ -227,7 +219,7 @@ def _off_graph_text(case: Mapping, events: list[dict]) -> str:
 
 
 def build_report(case: Mapping, knowledge=None, shop: Shop | None = None) -> JobReport:
-    """The report model of a case dict (DEVELOPERS.md, "Case file")."""
+    """The report model of a case dict (format: :mod:`faultwise.cases.schema`)."""
     from faultwise.report.part_ratings import part_ratings
 
     events = [e for e in case.get("events") or () if isinstance(e, dict)]
@@ -243,6 +235,10 @@ def build_report(case: Mapping, knowledge=None, shop: Shop | None = None) -> Job
     s = case.get("set") if isinstance(case.get("set"), dict) else {}
     profile = s.get("profile") if isinstance(s.get("profile"), dict) else {}
     family = str(case.get("family") or profile.get("family") or "")
+    if node is not None:    # this family's text, this set's ratings in the repair steps
+        from faultwise.graph.node_text import for_case_profile
+
+        node = for_case_profile(node, family, profile)
     mains = family in MAINS_FAMILIES
     parts = case.get("parts") if isinstance(case.get("parts"), list) else []
     diagnose = tuple(x for x in steps if x.phase == "diagnose")

@@ -19,10 +19,12 @@ _PATH = (
     ("audio", "Audio", 562),
     ("speaker", "Speaker", 700),
 )
+# Keyed by the states of faultwise.walk.stages (the bench map's rule).
 _STATE_STYLE = {
-    "fault": ("#f6d2cc", "#a5281b", 3.0, "FAULT"),
+    "faulty": ("#f6d2cc", "#a5281b", 3.0, "FAULT"),
     "cleared": ("#d9eed8", "#2e6b30", 1.5, "cleared"),
-    "checked": ("#fbeccb", "#8a6212", 1.5, "checked"),
+    "suspect": ("#fbeccb", "#8a6212", 1.5, "suspect"),
+    "not-needed": ("#eeeeee", "#555555", 1.5, "not needed"),
     "": ("#ffffff", "#777777", 1.0, ""),
 }
 
@@ -40,14 +42,14 @@ def _box(x: float, y: float, label: str, state: str, w: float = _BOX_W, h: float
              _text(x + w / 2, y + (h / 2 - 2 if word else h / 2 + 5), label, weight="bold")]
     if word:
         parts.append(_text(x + w / 2, y + h / 2 + 16, word, size=11, fill=stroke,
-                           weight="bold" if state == "fault" else "normal"))
+                           weight="bold" if state == "faulty" else "normal"))
     return "".join(parts)
 
 
 def stage_map_svg(states: dict[str, str], title: str = "Stage map") -> str:
     """Block diagram of an AM superhet: the signal path left to right, the supply beneath.
 
-    ``states``: stage id -> ``fault`` | ``cleared`` | ``checked`` (absent: not examined).
+    ``states``: stage id -> a state of :mod:`faultwise.walk.stages` (absent: not examined).
     """
     width, height = 830, 250
     y = 40
@@ -71,13 +73,14 @@ def stage_map_svg(states: dict[str, str], title: str = "Stage map") -> str:
                    'stroke-width="1.2" stroke-dasharray="4 3" marker-end="url(#arrow)"/>')
     out.append(_text(10, 22, "Signal path", size=12, anchor="start", fill="#555"))
     lx = 10
-    for state, name in (("fault", "faulty stage"), ("cleared", "checks normal"),
-                        ("checked", "checked, not cleared"), ("", "not examined")):
+    for state, name in (("faulty", "faulty stage"), ("cleared", "checks normal"),
+                        ("suspect", "suspect"), ("not-needed", "suspected, not needed"),
+                        ("", "not examined")):
         fill, stroke, w, _ = _STATE_STYLE[state]
         out.append(f'<rect x="{lx}" y="228" width="14" height="14" fill="{fill}" '
                    f'stroke="{stroke}" stroke-width="{w}"/>')
         out.append(_text(lx + 20, 240, name, size=11, anchor="start"))
-        lx += 180
+        lx += 162
     out.append("</svg>")
     return "".join(out)
 

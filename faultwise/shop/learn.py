@@ -1,6 +1,6 @@
 """Learned counts: closed, repaired cases -> ``<knowledge>/learned.yaml`` (review --learn).
 
-Format (DEVELOPERS.md, "Knowledge schema"): ``{format: faultwise-learned/1, written, cases,
+Format (knowledge/README.md, "Knowledge schema"): ``{format: faultwise-learned/1, written, cases,
 counts: {symptom: {family: {fault: n}}}}`` with every mapping's keys sorted, so a shop's
 refinement is a reviewable diff. The file is written atomically (temp file in the same
 folder, flush, fsync, rename, fsync the folder). The hand-written graph files are never
@@ -11,12 +11,12 @@ reported as dropped.
 from __future__ import annotations
 
 import os
-import tempfile
 from dataclasses import dataclass
 from datetime import datetime, timezone
 from pathlib import Path
 from typing import Iterable, Mapping
 
+from faultwise.core.atomic import atomic_write
 from faultwise.core.errors import FaultwiseError
 from faultwise.shop.review import fault_counts
 
@@ -83,40 +83,13 @@ def learned_yaml(learning: Learning, written: datetime) -> str:
     return "\n".join([comment, *head]) + "\n" + body
 
 
-def _atomic_write(path: Path, text: str) -> None:
-    """temp file in the same folder, flush, fsync, rename, fsync the folder."""
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".fwtmp", dir=path.parent)
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
-            fh.write(text)
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.replace(tmp, path)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
-        raise
-    try:
-        dfd = os.open(path.parent, os.O_RDONLY)
-    except OSError:
-        return
-    try:
-        os.fsync(dfd)
-    except OSError:
-        pass
-    finally:
-        os.close(dfd)
-
-
 def write_learned(knowledge_dir: str | os.PathLike, learning: Learning,
                   now: datetime | None = None) -> Path:
     """Write ``<knowledge>/learned.yaml`` atomically; FaultwiseError if the folder refuses."""
     path = Path(knowledge_dir) / LEARNED_NAME
     now = now or datetime.now(timezone.utc)
     try:
-        _atomic_write(path, learned_yaml(learning, now))
+        atomic_write(path, learned_yaml(learning, now))
     except OSError as exc:
         raise FaultwiseError(f"cannot write the learned counts ({exc.strerror})", file=str(path),
                              hint="check that the knowledge folder is writable, or point "

@@ -79,7 +79,6 @@ def optimal_minutes(problem: Problem, *, restrict_singles: bool = False,
                     budget: int | None = None, upper: float | None = None) -> Solution:
     """The optimum (see the module doc); ``restrict_singles=False``: every check at every state."""
     hyps = tuple(sorted(problem.weights))
-    index = {h: i for i, h in enumerate(hyps)}
     w = [float(problem.weights[h]) for h in hyps]
     checks = sorted(problem.minutes)
     # per check: the outcome of every hypothesis as a small int, and its cost

@@ -119,14 +119,23 @@ def _at(path: tuple[tuple[str, str], ...], step: int) -> str | None:
 
 
 def replay_case(knowledge, data: Mapping, *, expectations: Mapping | None = None,
-                file: str = "") -> ReplayResult:
-    """Re-walk one case's recorded answers against this knowledge; see the module doc."""
+                file: str = "", knowledge_dir=None) -> ReplayResult:
+    """Re-walk one case's recorded answers against this knowledge; see the module doc.
+
+    ``knowledge_dir``: the workspace's knowledge folder (its own tube table, if any, sets
+    the expectations when none are given).
+    """
+    from faultwise.expect.expected import expect_in_workspace
     from faultwise.profile.load import profile_from_dict
+    from faultwise.profile.tubes import workspace_tube_dir
     from faultwise.walk.state import Walk, auto_answer
 
     case_id = str(data.get("id") or file)
     s = data.get("set") if isinstance(data.get("set"), dict) else {}
-    profile = profile_from_dict(s.get("profile") or {}, s.get("source") or file or case_id)
+    profile = profile_from_dict(s.get("profile") or {}, s.get("source") or file or case_id,
+                                knowledge_dir=workspace_tube_dir(knowledge_dir))
+    if expectations is None:
+        expectations = expect_in_workspace(profile, knowledge_dir)
     events = [e for e in data.get("events") or [] if isinstance(e, dict)]
     old_path = _path_of(events)
     conclusion = data.get("conclusion") if isinstance(data.get("conclusion"), dict) else None
@@ -174,7 +183,7 @@ def replay_case(knowledge, data: Mapping, *, expectations: Mapping | None = None
                         check_was, check_now, old_path, new_path)
 
 
-def replay_files(knowledge, paths: Iterable[Path]) -> ReplayReport:
+def replay_files(knowledge, paths: Iterable[Path], *, knowledge_dir=None) -> ReplayReport:
     """Replay every case file; damaged files are named, unreplayable cases listed, none written."""
     from faultwise.cases.store import read_case_bytes
 
@@ -190,16 +199,20 @@ def replay_files(knowledge, paths: Iterable[Path]) -> ReplayReport:
             damaged.append((str(path), f"unreadable ({exc.strerror or exc})"))
             continue
         try:
-            results.append(replay_case(knowledge, data, file=str(path)))
+            results.append(replay_case(knowledge, data, file=str(path),
+                                       knowledge_dir=knowledge_dir))
         except FaultwiseError as exc:
             failed.append((str(data.get("id") or path.name), str(exc)))
     return ReplayReport(tuple(results), tuple(damaged), tuple(failed))
 
 
 def case_files(folder: Path) -> list[Path]:
-    """Every case file of a cases folder, sorted (temp and hidden files left out)."""
+    """Every case file of a cases folder and its subfolders, sorted (temp and hidden files
+    and hidden folders left out; the same listing as the review's index)."""
+    from faultwise.cases.index import case_entries
+
     folder = Path(folder)
     if not folder.is_dir():
         return []
-    return sorted(p for p in folder.glob("*.json")
-                  if not p.name.startswith(".") and p.is_file())   # a FIFO would block the read
+    # case_entries keeps regular files only: a FIFO would block the read.
+    return [folder / name for name, *_ in case_entries(folder)]

@@ -7,7 +7,7 @@ data supports (priors + counts), and checks whose outcome never varied. Over the
 checks most often skipped, off-graph findings grouped by similarity (rapidfuzz), faults
 never reached, cases back after a repair, and job minutes by month.
 
-Rules (also in DEVELOPERS.md, "Review, index and reports"):
+Rules:
 
 - Only closed cases count (``status: closed``); ``since`` keeps those closed on or after a
   date. Fault counts take the closed cases whose outcome is ``repaired`` with a concluded
@@ -31,6 +31,7 @@ from dataclasses import dataclass
 from datetime import date
 from typing import Iterable, Mapping
 
+from faultwise.cases.store import DamagedFile
 from faultwise.cases.summary import pairs
 from faultwise.core.errors import FaultwiseError, KnowledgeError
 
@@ -136,12 +137,6 @@ class MonthMinutes:
     month: str                          # YYYY-MM of the close
     jobs: int
     mean_minutes: float
-
-
-@dataclass(frozen=True)
-class DamagedFile:
-    file: str
-    reason: str
 
 
 @dataclass(frozen=True)

@@ -8,8 +8,7 @@ set of that family (file order) on which the fault applies (its ``when`` holds, 
 (a class becomes a number from the set's band through ``walk.representative_value``;
 numbers are used as written; every other reading is nominal and every other observation
 normal, as ``auto_walk`` does), walks automatically and records whether the walk
-concluded that fault, after how many checks and minutes (DESIGN section 12; DEVELOPERS.md
-"Sweep and benchmarks").
+concluded that fault, after how many checks and minutes (DESIGN section 12).
 
 Figures per (symptom, family) pair are prior-weighted: the weights are
 ``rank.fault_probabilities`` for the pair (the knowledge's learned counts included, as the
@@ -286,21 +285,14 @@ def walk_has_order_hook() -> bool:
 
 # ------------------------------------------------------------------------------- sets
 
-def _tube_dir(knowledge_dir: Path) -> Path | None:
-    return knowledge_dir if (Path(knowledge_dir) / "tubes.yaml").is_file() else None
-
-
 def load_demo_sets(sets_dir, knowledge_dir=None) -> dict[str, list[DemoSet]]:
     """Every set profile in ``sets_dir`` (sorted by file name), by family, with its expectations."""
     from faultwise.expect.expected import expect
     from faultwise.profile.load import load_profile
+    from faultwise.profile.tubes import workspace_tube_dir, workspace_tube_table
 
-    tubes = _tube_dir(Path(knowledge_dir)) if knowledge_dir else None
-    table = None
-    if tubes is not None:
-        from faultwise.profile.tubes import load_tube_table
-
-        table = load_tube_table(tubes)
+    tubes = workspace_tube_dir(knowledge_dir)
+    table = workspace_tube_table(knowledge_dir)
     out: dict[str, list[DemoSet]] = {}
     for path in sorted(Path(sets_dir).glob("*.yaml")):
         profile = load_profile(path, knowledge_dir=tubes)

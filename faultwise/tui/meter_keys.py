@@ -152,6 +152,9 @@ class MeterKeys:
             return
         from faultwise.tui.screens.caution import CautionScreen
 
+        shown = self.bench.now_iso()
+        modal = CautionScreen([caution], guard_s=self.bench.settings.caution_guard_s)
+
         def done(ok: bool | None) -> None:
             if not ok:                  # "Leave the case", as for any other caution
                 self.leave_case(saved=True)
@@ -162,9 +165,10 @@ class MeterKeys:
                 self.show_prompt()
                 self._meter_start(state, quantity)
 
-            self.change(lambda: self.walk.acknowledge(CAUTION_ID), then)
+            self.change(lambda: self.walk.acknowledge(CAUTION_ID, shown=shown,
+                                                      read_s=modal.read_s), then)
 
-        self.app.push_screen(CautionScreen([caution]), done)
+        self.app.push_screen(modal, done)
 
     def _meter_start(self, state: MeterState, quantity) -> None:
         prompt = self.walk.prompt()

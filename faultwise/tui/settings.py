@@ -11,6 +11,8 @@ import json
 import os
 from pathlib import Path
 
+from faultwise.core.atomic import atomic_write
+
 FORMAT = "faultwise-bench-settings/1"
 
 
@@ -24,10 +26,14 @@ class Settings:
     """Read once at start; ``acknowledge_safety`` writes through (best effort)."""
 
     def __init__(self, path: Path | None = None, *, safety_acknowledged: str | None = None,
-                 cursor_blink: bool = True) -> None:
+                 cursor_blink: bool = True, caution_guard_s: float | None = None) -> None:
+        from faultwise.tui.screens.caution import GUARD_S
+
         self.path = path
         self.safety_acknowledged = safety_acknowledged
         self.cursor_blink = cursor_blink          # off for deterministic screenshots
+        # Keys are ignored this long after a caution opens (tests of other flows shorten it).
+        self.caution_guard_s = GUARD_S if caution_guard_s is None else caution_guard_s
         self.write_error: str | None = None
 
     @classmethod
@@ -48,9 +54,7 @@ class Settings:
             return
         try:
             self.path.parent.mkdir(parents=True, exist_ok=True)
-            tmp = self.path.with_suffix(".tmp")
-            tmp.write_text(json.dumps({"format": FORMAT, "safety_acknowledged": when_iso},
-                                      indent=2) + "\n", encoding="utf-8")
-            os.replace(tmp, self.path)
+            atomic_write(self.path, json.dumps({"format": FORMAT,
+                                                "safety_acknowledged": when_iso}, indent=2) + "\n")
         except OSError as exc:
             self.write_error = f"{self.path}: {exc.strerror or exc}"

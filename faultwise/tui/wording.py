@@ -11,6 +11,8 @@ from __future__ import annotations
 
 import re
 
+from faultwise.core.safe_text import shown_text as printable  # noqa: F401  (re-exported)
+
 NODE_ID = re.compile(r"\b[a-z][a-z0-9_-]*(?:\.[a-z0-9][a-z0-9_-]*)+")
 
 
@@ -66,10 +68,3 @@ def caution_title(knowledge, caution_id) -> str:
     cautions = getattr(knowledge, "cautions", None) or {}
     caution = cautions.get(caution_id) if caution_id else None
     return getattr(caution, "title", None) or str(caution_id or "")
-
-
-def printable(text) -> str:
-    """``text`` made harmless on screen (see :mod:`faultwise.core.safe_text`); the record is unchanged."""
-    from faultwise.core.safe_text import shown_text
-
-    return shown_text(text)

@@ -1,4 +1,4 @@
-"""Ordering of suspects by probability over cost (DEVELOPERS.md, "Ordering (rank)").
+"""Ordering of suspects by probability over cost (the rule is this docstring).
 
 Decision-theoretic troubleshooting (Heckerman, Breese and Rommelse, 1995, "Decision-theoretic
 troubleshooting", Communications of the ACM 38(3)): with one fault present and independent

@@ -1,7 +1,7 @@
 """The walk: a pure state machine from a complaint to a fault, a repair and a closed case.
 
-The record of a walk is its list of events (DEVELOPERS.md, "Walk" and "Walk and case store
-API"); the state is derived by replaying them from the start. Undo drops the last event
+The record of a walk is its list of events (their format: :mod:`faultwise.cases.schema`);
+the state is derived by replaying them from the start. Undo drops the last event
 that moved the walk and re-derives; reopening a case replays its events; replay of a case
 against a changed graph uses the same code. Same graph, same priors and same answers give
 the same walk: the only thing that varies is the time stamp of each event.
@@ -12,7 +12,7 @@ recorded) -> ``verify`` (the fault's verify checks, classified, not routed) -> `
 (the knowledge's closing checks for the family: the leakage check of line-powered sets)
 -> ``done`` (closed with an outcome).
 
-Applicability (DEVELOPERS.md, "Walk"): a node applies to this walk when the set's family is
+Applicability: a node applies to this walk when the set's family is
 in its families, a measurement's expectation name is among the walk's expectations, and
 its ``when`` holds for the profile (:mod:`faultwise.graph.applicability`). Ranking drops the
 suspects that do not apply and counts only the faults that do. When an outcome (or an
@@ -34,13 +34,12 @@ from dataclasses import dataclass, field
 from datetime import UTC, datetime
 
 from faultwise.core.errors import InputError, KnowledgeError, WalkError
+from faultwise.core.vocabulary import EVENT_TYPES as EVENT_TYPES, UNDOABLE  # re-exported
 from faultwise.graph.nodes import (CLEARED, MEASURE_OUTCOMES, Caution, Check, Escalate, Fault,
                                    Suspects)
 
 PHASES = ("diagnose", "repair", "verify", "closing", "done")
 OUTCOMES = ("repaired", "returned-unrepaired", "waiting-parts")
-UNDOABLE = ("answer", "skip", "parts", "off-graph", "resume", "to-closing")
-EVENT_TYPES = UNDOABLE + ("note", "acknowledge", "close", "reopen")
 _MOVE_LIMIT = 10_000          # routing steps in one move; the graph has no cycles (lint)
 
 
@@ -87,6 +86,7 @@ class Step:
     normal: bool = True
     minutes: float = 0.0
     meter: Mapping | None = None      # the meter sample when the reading came from a meter
+    assumed: bool = False             # no answer given: normal assumed (walk --assume-normal)
 
 
 @dataclass(frozen=True)
@@ -121,6 +121,7 @@ class WalkResult:
     checks: int
     minutes: float
     walk: Walk
+    missing: object | None = None     # errors.MissingAnswerError where an answer was missing
 
 
 # -------------------------------------------------------------------------- classifying
@@ -271,7 +272,7 @@ class Walk:
     @property
     def conclusion(self) -> Fault | None:
         fid = self._state.conclusion
-        return None if fid is None else self.knowledge.nodes.get(fid)
+        return None if fid is None else self._view(self.knowledge.nodes.get(fid))
 
     @property
     def off_graph_finding(self) -> str | None:
@@ -312,7 +313,7 @@ class Walk:
                           context=context, explanation=self.explain())
         if st.phase == "diagnose" and (st.ran_out or st.node is None or
                                        isinstance(self.knowledge.nodes.get(st.node), Escalate)):
-            node = self.knowledge.nodes.get(st.node) if st.node else None
+            node = self._view(self.knowledge.nodes.get(st.node)) if st.node else None
             cautions = self._cautions(getattr(node, "cautions", ()) or ())
             return Prompt("escalate", "diagnose", node, node.stage if node else None,
                           cautions=cautions, unacknowledged=self._unacked(cautions),
@@ -322,7 +323,7 @@ class Walk:
         if st.node is None:   # verify/closing with nothing left to ask
             return Prompt("close", st.phase, None, None, context=context,
                           warning=self._verify_warning(st))
-        check = self.knowledge.node(st.node)
+        check = self._view(self.knowledge.node(st.node))
         expected = self.expectations.get(check.expect) if check.is_measurement else None
         if check.is_measurement:
             choices = () if expected is not None else tuple((o, o) for o in MEASURE_OUTCOMES)
@@ -334,6 +335,12 @@ class Walk:
                       cautions=cautions, unacknowledged=self._unacked(cautions),
                       context=context, position=position, warning=self._verify_warning(st),
                       explanation=self.explain())
+
+    def _view(self, node):
+        """The node as this set sees it: its family's text, this set's values filled in."""
+        from faultwise.graph.node_text import for_set
+
+        return for_set(node, self.family, self.expectations)
 
     def explain(self) -> Explanation | None:
         """Why this check now: the p/c ranking of the innermost suspects list, and the route here."""
@@ -410,8 +417,10 @@ class Walk:
 
     # ---------------------------------------------------------------- actions
 
-    def answer(self, text: str) -> dict:
-        """Answer the current check with what the tech typed; InputError leaves nothing recorded."""
+    def answer(self, text: str, *, assumed: bool = False) -> dict:
+        """Answer the current check with what the tech typed; InputError leaves nothing recorded.
+
+        ``assumed`` marks an answer nobody gave (``walk --assume-normal``) in the event."""
         check, expected = self._asked_check()
         text = "" if text is None else str(text)
         if check.is_measurement and expected is not None:
@@ -422,18 +431,21 @@ class Walk:
             except InputError as exc:
                 raise InputError(exc.message, node=check.id, key=check.expect,
                                  hint=exc.hint or f"type a reading in {expected.unit}") from None
-            return self.answer_value(value, raw=text.strip())
+            return self.answer_value(value, raw=text.strip(), assumed=assumed)
         choices = tuple((o, o) for o in MEASURE_OUTCOMES) if check.is_measurement \
             else tuple(check.choices.items())
         choice = resolve_choice(text, choices, check.id)
-        return self._push(self._event("answer", node=check.id, raw=text.strip(), outcome=choice))
+        mark = {"assumed": True} if assumed else {}
+        return self._push(self._event("answer", node=check.id, raw=text.strip(), outcome=choice,
+                                      **mark))
 
     def answer_value(self, value: float, raw: str | None = None,
-                     meter: Mapping | None = None) -> dict:
+                     meter: Mapping | None = None, *, assumed: bool = False) -> dict:
         """Answer the current measurement with a number in its unit.
 
         ``meter`` is the sample a bench meter gave (:func:`faultwise.meter.fit.answer_from_meter`:
         value, unit as reported, mode, meter identity, time); it is kept in the event.
+        ``assumed`` marks an answer nobody gave (``walk --assume-normal``).
         """
         check, expected = self._asked_check()
         if not check.is_measurement or expected is None:
@@ -444,6 +456,8 @@ class Walk:
             raise InputError("the reading must be a finite number", node=check.id)
         raw = f"{value:g} {expected.unit}" if raw is None else raw
         extra = {"meter": dict(meter)} if meter else {}
+        if assumed:
+            extra["assumed"] = True
         return self._push(self._event("answer", node=check.id, expect=check.expect,
                                       band=band_of(expected), raw=raw, value=value,
                                       outcome=classify(value, expected), **extra))
@@ -480,10 +494,18 @@ class Walk:
             raise InputError("the note is empty", hint="type what you want to keep")
         return self._push(self._event("note", text=text))
 
-    def acknowledge(self, caution_id: str) -> dict:
+    def acknowledge(self, caution_id: str, *, shown: str | None = None,
+                    read_s: float | None = None) -> dict:
+        """Record a caution as read; ``shown`` is when it was put before the tech and
+        ``read_s`` how long it was open (the event's ``at`` is the acknowledgement time)."""
         if caution_id not in self.knowledge.cautions:
             raise InputError(f"unknown caution '{caution_id}'", key="caution")
-        return self._push(self._event("acknowledge", caution=caution_id))
+        extra: dict = {}
+        if shown is not None:
+            extra["shown"] = str(shown)
+        if read_s is not None:
+            extra["read_s"] = float(read_s)
+        return self._push(self._event("acknowledge", caution=caution_id, **extra))
 
     def off_graph(self, finding: str) -> dict:
         """Record a fault the graph does not know; diagnosis ends with no conclusion."""
@@ -544,7 +566,7 @@ class Walk:
 
     def _asked_check(self) -> tuple[Check, object | None]:
         st = self._state
-        node = self.knowledge.nodes.get(st.node) if st.node else None
+        node = self._view(self.knowledge.nodes.get(st.node)) if st.node else None
         if st.phase not in ("diagnose", "verify", "closing") or not isinstance(node, Check):
             raise WalkError("no check is being asked now", hint="look at the current prompt")
         expected = self.expectations.get(node.expect) if node.is_measurement else None
@@ -667,7 +689,7 @@ class Walk:
                              outcome=outcome, reason=str(event.get("reason", "") or ""),
                              normal=normal, minutes=float(check.minutes),
                              meter=event.get("meter") if isinstance(event.get("meter"), dict)
-                             else None))
+                             else None, assumed=event.get("assumed") is True))
         if st.phase == "diagnose":
             st.memory[node_id] = outcome
             st.came_from = (node_id, outcome)
@@ -858,33 +880,68 @@ def resolve_choice(text: str, choices: tuple[tuple[str, str], ...], node: str | 
     raise InputError(f"'{typed}' {what}", node=node, hint=f"type one of: {listing}")
 
 
-def walk_from_case(knowledge, data: Mapping, **kwargs) -> Walk:
-    """Rebuild the walk recorded in a case file's data (profile copied into the case)."""
+def walk_from_case(knowledge, data: Mapping, *, knowledge_dir=None, **kwargs) -> Walk:
+    """Rebuild the walk recorded in a case file's data (profile copied into the case).
+
+    ``knowledge_dir``: the workspace's knowledge, whose own tube table (if any) the
+    expectations use, as when the case was started.
+    """
+    from faultwise.expect.expected import expect_in_workspace
     from faultwise.profile.load import profile_from_dict
+    from faultwise.profile.tubes import workspace_tube_dir
 
     s = data.get("set") or {}
-    profile = profile_from_dict(s.get("profile") or {}, s.get("source") or str(data.get("id")))
+    profile = profile_from_dict(s.get("profile") or {}, s.get("source") or str(data.get("id")),
+                                knowledge_dir=workspace_tube_dir(knowledge_dir))
+    if "expectations" not in kwargs:
+        kwargs["expectations"] = expect_in_workspace(profile, knowledge_dir)
     return Walk.from_events(knowledge, profile, data.get("symptom"), data.get("events") or [],
                             **kwargs)
 
 
 def auto_answer(walk: Walk, readings: Mapping | None = None,
-                observations: Mapping | None = None) -> dict:
-    """Answer the asked check the way ``walk --answers`` does; returns the event."""
+                observations: Mapping | None = None, *, missing: str = "normal") -> dict:
+    """Answer the asked check the way ``walk --answers`` does; returns the event.
+
+    A check the answers leave out: ``missing="normal"`` answers normal silently (sweep's
+    signatures list only what a fault changes), ``"mark"`` answers normal and marks the
+    event ``assumed``, ``"stop"`` raises :class:`MissingAnswerError` naming the check and
+    what it accepts.
+    """
+    from faultwise.core.errors import MissingAnswerError
     from faultwise.core.units import format_reading, parse_reading
 
     readings = readings or {}
     observations = observations or {}
     check, expected = walk._asked_check()
+    given = (check.expect in readings) if check.is_measurement else (check.id in observations)
+    if not given and missing == "stop":
+        if check.is_measurement:
+            unit = expected.unit if expected is not None else ""
+            accepts = ((f"a reading in {unit}",) if expected is not None else ()) + \
+                MEASURE_OUTCOMES
+            raise MissingAnswerError(
+                f"the answers file gives no reading for the check '{check.title}'",
+                node=check.id, key=check.expect, section="readings", accepts=accepts,
+                title=check.title,
+                hint=f"add '{check.expect}: <answer>' under 'readings:' (it accepts "
+                     f"{' or '.join(accepts)}), or run with --assume-normal")
+        raise MissingAnswerError(
+            f"the answers file gives no observation for the check '{check.title}'",
+            node=check.id, key=check.id, section="observations",
+            accepts=tuple(check.choices), title=check.title,
+            hint=f"add '{check.id}: <choice>' under 'observations:' (it accepts "
+                 f"{' or '.join(check.choices)}), or run with --assume-normal")
+    mark = not given and missing == "mark"
     if check.is_measurement:
         spec = readings.get(check.expect)
         if expected is None:
             word = spec if isinstance(spec, str) and spec in MEASURE_OUTCOMES else "normal"
-            return walk.answer(word)
+            return walk.answer(word, assumed=mark)
         if spec is None:
             value = representative_value(expected, "normal")
             return walk.answer_value(value, raw=f"{format_reading(value, expected.unit, 4)} "
-                                                "(nominal)")
+                                                "(nominal)", assumed=mark)
         if isinstance(spec, bool):
             raise InputError(f"the reading for '{check.expect}' must be a number",
                              key=check.expect)
@@ -903,15 +960,22 @@ def auto_answer(walk: Walk, readings: Mapping | None = None,
     if choice not in check.choices:
         raise InputError(f"'{choice}' is not a choice of '{check.id}'", key=check.id,
                          hint="use one of " + ", ".join(check.choices))
-    return walk.answer(choice)
+    return walk.answer(choice, assumed=mark)
 
 
 def auto_walk(knowledge, profile, symptom: str, readings: Mapping | None = None,
               observations: Mapping | None = None, *, expectations: Mapping | None = None,
               counts: Mapping[str, int] | None = None, through: bool = False,
               clock: Callable[[], datetime] | None = None,
-              order: Callable | None = None) -> WalkResult:
-    """Walk with readings by expectation name and observations by check id (missing: normal)."""
+              order: Callable | None = None, missing: str = "normal") -> WalkResult:
+    """Walk with readings by expectation name and observations by check id.
+
+    ``missing`` says what a check without an answer gets (see :func:`auto_answer`); with
+    ``"stop"`` the result's ``missing`` holds the MissingAnswerError and the walk stands
+    at that check."""
+    from faultwise.core.errors import MissingAnswerError
+
+    stopped = None
     walk = Walk(knowledge, profile, symptom, expectations=expectations, counts=counts,
                 clock=clock, order=order)
     limit = 4 * len(knowledge.nodes) + 10
@@ -926,7 +990,11 @@ def auto_walk(knowledge, profile, symptom: str, readings: Mapping | None = None,
             continue
         if prompt.phase != "diagnose" and not through:
             break
-        auto_answer(walk, readings, observations)
+        try:
+            auto_answer(walk, readings, observations, missing=missing)
+        except MissingAnswerError as exc:
+            stopped = exc
+            break
     prompt = walk.prompt()
     escalate = None
     if walk.phase == "diagnose" and prompt is not None and prompt.kind == "escalate":
@@ -934,4 +1002,4 @@ def auto_walk(knowledge, profile, symptom: str, readings: Mapping | None = None,
     diag = tuple(s for s in walk.steps if s.phase == "diagnose")
     return WalkResult(walk.conclusion, escalate, walk.steps,
                       sum(1 for s in diag if s.outcome != "skipped"),
-                      walk.diagnosis_minutes(), walk)
+                      walk.diagnosis_minutes(), walk, missing=stopped)

@@ -28,7 +28,7 @@ HERE = Path(__file__).resolve().parent
 ROOT = HERE.parents[1]
 
 #: per script: the arguments of a quick run
-QUICK_ARGS = {"bench_tui_start.py": ["5"], "bench_review.py": ["2000"],
+QUICK_ARGS = {"bench_tui_start.py": ["5"], "bench_review.py": ["2000"], "bench_walk_step.py": ["10"],
               "bench_lint.py": ["--runs", "3"], "bench_sweep.py": ["--runs", "3"]}
 
 _NUM = r"([0-9]+(?:\.[0-9]+)?)"
@@ -51,13 +51,21 @@ EXTRACT = {
     ],
     "bench_lint.py": [
         ("lint / C-loader parse, warm", rf"^warm:.*ratio {_NUM}", "<= 2"),
-        ("lint / C-loader parse, cold", rf"^cold.*ratio {_NUM}", "<= 2"),
+        ("lint / C-loader parse, cold", rf"^cold.*ratio {_NUM}", "none (dropped)"),
     ],
     "bench_review.py": [
         ("review: closed cases generated", rf"^cases: {_NUM}", "10,000"),
         ("review first run / json parse", rf"^review, first run.*ratio {_NUM}x", "<= 2"),
-        ("review second run, s", rf"^review, second run.*: {_NUM} s", "< 0.5 s"),
-        ("review --json second run, whole process, s", rf"whole process: {_NUM} s", ""),
+        ("review second run in-process (index only), s", rf"^review, second run.*: {_NUM} s",
+         ""),
+        ("review --json second run, whole process, s", rf"whole process: {_NUM} s", "< 0.5 s"),
+        ("  the same, CPU s", rf"whole process: .*CPU {_NUM} s;", ""),
+        ("  bare 'python -c pass', s", rf"python -c pass': {_NUM} s", ""),
+    ],
+    "bench_walk_step.py": [
+        ("walk step, key to next check, p95 ms", rf"^95th percentile: {_NUM} ms", "< 50 ms"),
+        ("walk step, median ms", rf"^median: {_NUM} ms", ""),
+        ("pilot floor (unbound key), median ms", rf"harness floor\): median {_NUM} ms", ""),
     ],
     "bench_expect.py": [
         ("slowest expect(), ms", rf"^slowest expect\(\): {_NUM} ms", "well under 100 ms"),

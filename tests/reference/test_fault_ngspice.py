@@ -13,8 +13,6 @@ that both readings fall in the same outcome class of the healthy band.
 
 from __future__ import annotations
 
-import re
-
 import pytest
 
 from faultwise.expect import expect

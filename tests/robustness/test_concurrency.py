@@ -53,7 +53,7 @@ def test_race_to_open_one_case_has_one_winner_and_names_it(tmp_path):
     benches = [f"B{i}" for i in range(1, 6)]
     procs = start_all([(code, [str(folder), str(go), b]) for b in benches], go)
     outs = {b: p.communicate(timeout=60) for b, p in zip(benches, procs)}
-    for b, (out, err) in outs.items():
+    for _b, (_out, err) in outs.items():
         assert "Traceback" not in err, err
     winners = [b for b, (out, _) in outs.items() if out.strip() == "got"]
     assert len(winners) == 1, outs

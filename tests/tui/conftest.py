@@ -47,8 +47,10 @@ def make_app(workspace):
 
     def make(*, acknowledged: bool = True, settings=None):
         if settings is None:
+            # A short caution guard keeps these flows quick; test_caution_guard uses the
+            # shipped one.
             settings = Settings(None, safety_acknowledged=FIXED_NOW.isoformat()
-                                if acknowledged else None)
+                                if acknowledged else None, caution_guard_s=0.2)
         return build_app(workspace, clock=fixed_clock, settings=settings)
 
     return make

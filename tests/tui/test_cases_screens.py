@@ -88,7 +88,7 @@ async def test_case_locked_at_another_bench(make_app, workspace, cases_dir):
         async with app.run_test(size=(80, 24)) as pilot:
             await ready(pilot)
             table = app.screen.query_one("#cases")
-            assert "in use at B2" in table.get_row(f"open:{case_id}")[1].plain
+            assert "in use B2" in table.get_row(f"open:{case_id}")[1].plain
             await pilot.press("enter")
             await pilot.pause()
             assert app.screen.id == "start"
@@ -168,7 +168,7 @@ async def test_viewer_shows_closed_case_step_by_step(make_app, workspace, cases_
     async with app.run_test(size=(80, 24)) as pilot:
         await ready(pilot)
         table = app.screen.query_one("#cases")
-        assert table.get_row(f"closed:{case_id}")[1].plain == "closed: waiting-parts"
+        assert table.get_row(f"closed:{case_id}")[1].plain == "for parts"
         await pilot.press("enter")
         await pilot.pause()
         assert app.screen.id == "viewer"

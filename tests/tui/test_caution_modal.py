@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import pytest
 from conftest import FIXED_NOW, fixed_clock, read_case
-from tui_helpers import new_case
+from tui_helpers import acknowledge_cautions, new_case, wait_armed
 
 from faultwise.core.workspace import Workspace, bundled_knowledge_dir
 
@@ -69,6 +69,7 @@ async def test_buttons_stay_visible_and_the_text_scrolls(make_app, size):
             await pilot.press("pagedown")
             await pilot.pause()
             assert scroll.scroll_y > 0
+        await wait_armed(pilot)
         await pilot.press("enter")                 # Enter still acknowledges
         await pilot.pause()
         assert results == [True]
@@ -81,9 +82,7 @@ async def test_leakage_check_cautions_on_the_bundled_knowledge(cases_dir):
     app = bundled_app(cases_dir)
     async with app.run_test(size=(80, 24)) as pilot:
         await new_case(pilot, search="5 tube table", complaint="hums loudly")
-        while app.screen.id == "caution":       # the first check's own cautions
-            await pilot.press("enter")
-            await pilot.pause()
+        await acknowledge_cautions(pilot)       # the first check's own cautions
         before = set(read_case(cases_dir)["acknowledged"])
         app.screen.action_to_closing()            # palette: return the set unrepaired
         await pilot.pause()
@@ -92,6 +91,7 @@ async def test_leakage_check_cautions_on_the_bundled_knowledge(cases_dir):
         assert len(pending) >= 2 and not set(pending) & before
         ok = app.screen.query_one("#caution-ok").region
         assert ok.height > 0 and ok.bottom <= 24
+        await wait_armed(pilot)
         await pilot.press("enter")
         await pilot.pause()
         assert app.screen.id == "conclusion"

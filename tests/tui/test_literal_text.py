@@ -31,7 +31,7 @@ async def test_user_text_is_shown_as_typed(make_app, cases_dir):
         await pilot.press("1")
         await pilot.pause()
         app.focused.insert_text_at_cursor(LABEL)
-        for _ in range(6):
+        for _ in range(2):                     # label, line, then the lineup
             await pilot.press("tab")
         assert app.focused.id == "tf-tubes"
         app.focused.insert_text_at_cursor("converter=12BE6, if=12BA6, detector=12AV6, "

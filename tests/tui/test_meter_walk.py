@@ -88,8 +88,7 @@ async def test_meter_reading_recorded_with_value_unit_meter_and_time(meter_app, 
         assert app.screen.id == "caution"
         assert "wired to the computer" in str(app.screen.query_one("#caution-scroll")
                                                .query_one(".caution-text").render())
-        await pilot.press("enter")
-        await pilot.pause()
+        await acknowledge_cautions(pilot)          # after its guard time, like any caution
         await app.workers.wait_for_complete()
         await pilot.pause()
         await pilot.pause()
@@ -148,7 +147,7 @@ async def test_meter_time_out_mid_walk_loses_nothing_and_falls_back_to_typing(
         await acknowledge_cautions(pilot)
         await pilot.press("f10")
         await pilot.pause()
-        await pilot.press("enter")                               # the meter-link caution
+        await acknowledge_cautions(pilot)                        # the meter-link caution
         await pilot.pause()
         await app.workers.wait_for_complete()
         await pilot.pause()
@@ -202,7 +201,7 @@ async def test_a_unit_that_does_not_fit_is_refused(meter_app, cases_dir):
         meter_state(app.bench).meter = DialOnOhms("sigrok:test")
         await pilot.press("f10")
         await pilot.pause()
-        await pilot.press("enter")                               # the meter-link caution
+        await acknowledge_cautions(pilot)                        # the meter-link caution
         await pilot.pause()
         await app.workers.wait_for_complete()
         await pilot.pause()

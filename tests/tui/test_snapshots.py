@@ -36,7 +36,7 @@ async def _settle(pilot) -> None:
 def test_start_screen(snap_app, workspace, snap_compare):
     """Start screen: the safety strip at the top; the case table with one open case
     (20261201-B1-002, selected first), one DAMAGED file (truncated) and one closed case
-    (20261201-B1-001, closed: waiting-parts), symptoms by title ('Loud hum'); the detail
+    (20261201-B1-001, for parts), symptoms by title ('Loud hum'); the detail
     line of the selected open case;
     the footer with ⏎ Open, n New case, v View, r Review, f9 Safety, ? Help, ^q Quit."""
     make_cases(workspace)
@@ -78,8 +78,8 @@ def test_walk_guidance_closed(snap_app, snap_compare):
 def test_conclusion_screen(snap_app, snap_compare):
     """Conclusion screen after the capacitor was cleared and 'B+ comes back': the SUPPLY box
     '✗ FAULTY'; the title '✗ FAULT  Weak rectifier tube (supply)'; the repair step 'Replace
-    the rectifier tube.' and 'Parts: 35W4 rectifier tube'; the parts field filled with
-    '35W4 rectifier tube'; the history of the four answers below, numbered 1 to 4."""
+    the rectifier tube.' and 'Parts: 35W4 rectifier tube'; the suggestion 'Suggested: 35W4 rectifier
+    tube (ctrl+t puts it in the field)' above an empty parts field; the history of the four answers below, numbered 1 to 4."""
     async def run_before(pilot):
         await _walk_to_suspects(False)(pilot)
         await pilot.press("2")          # capacitor: no change -> next suspect

@@ -134,8 +134,12 @@ async def test_complaint_to_close(make_app, cases_dir, bands):
         assert data["conclusion"]["fault"] == "supply.weak-rectifier"
         assert "Weak rectifier tube" in str(app.screen.query_one("#conclusion-title").render())
 
-        # Parts: the fault's parts are offered; Enter records them and starts verification.
+        # Parts: the fault's parts are suggested beside the field; ctrl+t picks them and
+        # Enter records them and starts verification.
         assert app.focused.id == "parts"
+        assert app.focused.value == ""
+        assert "35W4 rectifier tube" in str(app.screen.query_one("#parts-suggested").render())
+        await pilot.press("ctrl+t")
         assert app.focused.value == "35W4 rectifier tube"
         await pilot.press("enter")
         await pilot.pause()
@@ -172,7 +176,7 @@ async def test_complaint_to_close(make_app, cases_dir, bands):
         assert not (cases_dir / f"{CASE_ID}.lock").exists()      # the lock is released
         await ready(pilot)
         table = app.screen.query_one("#cases")
-        assert table.get_row(f"closed:{CASE_ID}")[1].plain == "closed: repaired"
+        assert table.get_row(f"closed:{CASE_ID}")[1].plain == "repaired"
 
 
 async def test_off_graph_finding_then_close(make_app, cases_dir):

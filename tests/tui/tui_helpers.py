@@ -50,9 +50,19 @@ async def acknowledge_cautions(pilot: Pilot) -> int:
     shown = 0
     while pilot.app.screen.id == "caution":
         shown += 1
+        await wait_armed(pilot)
         await pilot.press("enter")
         await pilot.pause()
     return shown
+
+
+async def wait_armed(pilot: Pilot) -> None:
+    """Wait out the caution dialog's guard time (keys are ignored until then)."""
+    for _ in range(200):
+        screen = pilot.app.screen
+        if screen.id != "caution" or screen.armed:
+            return
+        await pilot.pause(0.05)
 
 
 

@@ -31,7 +31,8 @@ def open_walk(bench: Bench, case_id: str):
 
     case = bench.store.open(case_id)
     try:
-        walk = walk_from_case(bench.knowledge, case.data, clock=bench.clock)
+        walk = walk_from_case(bench.knowledge, case.data, clock=bench.clock,
+                              knowledge_dir=bench.workspace.knowledge_dir)
     except BaseException:
         case.close()
         raise
@@ -167,6 +168,8 @@ class CaseScreen(Screen):
 
         pending = [c for c in prompt.cautions if c.id in prompt.unacknowledged]
         self._asking_cautions = True
+        shown = self.bench.now_iso()
+        modal = CautionScreen(pending, guard_s=self.bench.settings.caution_guard_s)
 
         def done(ok: bool | None) -> None:
             self._asking_cautions = False
@@ -176,11 +179,76 @@ class CaseScreen(Screen):
 
             def acknowledge_all() -> None:
                 for caution in pending:
-                    self.walk.acknowledge(caution.id)
+                    self.walk.acknowledge(caution.id, shown=shown, read_s=modal.read_s)
 
             self.change(acknowledge_all)
 
-        self.app.push_screen(CautionScreen(pending), done)
+        self.app.push_screen(modal, done)
+        return True
+
+    # ------------------------------------------------------------------ focus
+
+    def current_field(self):
+        """The Input the current step needs, or None (subclasses say which)."""
+        return None
+
+    def focus_field(self) -> None:
+        """Give the focus back to the field the current step needs (only while this screen
+        is the one shown: a resume can come after the screen was switched away)."""
+        from textual.css.query import NoMatches
+
+        if not self.is_attached or self.app.screen is not self:
+            return
+        try:
+            field = self.current_field()
+        except NoMatches:
+            return
+        if field is not None:
+            field.focus()
+
+    def on_screen_resume(self) -> None:
+        """Every dialog (caution, note, skip, sheet, why, save failed) returns the focus to
+        the field the current step needs, so typed digits are never lost."""
+        self.focus_field()
+        self.call_after_refresh(self.focus_field)
+
+    def on_key(self, event) -> None:
+        """A printable key while no field has the focus goes into the step's field (a key
+        typed while a dialog was closing would otherwise go nowhere)."""
+        from textual.widgets import Input
+
+        if not event.is_printable or isinstance(self.focused, Input):
+            return
+        if self.type_into_field(event.character or ""):
+            event.stop()
+            event.prevent_default()
+
+    def type_into_field(self, text: str) -> bool:
+        """Put ``text`` into the current step's field (focusing it); False when none."""
+        from textual.css.query import NoMatches
+
+        try:
+            field = self.current_field() if self.is_attached else None
+        except NoMatches:
+            field = None
+        if field is None:
+            return False
+        field.focus()
+        field.insert_text_at_cursor(text)
+        return True
+
+    def submit_field(self) -> bool:
+        """Enter on the current step's field, for a key that reached a closing dialog."""
+        from textual.css.query import NoMatches
+
+        try:
+            field = self.current_field() if self.is_attached else None
+        except NoMatches:
+            field = None
+        if field is None:
+            return False
+        field.focus()
+        field.action_submit()
         return True
 
     # ------------------------------------------------------------------ leaving

@@ -12,7 +12,7 @@ from __future__ import annotations
 from textual import on
 from textual.app import ComposeResult, SystemCommand
 from textual.binding import Binding
-from textual.containers import Vertical, VerticalScroll
+from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.content import Content
 from textual.validation import Integer
 from textual.widgets import Footer, Header, Input, Static
@@ -24,6 +24,7 @@ from faultwise.tui.widgets.check_panel import CheckPanel
 from faultwise.tui.widgets.history import History
 from faultwise.tui.widgets.stage_map import StageMap
 from faultwise.tui.wording import printable
+from faultwise.walk.stages import walk_stage_states
 
 OUTCOME_CHOICES = (("repaired", "repaired"), ("returned-unrepaired", "returned unrepaired"),
                    ("waiting-parts", "waiting for parts"))
@@ -73,6 +74,8 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         Binding("f8", "resume", "Not cured", tooltip="Resume the diagnosis", priority=True),
         Binding("f9", "to_closing", "Unrepaired", tooltip="Return the set unrepaired",
                 priority=True),
+        Binding("ctrl+t", "take_parts", "Pick", tooltip="Put the suggested parts "
+                "in the field", priority=True),
         Binding("pagedown", "scroll_steps(4)", "More steps", show=False, priority=True),
         Binding("pageup", "scroll_steps(-4)", "Steps back", show=False, priority=True),
         *MeterKeys.BINDINGS,
@@ -96,9 +99,9 @@ class ConclusionScreen(MeterKeys, CaseScreen):
                 yield Static("Parts replaced, separated by commas (empty if none); Enter "
                              "records them and starts the verify checks.",
                              classes="form-label")
-                yield BenchInput(id="parts", compact=True,
-                                 placeholder="parts, e.g. 50 uF 160 V electrolytic, 35W4 "
-                                             "(empty: none)")
+                yield Static("", id="parts-suggested")
+                yield BenchInput(id="parts", compact=True, select_on_focus=False,
+                                 placeholder="type the parts you fitted (empty: none)")
                 yield Static("", id="parts-error", classes="field-error")
             yield CheckPanel(id="check")
             with Vertical(id="close-form", classes="form-block"):
@@ -106,12 +109,19 @@ class ConclusionScreen(MeterKeys, CaseScreen):
                 yield Static(Content("\n").join(
                     Content.from_markup("[b reverse] $n [/]  $label", n=str(i), label=label)
                     for i, (_, label) in enumerate(OUTCOME_CHOICES, 1)), id="close-choices")
-                yield BenchInput(id="close-outcome", compact=True,
-                                 placeholder="outcome: 1, 2 or 3")
-                yield BenchInput(id="close-minutes", compact=True, placeholder="minutes spent",
-                                 type="integer", validate_on=["changed", "submitted"],
-                                 validators=[Integer(minimum=0,
-                                                     failure_description=MINUTES_RULE)])
+                # Each field has its label on its row: the minutes' real default must not
+                # pass for an outcome typed or offered.
+                with Horizontal(classes="field-row close-row"):
+                    yield Static("Outcome", classes="field-name")
+                    yield BenchInput(id="close-outcome", compact=True,
+                                     placeholder="type 1, 2 or 3")
+                with Horizontal(classes="field-row close-row"):
+                    yield Static("Minutes spent", classes="field-name")
+                    yield BenchInput(id="close-minutes", compact=True,
+                                     placeholder="type the minutes spent",
+                                     type="integer", validate_on=["changed", "submitted"],
+                                     validators=[Integer(minimum=0,
+                                                         failure_description=MINUTES_RULE)])
                 yield Static("", id="close-error", classes="field-error")
             yield History(id="history")
         yield Footer(show_command_palette=False, compact=True)
@@ -129,9 +139,7 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         fault = self.walk.conclusion
         finding = self.walk.off_graph_finding
         stage = fault.stage if fault else None
-        from faultwise.tui.screens.walk import map_states
-
-        self.query_one(StageMap).show(map_states(self.walk), prompt.stage or stage)
+        self.query_one(StageMap).show(walk_stage_states(self.walk), prompt.stage or stage)
         self.query_one(History).show(self.walk.events, self.walk.steps, self.walk.knowledge)
         title = self.query_one("#conclusion-title", Static)
         steps = self.query_one("#repair-steps", Static)
@@ -164,10 +172,13 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         if prompt.kind == "repair":
             if self.ask_cautions(prompt):
                 return
-            box = self.query_one("#parts", Input)
-            if not box.value and fault is not None:
-                box.value = ", ".join(fault.parts)
-            box.focus()
+            # The knowledge's suggestion is shown beside the field, never put in it: the
+            # case records only what the technician typed or picked (ctrl+t).
+            suggested = ", ".join(fault.parts) if fault is not None else ""
+            self.query_one("#parts-suggested", Static).update(Content.from_markup(
+                "[dim]Suggested:[/dim] $p  [dim](ctrl+t puts it in the field)[/dim]",
+                p=suggested) if suggested else "")
+            self.query_one("#parts", Input).focus()
         elif prompt.kind == "check":
             if self.ask_cautions(prompt):
                 self.query_one(CheckPanel).display = False
@@ -193,6 +204,16 @@ class ConclusionScreen(MeterKeys, CaseScreen):
     def elapsed_minutes(self) -> int:
         """Whole minutes since the case was opened, at least 1 (the tech may correct it)."""
         return whole_minutes_since(self.case.data.get("opened"), self.bench.clock())
+
+    def current_field(self):
+        if self.query_one("#parts-form").display:
+            return self.query_one("#parts", Input)
+        panel = self.query_one(CheckPanel)
+        if panel.display:
+            return panel.input
+        if self.query_one("#close-form").display:
+            return self.query_one("#close-minutes" if self.outcome else "#close-outcome", Input)
+        return None
 
     # ------------------------------------------------------------------ input
 
@@ -222,6 +243,9 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         from faultwise.walk.state import resolve_choice
 
         error = self.query_one("#close-error", Static)
+        if not str(text or "").strip():
+            error.update("No outcome chosen yet: type 1, 2 or 3 (the field is empty).")
+            return
         try:
             outcome = resolve_choice(text, OUTCOME_CHOICES)
         except FaultwiseError as exc:
@@ -303,7 +327,20 @@ class ConclusionScreen(MeterKeys, CaseScreen):
                 "repair", "verify", "closing")
         if action == "to_closing":
             return self.walk.phase in ("repair", "verify")
+        if action == "take_parts":
+            fault = self.walk.conclusion
+            return self.walk.phase == "repair" and fault is not None and bool(fault.parts)
         return super().check_action(action, parameters)
+
+    def action_take_parts(self) -> None:
+        """Pick the knowledge's suggested parts: they replace the field's text, to be edited."""
+        fault = self.walk.conclusion
+        if fault is None or not fault.parts:
+            return
+        box = self.query_one("#parts", Input)
+        box.value = ", ".join(fault.parts)
+        box.cursor_position = len(box.value)
+        box.focus()
 
     def action_resume(self) -> None:
         self.change(self.walk.resume_diagnosis)

@@ -40,8 +40,9 @@ class LibrarySet:
 
 def tube_table_dir(bench: Bench) -> Path | None:
     """The knowledge folder when it carries its own tube table, else None (the bundled one)."""
-    kdir = bench.workspace.knowledge_dir
-    return kdir if (kdir / "tubes.yaml").is_file() else None
+    from faultwise.profile.tubes import workspace_tube_dir
+
+    return workspace_tube_dir(bench.workspace.knowledge_dir)
 
 
 def read_library(bench: Bench) -> list[LibrarySet]:
@@ -67,8 +68,14 @@ def rank_sets(query: str, sets: list[LibrarySet]) -> list[LibrarySet]:
         return sorted(sets, key=lambda s: s.label.casefold())
     from rapidfuzz import fuzz, process, utils
 
-    found = process.extract(query, [s.search_text for s in sets], scorer=fuzz.WRatio,
+    texts = [s.search_text for s in sets]
+    found = process.extract(query, texts, scorer=fuzz.WRatio,
                             processor=utils.default_process, limit=None, score_cutoff=40)
+    # WRatio ties often on short words ('6.3 V console' scored the 230 V set as high as the
+    # 6.3 V console): the whole words in common break the tie, then the file order.
+    tie = {index: fuzz.token_set_ratio(query, texts[index], processor=utils.default_process)
+           for _, _, index in found}
+    found = sorted(found, key=lambda hit: (-hit[1], -tie[hit[2]], hit[2]))
     return [sets[index] for _, _, index in found]
 
 
@@ -293,6 +300,7 @@ class NewCaseScreen(Screen):
     def action_start(self) -> None:
         """Create the case file and start the walk (nothing is written on a refusal)."""
         from faultwise.core.errors import FaultwiseError
+        from faultwise.expect.expected import expect_in_workspace
         from faultwise.walk.state import Walk
 
         complaint = self.query_one("#complaint", Input).value.strip()
@@ -311,7 +319,9 @@ class NewCaseScreen(Screen):
         profile = self.chosen_set.profile
         knowledge = self.bench.knowledge
         try:
-            walk = Walk(knowledge, profile, self.chosen_symptom, clock=self.bench.clock)
+            expectations = expect_in_workspace(profile, self.bench.workspace.knowledge_dir)
+            walk = Walk(knowledge, profile, self.chosen_symptom, expectations=expectations,
+                        clock=self.bench.clock)
             case = self.bench.store.new_case(
                 profile, self.chosen_set.path.name, complaint, self.chosen_symptom,
                 customer=self.query_one("#customer", Input).value.strip(),

@@ -18,6 +18,7 @@ from textual.containers import VerticalScroll
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, ProgressBar, Static
 
+from faultwise.report.job import num, pct
 from faultwise.tui.wording import printable
 
 
@@ -39,14 +40,6 @@ def block_bar(fraction: float, width: int) -> str:
     return text.ljust(width)
 
 
-def _pct(x) -> str:
-    return "-" if x is None else f"{100 * x:.0f}%"
-
-
-def _num(x) -> str:
-    return "-" if x is None else f"{x:.1f}"
-
-
 def _clip(text: str, width: int) -> str:
     """``text`` cut to ``width`` cells with an ellipsis."""
     return text if len(text) <= width else text[: max(1, width - 1)] + "\u2026"
@@ -58,7 +51,7 @@ def share_chart(pair, width: int = 30, label_width: int = 38) -> str:
     for f in pair.faults:
         share = f.smoothed if f.smoothed is not None else f.raw
         label = _clip(f.title, label_width)
-        lines.append(f"{label:<{label_width}} {block_bar(share, width)} {_pct(share):>4}  "
+        lines.append(f"{label:<{label_width}} {block_bar(share, width)} {pct(share):>4}  "
                      f"({f.count})")
     return "\n".join(lines) or "No faults for this pair."
 
@@ -207,9 +200,9 @@ class ReviewScreen(Screen):
             key = f"{p.symptom}|{p.family}"
             self._pairs[key] = p
             pairs.add_row(cell(self._symptom_title(p.symptom)), cell(p.family), str(p.cases),
-                          _num(p.mean_checks),
-                          _num(p.mean_minutes), _num(p.current_minutes), _num(p.data_minutes),
-                          _num(p.saving_minutes), key=key)
+                          num(p.mean_checks),
+                          num(p.mean_minutes), num(p.current_minutes), num(p.data_minutes),
+                          num(p.saving_minutes), key=key)
         self._show_pair(review.pairs[0] if review.pairs else None)
         skipped = self.query_one("#review-skipped", DataTable)
         skipped.clear()
@@ -247,12 +240,12 @@ class ReviewScreen(Screen):
         shares.update(printable(f"{pair.symptom} / {pair.family}{named}: fault shares, "
                                 "smoothed (raw count)\n" + share_chart(pair, bar, label)))
         for f in pair.faults:
-            faults.add_row(cell(f.title), str(f.count), _pct(f.raw), _pct(f.prior),
-                           _pct(f.smoothed), key=f.fault)
+            faults.add_row(cell(f.title), str(f.count), pct(f.raw), pct(f.prior),
+                           pct(f.smoothed), key=f.fault)
         lines = []
         if pair.saving_minutes is not None:
-            lines.append(f"Expected minutes: current order {_num(pair.current_minutes)}, data "
-                         f"order {_num(pair.data_minutes)}: saves {_num(pair.saving_minutes)} "
+            lines.append(f"Expected minutes: current order {num(pair.current_minutes)}, data "
+                         f"order {num(pair.data_minutes)}: saves {num(pair.saving_minutes)} "
                          "min per job")
         for o in pair.orders:
             if o.current != o.data:

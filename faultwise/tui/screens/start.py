@@ -29,6 +29,40 @@ def shown_path(path: Path) -> str:
         return str(path)
 
 
+def short_labels(labels) -> dict[str, str]:
+    """Each set label without what every label shown shares at its start: the part up to
+    the last ': ' ('Demo bench set: 5-tube table set' -> '5-tube table set'), and the
+    words all labels begin with ('Demo 5-tube ...', 'Demo 6-tube ...' -> '5-tube ...').
+    The full label stays in the detail line."""
+    labels = [str(x or "") for x in labels]
+    out = {x: x.rpartition(": ")[2] or x for x in labels}
+    distinct = sorted(set(out.values()))
+    if len(distinct) > 1:
+        words = [v.split(" ") for v in distinct]
+        common = 0
+        while all(len(w) > common + 1 for w in words) and \
+                len({w[common] for w in words}) == 1:
+            common += 1
+        if common:
+            out = {k: " ".join(v.split(" ")[common:]) for k, v in out.items()}
+    return out
+
+
+STATE_WORDS = {"repaired": "repaired", "returned-unrepaired": "unrepaired",
+               "waiting-parts": "for parts"}
+FIXED_COLUMNS = {"case": 15, "state": 10}
+SET_MIN = 12
+
+
+def column_widths(width: int, set_len: int, symptom_len: int) -> dict[str, int]:
+    """Widths for the four columns in a table ``width`` cells wide (scrollbar and one cell
+    of padding each side of every column left aside): the symptom in full while the set
+    keeps at least SET_MIN cells, the (short) set label the rest, cut only when it must be."""
+    room = max(2 * SET_MIN, width - 2 - 2 * 4 - sum(FIXED_COLUMNS.values()))
+    symptom = min(symptom_len, room - SET_MIN)
+    return {**FIXED_COLUMNS, "set": room - symptom, "symptom": symptom}
+
+
 def _when(iso: str | None) -> str:
     """``2026-12-01T09:30:00+00:00`` -> ``2026-12-01 09:30``."""
     return (iso or "")[:16].replace("T", " ")
@@ -65,12 +99,19 @@ class StartScreen(Screen):
 
     def on_mount(self) -> None:
         table = self.query_one(DataTable)
-        table.add_column("Case", key="case", width=15)
-        table.add_column("State", key="state", width=20)
-        table.add_column("Set", key="set", width=24)
-        table.add_column("Symptom", key="symptom")
+        self._columns(table, column_widths(self.app.size.width, 24, 22))
         table.focus()
         self.call_after_refresh(self.refresh_cases)
+
+    def _columns(self, table: DataTable, widths: dict[str, int]) -> None:
+        table.clear(columns=True)
+        for key, title in (("case", "Case"), ("state", "State"), ("set", "Set"),
+                           ("symptom", "Symptom")):
+            table.add_column(title, key=key, width=widths[key])
+
+    def on_resize(self) -> None:
+        if self.listing is not None:
+            self._show_listing(self.listing)
 
     # listing --------------------------------------------------------------------------
 
@@ -95,17 +136,25 @@ class StartScreen(Screen):
         table = self.query_one(DataTable)
         chosen = self.selected()
         was = f"{chosen[0]}:{getattr(chosen[1], 'id', None) or chosen[1].path}" if chosen else None
-        table.clear()
         self._rows.clear()
         closed = sorted(listing.closed, key=lambda s: s.updated or "", reverse=True)
-        for s in sorted(listing.open, key=lambda s: s.updated or "", reverse=True):
-            state = "open" if s.locked_by is None else f"open (in use at {s.locked_by.bench})"
-            self._add(table, "open", s, (s.id, state, s.set_label, self.symptom_title(s.symptom)))
+        opened = sorted(listing.open, key=lambda s: s.updated or "", reverse=True)
+        shown = opened + closed[:RECENT_CLOSED]
+        short = short_labels(s.set_label for s in shown)
+        longest = max((len(short[s.set_label]) for s in shown), default=0)
+        longest = max([longest] + [len(d.reason) for d in listing.damaged])
+        symptoms = max((len(self.symptom_title(s.symptom)) for s in shown), default=0)
+        self._columns(table, column_widths(self.size.width or self.app.size.width, longest,
+                                           symptoms))
+        for s in opened:
+            state = "open" if s.locked_by is None else f"in use {s.locked_by.bench}"
+            self._add(table, "open", s, (s.id, state, short[s.set_label],
+                                         self.symptom_title(s.symptom)))
         for d in listing.damaged:
             self._add(table, "damaged", d, (d.path.stem, "DAMAGED", d.reason, ""))
         for s in closed[:RECENT_CLOSED]:
-            state = f"closed: {s.outcome or '-'}"
-            self._add(table, "closed", s, (s.id, state, s.set_label,
+            state = STATE_WORDS.get(s.outcome or "", s.outcome or "closed")
+            self._add(table, "closed", s, (s.id, state, short[s.set_label],
                                            self.symptom_title(s.symptom)))
         n_open, n_closed, n_bad = len(listing.open), len(listing.closed), len(listing.damaged)
         caption = (f"Bench {self.bench.workspace.bench}: {n_open} open, {n_closed} closed"

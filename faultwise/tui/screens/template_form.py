@@ -37,34 +37,45 @@ class Field:
     example: str
 
 
-COMMON = (
-    Field("label", "Label", None, "Bench set, 5-tube table model"),
+LABEL = Field("label", "Label", None, "Bench set, 5-tube table model")
+BAND = (
     Field("band.low_khz", "Band low", "kHz", "540"),
     Field("band.high_khz", "Band high", "kHz", "1600"),
     Field("if_khz", "IF", "kHz", "455"),
     Field("gang.max_pf", "Gang max", "pF", "365"),
 )
-TUBE_FIELDS = (
-    Field("mains.volts_v", "Line", "V", "120"),
-    Field("tubes", "Tubes", "lineup", "converter=12BE6, if=12BA6, detector=12AV6, "
-          "output=50C5, rectifier=35W4"),
-    Field("supply.first_cap_uf", "1st filter", "uF", "50"),
-    Field("supply.second_cap_uf", "2nd filter", "uF", "30"),
-    Field("supply.load_ma", "B+ load", "mA", "55"),
-    Field("audio.speaker_ohm", "Speaker", "ohm", "3.2"),
-)
+# Each family's own supply fields come first (they are what sets the expected readings
+# most), with the family's typical lineup as the example: a series string whose heaters sum
+# to about the line (12.6 x 3 + 50 + 35 = 122.8 V), a transformer set of 6.3 V heaters on
+# the heater winding with a 5 V full-wave rectifier, a germanium portable.
 FIELDS = {
-    "series-string": COMMON + TUBE_FIELDS,
-    "transformer": COMMON + TUBE_FIELDS + (
+    "series-string": (
+        LABEL,
+        Field("mains.volts_v", "Line", "V", "120"),
+        Field("tubes", "Tubes", "lineup", "converter=12BE6, if=12BA6, detector=12AV6, "
+              "output=50C5, rectifier=35W4"),
+        Field("supply.surge_ohm", "Surge res.", "ohm", "22"),
+        Field("supply.first_cap_uf", "1st filter", "uF", "50"),
+        Field("supply.second_cap_uf", "2nd filter", "uF", "30"),
+        Field("supply.load_ma", "B+ load", "mA", "55"),
+    ) + BAND + (Field("audio.speaker_ohm", "Speaker", "ohm", "3.2"),),
+    "transformer": (
+        LABEL,
+        Field("mains.volts_v", "Line", "V", "120"),
         Field("heater_winding_v", "Heater wdg", "V", "6.3"),
         Field("supply.secondary_v", "HV half", "V", "250"),
-    ),
-    "transistor": COMMON + (
+        Field("tubes", "Tubes", "lineup", "converter=6BE6, if=6BA6, detector=6AV6, "
+              "output=6V6GT, rectifier=5Y3GT"),
+        Field("supply.first_cap_uf", "1st filter", "uF", "20"),
+        Field("supply.second_cap_uf", "2nd filter", "uF", "20"),
+        Field("supply.load_ma", "B+ load", "mA", "70"),
+    ) + BAND + (Field("audio.speaker_ohm", "Speaker", "ohm", "3.2"),),
+    "transistor": (
+        LABEL,
         Field("battery.volts_v", "Battery", "V", "9"),
         Field("transistors", "Stages", "lineup", "converter=germanium, if=germanium, "
               "detector=germanium, audio=germanium, output=germanium"),
-        Field("audio.speaker_ohm", "Speaker", "ohm", "8"),
-    ),
+    ) + BAND + (Field("audio.speaker_ohm", "Speaker", "ohm", "8"),),
 }
 
 
@@ -155,7 +166,7 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
                 yield Static(Content("\n").join(
                     Content.from_markup("[b reverse] $n [/]  $l", n=str(i), l=label)
                     for i, (_, label) in enumerate(FAMILY_CHOICES, 1)), id="family-choices")
-                yield BenchInput(id="tf-family", compact=True, placeholder="family: 1, 2 or 3")
+                yield BenchInput(id="tf-family", compact=True, placeholder="type 1, 2 or 3")
                 yield Static("", id="tf-family-error", classes="field-error")
             with Vertical(id="tf-foot"):
                 yield Static("", id="tf-error", classes="field-error")
@@ -203,7 +214,8 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
             unit = "" if field.unit in (None, "lineup") else f" ({field.unit})"
             rows.append(Horizontal(
                 Static(field.label + unit, classes="field-name"),
-                BenchInput(id=field_id(field.key), compact=True, placeholder=field.example),
+                BenchInput(id=field_id(field.key), compact=True,
+                           placeholder=f"e.g. {field.example}"),
                 classes="field-row"))
             error = Static("", id=field_id(field.key) + "-error", classes="field-error")
             error.display = False                 # shown only with a message

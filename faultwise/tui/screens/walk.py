@@ -18,10 +18,11 @@ from faultwise.tui.meter_keys import MeterKeys
 from faultwise.tui.screens.case_screen import CaseScreen, open_walk
 from faultwise.tui.widgets.check_panel import CheckPanel
 from faultwise.tui.widgets.history import History
-from faultwise.tui.widgets.stage_map import StageMap, StepView, stage_states
+from faultwise.tui.widgets.stage_map import StageMap
 from faultwise.tui.wording import printable
+from faultwise.walk.stages import walk_stage_states
 
-__all__ = ["WalkScreen", "open_walk", "guidance_for", "map_states"]
+__all__ = ["WalkScreen", "open_walk", "guidance_for"]
 
 
 def guidance_for(prompt, knowledge) -> Content:
@@ -45,15 +46,6 @@ def guidance_for(prompt, knowledge) -> Content:
     for caution in prompt.cautions:
         parts.append(Content.from_markup("[b]⚠ $t[/b]\n$x", t=caution.title, x=caution.text))
     return Content("\n\n").join(parts)
-
-
-def map_states(walk) -> dict[str, str]:
-    """Stage states for the map from the walk's steps and its conclusion."""
-    nodes = walk.knowledge.nodes
-    views = [StepView(stage=getattr(nodes.get(s.node), "stage", ""), outcome=s.outcome,
-                      normal=s.normal, phase=s.phase) for s in walk.steps]
-    fault = walk.conclusion
-    return stage_states(views, fault.stage if fault is not None else None)
 
 
 class WalkScreen(MeterKeys, CaseScreen):
@@ -103,7 +95,7 @@ class WalkScreen(MeterKeys, CaseScreen):
         prompt = self.walk.prompt()
         panel = self.query_one(CheckPanel)
         escalate = self.query_one("#escalate", Static)
-        self.query_one(StageMap).show(map_states(self.walk), prompt.stage)
+        self.query_one(StageMap).show(walk_stage_states(self.walk), prompt.stage)
         self.query_one(History).show(self.walk.events, self.walk.steps, self.walk.knowledge)
         self.query_one("#guidance-text", Static).update(guidance_for(prompt, self.walk.knowledge))
         context = " › ".join(f.current_label or f.title for f in prompt.context)
@@ -132,6 +124,13 @@ class WalkScreen(MeterKeys, CaseScreen):
                 t=title, w=self.readable(prompt.warning) or getattr(node, "advice", "") or ""))
             self.set_focus(None)
         self.refresh_bindings()
+
+    def current_field(self):
+        panel = self.query_one(CheckPanel)
+        prompt = self.walk.prompt()
+        if prompt is None or prompt.kind != "check" or not panel.display:
+            return None
+        return panel.input
 
     # ------------------------------------------------------------------ answering
 

@@ -88,7 +88,8 @@ class CheckPanel(Vertical):
         yield Static("", id="check-expected")
         yield Static("", id="check-choices")
         yield Static("", id="check-warning")
-        yield BenchInput(id="answer", compact=True,
+        # Not select_on_focus: coming back from a dialog, typing goes on after what was typed.
+        yield BenchInput(id="answer", compact=True, select_on_focus=False,
                          placeholder="type the reading, Enter records it")
         yield Static("", id="answer-error")
         yield Static("", id="meter-line")
@@ -119,14 +120,16 @@ class CheckPanel(Vertical):
                 "2R2).", what=exp.title, unit=exp.unit or "its unit"))
             expected_box.update(Content("\n").join(band_lines(exp)))
             choices_box.update("")
-            self.input.placeholder = f"reading, e.g. {reading_text(exp.nominal, exp.unit)}"
+            self.input.placeholder = f"type the reading in {exp.unit or 'its unit'}, then Enter"
         else:
             what = ("This set's profile gives no band for this reading: judge it and "
                     "choose." if check.is_measurement else "What do you see? Press its number.")
             self.query_one("#check-instruction", Static).update(what)
             expected_box.update("")
             choices_box.update(choice_lines(prompt.choices))
-            self.input.placeholder = "number or name of the choice"
+            from faultwise.tui.widgets.bench_input import choices_hint
+
+            self.input.placeholder = choices_hint(len(prompt.choices)) + " (or the choice's name)"
         warning = self.query_one("#check-warning", Static)
         warning.update(Content.from_markup("[b]![/b] $w", w=readable(prompt.warning, knowledge))
                        if prompt.warning else "")

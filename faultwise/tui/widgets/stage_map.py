@@ -1,24 +1,23 @@
 """The receiver as a row of stage boxes, signal path left to right, the supply beside it.
 
 Each box shows its stage's state as a symbol AND a word (never colour alone) and is
-coloured by state; the stage of the current check has a heavy border. Once the walk has
-concluded a fault, only the faulty stage stands out: stages that were suspected along the
-way but never cleared are "not needed" (the fault explains the complaint), cleared ones stay
-cleared.
+coloured by state; the stage of the current check has a heavy border. The states come from
+the domain rule :func:`faultwise.walk.stages.stage_states`, the same the printed job report
+uses: once the walk has concluded a fault, only the faulty stage stands out.
 """
 
 from __future__ import annotations
-
-from dataclasses import dataclass
-from typing import Iterable
 
 from textual.app import ComposeResult
 from textual.containers import Horizontal
 from textual.content import Content
 from textual.widgets import Static
 
-UNTESTED, SUSPECT, CLEARED, FAULTY = "untested", "suspect", "cleared", "faulty"
-NOT_NEEDED = "not-needed"
+from faultwise.walk.stages import (CLEARED, FAULTY, NOT_NEEDED, SUSPECT, UNTESTED, StepView,
+                                   stage_states)
+
+__all__ = ["BOXES", "STATE_TEXT", "StageBox", "StageMap", "StepView", "stage_states",
+           "UNTESTED", "SUSPECT", "CLEARED", "FAULTY", "NOT_NEEDED"]
 
 # (box id, label, domain stage): the speaker belongs to the audio stage in the graph.
 BOXES = (
@@ -38,35 +37,6 @@ STATE_TEXT = {
     FAULTY: "✗ FAULTY",
     NOT_NEEDED: "– no need",
 }
-
-
-@dataclass(frozen=True)
-class StepView:
-    """What the map needs of one recorded step."""
-
-    stage: str
-    outcome: str
-    normal: bool
-    phase: str = "diagnose"
-
-
-def stage_states(steps: Iterable[StepView], fault_stage: str | None) -> dict[str, str]:
-    """Stage -> state: any abnormal diagnose answer makes a stage suspect, answers that
-    were all normal clear it, a skipped check changes nothing. With a concluded fault
-    (``fault_stage``) its stage is faulty and every other suspect is not needed."""
-    states: dict[str, str] = {}
-    for step in steps:
-        if step.phase != "diagnose" or step.outcome == "skipped":
-            continue
-        if not step.normal:
-            states[step.stage] = SUSPECT
-        elif states.get(step.stage) != SUSPECT:
-            states[step.stage] = CLEARED
-    if fault_stage:
-        states = {stage: NOT_NEEDED if state == SUSPECT else state
-                  for stage, state in states.items()}
-        states[fault_stage] = FAULTY
-    return states
 
 
 class StageBox(Static):

@@ -1,0 +1,58 @@
+"""What a walk says of each stage of the receiver: the one rule for the bench map and the report.
+
+A stage is ``suspect`` once any diagnose answer there was abnormal, and stays suspect even
+if a later check there reads normal (that normal answer clears a suspect part, not the
+stage); it is ``cleared`` when every answer there was normal. A skipped check says nothing
+of its stage; verify and closing answers do not count. Once a fault is concluded its stage
+is ``faulty`` and every other suspect stage is ``not-needed`` (the fault explains the
+complaint); cleared stages stay cleared. A stage without answers is ``untested`` (absent
+from the mapping).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Iterable
+
+__all__ = ["UNTESTED", "SUSPECT", "CLEARED", "FAULTY", "NOT_NEEDED", "STAGE_STATES",
+           "StepView", "stage_states", "walk_stage_states"]
+
+UNTESTED, SUSPECT, CLEARED, FAULTY = "untested", "suspect", "cleared", "faulty"
+NOT_NEEDED = "not-needed"
+STAGE_STATES = (UNTESTED, SUSPECT, CLEARED, FAULTY, NOT_NEEDED)
+
+
+@dataclass(frozen=True)
+class StepView:
+    """What the rule needs of one recorded step."""
+
+    stage: str
+    outcome: str
+    normal: bool
+    phase: str = "diagnose"
+
+
+def stage_states(steps: Iterable[StepView], fault_stage: str | None) -> dict[str, str]:
+    """Stage -> state by the rule in the module doc (``fault_stage``: the conclusion's)."""
+    states: dict[str, str] = {}
+    for step in steps:
+        if step.phase != "diagnose" or step.outcome == "skipped" or not step.stage:
+            continue
+        if not step.normal:
+            states[step.stage] = SUSPECT
+        elif states.get(step.stage) != SUSPECT:
+            states[step.stage] = CLEARED
+    if fault_stage:
+        states = {stage: NOT_NEEDED if state == SUSPECT else state
+                  for stage, state in states.items()}
+        states[fault_stage] = FAULTY
+    return states
+
+
+def walk_stage_states(walk) -> dict[str, str]:
+    """Stage states of a live :class:`faultwise.walk.state.Walk` (its steps and conclusion)."""
+    nodes = walk.knowledge.nodes
+    views = [StepView(stage=getattr(nodes.get(s.node), "stage", ""), outcome=s.outcome,
+                      normal=s.normal, phase=s.phase) for s in walk.steps]
+    fault = walk.conclusion
+    return stage_states(views, fault.stage if fault is not None else None)
