@@ -22,8 +22,9 @@ Targets (``<role>`` is a tube or transistor role of the profile, e.g. ``output``
 ==============================  ==================  =============================================
 target                          changes             what it is
 ==============================  ==================  =============================================
-supply.first_cap_uf             xK open short       first filter (reservoir) capacitor
-supply.second_cap_uf            xK open short       second filter capacitor (or a B+ bypass
+supply.first_cap_uf             xK open short leaky first filter (reservoir) capacitor (leaky:
+                                                    :data:`LEAKY_CAP_MA` more load)
+supply.second_cap_uf            xK open short leaky second filter capacitor (or a B+ bypass
                                                     across it, which is the same node)
 supply.surge_ohm                xK open             surge resistor (and winding resistance)
 supply.filter_ohm               xK open short       filter resistor between the capacitors
@@ -44,7 +45,7 @@ tube.<role>.cathode_ohm         xK open short       a stage's cathode resistor
 tube.<role>.grid                leaky               the control grid pulled positive by a leaky
                                                     coupling capacitor (:data:`LEAKY_GRID_V`)
 output.primary                  open short          output transformer primary
-speaker.voice_coil              open                voice coil
+speaker.voice_coil              open short          voice coil
 battery_v                       xK                  battery voltage (a flat battery: x0.7)
 battery                         open leaky          the battery circuit is broken: contacts,
                                                     snap lead, switch, a cracked track; leaky:
@@ -67,6 +68,9 @@ signal.<stage>                  open xK             the signal path broken (or i
                                                     at antenna, converter, if, detector or audio
 avc                             open xK             the AVC line (open: no AVC voltage)
 if.peak                         xK                  the IF strip's peak moved (misaligned)
+tuning.low, tuning.high         xK                  the station received at the low (padder,
+                                                    oscillator coil core) or high (trimmer)
+                                                    alignment mark moved by K
 ==============================  ==================  =============================================
 
 What the calc model does with them is in :mod:`faultwise.expect.fault_physics`. A model naming a
@@ -88,6 +92,9 @@ LEAKY_GRID_V = 2.0
 """Grid of an output tube fed through a leaky coupling capacitor: the first audio plate's tens
 of volts divided by the capacitor's leakage (some megohms) and the grid resistor (under a
 megohm) put a volt or a few positive on the grid (common practice, no source)."""
+LEAKY_CAP_MA = 15.0
+"""A filter electrolytic leaky enough to run warm on a line set: some watts at 100-300 V is
+about 10-20 mA of leakage (common practice, no source)."""
 LEAKY_SUPPLY_MA = 30.0
 """A supply electrolytic leaky enough to run warm: a quarter watt or so at 9 V, about 30 mA
 (common practice, no source)."""
@@ -101,8 +108,8 @@ COILS = ("antenna", "if", "oscillator")
 
 #: target pattern -> changes it takes. ``<tube>``/``<transistor>`` match a role name.
 TARGETS: dict[str, tuple[str, ...]] = {
-    "supply.first_cap_uf": ("scale", "open", "short"),
-    "supply.second_cap_uf": ("scale", "open", "short"),
+    "supply.first_cap_uf": ("scale", "open", "short", "leaky"),
+    "supply.second_cap_uf": ("scale", "open", "short", "leaky"),
     "supply.surge_ohm": ("scale", "open"),
     "supply.filter_ohm": ("scale", "open", "short"),
     "supply.secondary_v": ("scale", "open"),
@@ -118,7 +125,7 @@ TARGETS: dict[str, tuple[str, ...]] = {
     "tube.<tube>.cathode_ohm": ("scale", "open", "short"),
     "tube.<tube>.grid": ("leaky",),
     "output.primary": ("open", "short"),
-    "speaker.voice_coil": ("open",),
+    "speaker.voice_coil": ("open", "short"),
     "battery_v": ("scale",),
     "battery": ("open", "leaky"),
     "transistor.<transistor>": ("open", "short", "leaky"),
@@ -134,6 +141,8 @@ TARGETS: dict[str, tuple[str, ...]] = {
     "signal.<stage>": ("open", "scale"),
     "avc": ("open", "scale"),
     "if.peak": ("scale",),
+    "tuning.low": ("scale",),
+    "tuning.high": ("scale",),
 }
 #: which families each target can apply to (line sets have tubes, battery sets transistors).
 LINE_ONLY = ("supply.", "rectifier", "line", "heaters.", "heater.", "tube.", "output.primary")

@@ -40,7 +40,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
 
 from faultwise.expect.expected import Expected
-from faultwise.expect.fault_models import (LEAKY_ICBO_MA, LEAKY_SUPPLY_MA, OPEN_OHM, SHORT_OHM, STAGE_PARTS, Change,
+from faultwise.expect.fault_models import (LEAKY_CAP_MA, LEAKY_ICBO_MA, LEAKY_SUPPLY_MA, OPEN_OHM, SHORT_OHM, STAGE_PARTS, Change,
                                            parse_model)
 
 VCE_SAT_V = 0.2
@@ -48,6 +48,8 @@ VCE_SAT_V = 0.2
 SCREEN_OPEN_CURRENT = 0.05
 """A pentode with no screen voltage passes a few per cent of its plate current (tube curves,
 from memory)."""
+VOICE_COIL_SHORT = 0.05
+"""A shorted voice coil (burned turns, leads touching) reads a few per cent of its value."""
 OPEN_READ = 1e9
 """What a power-off resistance reading of an open winding or heater is taken to be: infinite."""
 
@@ -72,12 +74,16 @@ class State:
     cathode_scale: float = 1.0
     primary: str = ""
     voice_coil_open: bool = False
+    voice_coil_short: bool = False
+    leak_first_ma: float = 0.0         # a leaky first / second filter capacitor's current
+    leak_second_ma: float = 0.0
     battery_open: bool = False
     supply_leak: bool = False
     osc: float = 1.0
     signal: float = 1.0
     avc: float = 1.0
     if_peak: float = 1.0
+    tuning: dict = field(default_factory=dict)         # 'low'/'high' -> factor
     transistors: dict = field(default_factory=dict)    # role -> {field: Change}
     stage: dict = field(default_factory=dict)          # tube role -> {part: Change}
     pair_bias: str = ""                                # '', open, short (output.bias)
@@ -113,7 +119,10 @@ def fold(changes: tuple[Change, ...]) -> State:
         elif c.target == "output.primary":
             st.primary = kind
         elif c.target == "speaker.voice_coil":
-            st.voice_coil_open = True
+            if kind == "short":
+                st.voice_coil_short = True
+            else:
+                st.voice_coil_open = True
         elif c.target == "battery":
             if kind == "leaky":
                 st.supply_leak = True
@@ -138,6 +147,13 @@ def fold(changes: tuple[Change, ...]) -> State:
             st.avc *= 0.0 if kind == "open" else k
         elif c.target == "if.peak":
             st.if_peak *= k
+        elif head == "tuning":
+            st.tuning[p[1]] = st.tuning.get(p[1], 1.0) * k
+        elif head == "supply" and kind == "leaky":
+            if p[1] == "first_cap_uf":
+                st.leak_first_ma += LEAKY_CAP_MA
+            else:
+                st.leak_second_ma += LEAKY_CAP_MA
         elif head == "supply":
             fld = p[1]
             if fld == "first_cap_uf" and kind == "short":
@@ -266,12 +282,20 @@ def inject(profile, model: Mapping, healthy: Mapping[str, Expected], *,
     sig = st.signal * (1.0 if st.osc > 0 else 0.0) * st.avc * values.pop("_gain", 1.0)
     if "detector.avc_v" in healthy:
         values["detector.avc_v"] = healthy["detector.avc_v"].nominal * sig
+    for end, k in st.tuning.items():
+        name = f"tuning.align_{end}_khz"
+        if name in healthy:
+            values[name] = healthy[name].nominal * k
     if "if.peak_khz" in healthy and st.if_peak != 1.0:
         values["if.peak_khz"] = healthy["if.peak_khz"].nominal * st.if_peak
     if "oscillator.emitter_shift_v" in healthy:
         conv = values.pop("_converter_on", 1.0)
         values["oscillator.emitter_shift_v"] = healthy["oscillator.emitter_shift_v"].nominal * \
             min(st.osc, 1.5) * conv
+    if st.voice_coil_short:
+        for name in ("output.voice_coil_ohm", "output.reflected_ohm"):
+            if name in healthy:
+                values[name] = healthy[name].nominal * VOICE_COIL_SHORT
     if st.voice_coil_open:
         for name in ("output.voice_coil_ohm", "output.reflected_ohm"):
             if name in healthy:

@@ -133,8 +133,9 @@ def pair_readings(profile, st, healthy, table, vcc: float) -> tuple[dict[str, fl
     if "emitter_ohm" in values and math.isinf(values["emitter_ohm"]):
         values["emitter_ohm"] = OPEN_OHM
     me = ch.get("self")
-    if me is not None and me.kind == "open":
-        values["emitter_ohm"] = OPEN_OHM
+    coll = ch.get("collector_ohm")
+    if (me is not None and me.kind == "open") or (coll is not None and coll.kind == "open"):
+        values["emitter_ohm"] = OPEN_OHM      # no collector current (the pair, or its primary)
     if st.pair_bias == "open":
         values["load_ohm" if comp else "top_ohm"] = math.inf
     elif st.pair_bias == "short":

@@ -90,6 +90,8 @@ def simulate_faulty(profile, st, table, *, tubes_hot: bool) -> dict[str, float]:
     fload = s.filter_load_ma * st.profile_scale.get("filter_load_ma", 1.0)
     if not tubes_hot:
         load, fload = 2 * BLEED_MA, BLEED_MA
+    load += st.leak_first_ma + st.leak_second_ma      # a leaky capacitor draws hot or cold
+    fload += st.leak_second_ma
     if st.filter_open:
         res = r.simulate(_circuit(profile, st, table, load_ma=max(load - fload, BLEED_MA),
                                   filter_load_ma=0.0))
