@@ -177,7 +177,7 @@ def test_summary_of_mutated_case_never_crashes(data):
 def test_walk_rebuilt_from_mutated_case_raises_only_located_errors(data):
     """walk_from_case is what the TUI's resume and replay call: an odd type in a hand-edited
     case must come back as a WalkError/ProfileError, not a TypeError that ends the program."""
-    from faultwise.walk.state import walk_from_case
+    from faultwise.walk.scripted import walk_from_case
 
     loaded = _loaded(data)
     if loaded is not None:
