@@ -19,7 +19,7 @@ from pathlib import Path
 
 import pytest
 
-from faultwise.cases.store import dump_case
+from faultwise.cases.codec import dump_case
 from faultwise.graph.knowledge import load_knowledge
 from faultwise.shop.sweep import (RANDOM_SEED, SPEAKER_BACK, learning_check, load_demo_sets,
                                   run_sweep, walk_has_order_hook)

@@ -187,7 +187,7 @@ def replay_case(knowledge, data: Mapping, *, expectations: Mapping | None = None
 
 def replay_files(knowledge, paths: Iterable[Path], *, knowledge_dir=None) -> ReplayReport:
     """Replay every case file; damaged files are named, unreplayable cases listed, none written."""
-    from faultwise.cases.store import read_case_bytes
+    from faultwise.cases.codec import read_case_bytes
 
     results, damaged, failed = [], [], []
     for path in paths:

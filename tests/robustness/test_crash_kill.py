@@ -29,7 +29,9 @@ import pytest
 
 from rb_helpers import PY, TUI_KB, H, clock, run_script
 
-from faultwise.cases.store import CaseStore, read_case_bytes
+from faultwise.cases.store import CaseStore
+
+from faultwise.cases.codec import read_case_bytes
 from faultwise.walk.state import Walk
 from faultwise.walk.scripted import walk_from_case
 

@@ -24,7 +24,8 @@ from hypothesis import strategies as st
 
 from rb_helpers import KB_SMALL, PY, H, recorded_case
 
-from faultwise.cases.store import CaseStore, read_case_bytes
+from faultwise.cases.store import CaseStore
+from faultwise.cases.codec import read_case_bytes
 from faultwise.core.errors import DamagedCaseError, FaultwiseError
 
 EXAMPLES = 120
