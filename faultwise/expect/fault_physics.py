@@ -19,6 +19,9 @@ How each part of the set is computed:
   output tube's cathode bias and plate voltage follow from that current; the oscillator's
   grid bias and the AVC voltage scale with the supply ratio (their amplitudes follow the
   stage gain, common practice, no source).
+* The voltage chart (``stage.<role>.*``, ``bias.output.*``): the chart's own engine with the
+  model's part changes and the broken supply (:mod:`faultwise.expect.fault_physics_chart`).
+  The older ``output.cathode_v`` and ``output.plate_v`` keep the scaling below.
 * Heaters: a series string with an open element reads the whole line across the open heater
   and 0 across every other; a dead heater winding reads 0 everywhere.
 * Transistor stages: :func:`stage_point` (the divider-bias Thevenin solution of
