@@ -276,6 +276,13 @@ def applies_to(changes, profile) -> str:
         have = profile.tube(role) if kind == "tube" else profile.transistor(role)
         if have is None:
             return f"the set has no {role} {kind}"
+    for c in changes:
+        p = c.parts
+        if p[0] == "tube" and len(p) == 3 and p[2].endswith("_ohm") and c.kind == "scale":
+            from faultwise.expect.fault_physics_chart import stage_part_ohm
+
+            if not stage_part_ohm(profile, p[1], p[2]):
+                return f"the set's {p[1]} stage has no {p[2][:-4]} resistor to drift"
     if any(c.target == "output.bias" for c in changes):
         from faultwise.expect.output_pair import is_pair
 

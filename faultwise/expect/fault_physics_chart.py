@@ -48,6 +48,23 @@ def chart_context(profile, healthy, table):
     return ctx
 
 
+def stage_part_ohm(profile, role: str, part: str, table=None) -> float | None:
+    """The resistor a stage's chart uses for ``part`` (the profile's, else the family's
+    typical one); 0 or None when the stage has none (a screen fed straight from B+)."""
+    from faultwise.expect.context import Context
+    from faultwise.expect.stages import role_kind, stage_circuit, stage_operation
+
+    tube = profile.tube(role)
+    if tube is None:
+        return None
+    ctx = Context(profile, table)
+    op, _ = stage_operation(ctx, tube)
+    if op is None:
+        return None
+    circuit, _ = stage_circuit(ctx, tube, role_kind(role, op))
+    return getattr(circuit, part, None)
+
+
 def _part(change, values: dict, factors: dict, name: str) -> None:
     if change.kind == "open":
         values[name] = math.inf
