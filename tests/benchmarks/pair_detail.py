@@ -23,6 +23,8 @@ def tree(sid, depth=0, seen=()):
     if sid in seen:
         return
     node = k.nodes[sid]
+    if not isinstance(node, Suspects):
+        return
     written = [i.target for i in node.investigations]
     for rk in rank_investigations(k, sid, symptom, family):
         print("  " * depth + f"{written.index(rk.target):2d} {rk.target:45s} p={rk.p:.3f} c={rk.cost:5.1f} r={rk.ratio:.3f} own_min={rk.investigation.minutes}")
