@@ -30,7 +30,9 @@ from faultwise.profile.load import load_profile
 from faultwise.walk.rank import investigation_cost, rank_investigations
 from faultwise.shop.sweep import load_demo_sets, run_sweep
 from faultwise.shop.sweep_report import sweep_text, sweep_to_dict
-from faultwise.walk.state import Walk, auto_walk, representative_value
+from faultwise.walk.state import Walk
+from faultwise.walk.scripted import auto_walk
+from faultwise.expect.classify import representative_value
 from faultwise.core.workspace import bundled_knowledge_dir
 
 KB = Path(__file__).parent / "fixtures" / "kb_when"

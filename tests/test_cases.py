@@ -23,7 +23,8 @@ from pathlib import Path
 import helpers_walk_proc as H
 import pytest
 
-from faultwise.cases.store import CASE_KEYS, CaseStore, read_case_bytes
+from faultwise.cases.store import CaseStore
+from faultwise.cases.codec import CASE_KEYS, read_case_bytes
 from faultwise.core.errors import CaseError, CaseLockedError, DamagedCaseError
 from faultwise.walk.state import Walk
 

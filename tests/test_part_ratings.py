@@ -20,7 +20,7 @@ from faultwise.expect.expected import expect
 from faultwise.graph.knowledge import load_knowledge
 from faultwise.graph.node_text import fill, for_set
 from faultwise.profile.load import load_profile
-from faultwise.walk.state import auto_walk
+from faultwise.walk.scripted import auto_walk
 from faultwise.core.workspace import bundled_knowledge_dir
 
 KNOWLEDGE = bundled_knowledge_dir()

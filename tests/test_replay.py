@@ -152,7 +152,7 @@ def test_damaged_files_named_unchanged_and_replay_goes_on(recorded):
 
 
 def test_case_with_unknown_symptom_is_listed_not_fatal(recorded):
-    from faultwise.cases.store import dump_case
+    from faultwise.cases.codec import dump_case
 
     folder, ids = recorded
     data = CaseStore(folder, "B1").read(ids["cap"])

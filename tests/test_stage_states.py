@@ -22,7 +22,8 @@ from faultwise.profile.load import load_profile
 from faultwise.report.model import build_report
 from faultwise.walk.stages import (CLEARED, FAULTY, NOT_NEEDED, SUSPECT, StepView,
                                    stage_states, walk_stage_states)
-from faultwise.walk.state import Walk, representative_value
+from faultwise.walk.state import Walk
+from faultwise.expect.classify import representative_value
 
 TUI_KB = Path(__file__).parent / "tui" / "fixtures" / "knowledge"
 

@@ -19,12 +19,12 @@ from pathlib import Path
 
 import pytest
 
-from faultwise.cases.store import dump_case
+from faultwise.cases.codec import dump_case
 from faultwise.graph.knowledge import load_knowledge
 from faultwise.shop.sweep import (RANDOM_SEED, SPEAKER_BACK, learning_check, load_demo_sets,
                                   run_sweep, walk_has_order_hook)
 from faultwise.shop.sweep_report import failure_sentence, sweep_text, sweep_to_dict
-from faultwise.walk.state import auto_walk
+from faultwise.walk.scripted import auto_walk
 from faultwise.core.workspace import bundled_knowledge_dir
 
 FIXTURE = Path(__file__).parent / "fixtures" / "kb_sweep"

@@ -23,7 +23,8 @@ from faultwise.expect.expected import expect
 from faultwise.expect.meter import averaging_meter_reads, true_rms_meter_reads
 from faultwise.graph.knowledge import load_knowledge
 from faultwise.profile.load import load_profile
-from faultwise.walk.state import Walk, auto_answer
+from faultwise.walk.state import Walk
+from faultwise.walk.scripted import auto_answer
 from faultwise.core.workspace import bundled_knowledge_dir
 
 KNOWLEDGE = bundled_knowledge_dir()

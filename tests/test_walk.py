@@ -16,7 +16,10 @@ import helpers_walk_proc as H
 import pytest
 
 from faultwise.core.errors import InputError, WalkError
-from faultwise.walk.state import Walk, auto_walk, classify, representative_value, resolve_choice
+from faultwise.walk.state import Walk
+from faultwise.walk.scripted import auto_walk
+from faultwise.expect.classify import classify, representative_value
+from faultwise.walk.results import resolve_choice
 
 
 @pytest.fixture(scope="module")

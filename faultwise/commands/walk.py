@@ -126,7 +126,7 @@ def run(args: argparse.Namespace) -> int:
     from faultwise.graph.knowledge import load_knowledge
     from faultwise.profile.load import load_profile
     from faultwise.profile.tubes import workspace_tube_dir
-    from faultwise.walk.state import auto_walk
+    from faultwise.walk.scripted import auto_walk
     from faultwise.core.workspace import workspace_from_args
 
     ws = workspace_from_args(args)

@@ -13,3 +13,6 @@ STAGES = ("supply", "audio", "detector", "if", "oscillator", "antenna")   # expe
 # Case events (the walk writes them, the case schema checks them): the undoable ones first.
 UNDOABLE = ("answer", "skip", "parts", "off-graph", "resume", "to-closing")
 EVENT_TYPES = UNDOABLE + ("note", "acknowledge", "close", "reopen")
+
+#: the classes of a reading against its band (a measurement check's outcomes)
+MEASURE_OUTCOMES = ("normal", "low", "high", "absent")

@@ -12,7 +12,7 @@ from typing import Mapping, Union
 
 from faultwise.core.vocabulary import FAMILIES, STAGES as STAGES  # re-exported
 
-MEASURE_OUTCOMES = ("normal", "low", "high", "absent")
+from faultwise.core.vocabulary import MEASURE_OUTCOMES as MEASURE_OUTCOMES  # re-exported
 CLEARED = "cleared"          # route target: this investigation found nothing, try the next
 SPECIAL_TARGETS = (CLEARED,)
 

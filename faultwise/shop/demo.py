@@ -109,7 +109,7 @@ def _shop_weights(knowledge, symptom: str, profile) -> dict[str, float]:
 def _reading_text(expected, outcome: str, rng: random.Random) -> str:
     """What a tech would type for a reading of this class, with a meter's scatter."""
     from faultwise.core.units import format_reading
-    from faultwise.walk.state import representative_value
+    from faultwise.expect.classify import representative_value
 
     value = representative_value(expected, outcome)
     if outcome == "normal":
@@ -122,7 +122,7 @@ def _reading_text(expected, outcome: str, rng: random.Random) -> str:
 
 def _answer(walk, fault, rng: random.Random, skip_ok: bool) -> None:
     """Answer the current check as the fault's signature implies."""
-    from faultwise.walk.state import classify
+    from faultwise.expect.classify import classify
 
     prompt = walk.prompt()
     check = prompt.node

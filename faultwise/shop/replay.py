@@ -89,7 +89,8 @@ def _recorded_inputs(events: list[Mapping]) -> tuple[dict, dict]:
 
 def _give(walk, event: Mapping, readings: Mapping, observations: Mapping) -> None:
     """Give one recorded answer again to the walk's current check."""
-    from faultwise.walk.state import auto_answer, representative_value
+    from faultwise.walk.scripted import auto_answer
+    from faultwise.expect.classify import representative_value
 
     if event.get("type") == "skip":
         walk.skip(str(event.get("reason") or ""))
@@ -128,7 +129,8 @@ def replay_case(knowledge, data: Mapping, *, expectations: Mapping | None = None
     from faultwise.expect.expected import expect_in_workspace
     from faultwise.profile.load import profile_from_dict
     from faultwise.profile.tubes import workspace_tube_dir
-    from faultwise.walk.state import Walk, auto_answer
+    from faultwise.walk.state import Walk
+    from faultwise.walk.scripted import auto_answer
 
     case_id = str(data.get("id") or file)
     s = data.get("set") if isinstance(data.get("set"), dict) else {}
@@ -185,7 +187,7 @@ def replay_case(knowledge, data: Mapping, *, expectations: Mapping | None = None
 
 def replay_files(knowledge, paths: Iterable[Path], *, knowledge_dir=None) -> ReplayReport:
     """Replay every case file; damaged files are named, unreplayable cases listed, none written."""
-    from faultwise.cases.store import read_case_bytes
+    from faultwise.cases.codec import read_case_bytes
 
     results, damaged, failed = [], [], []
     for path in paths:

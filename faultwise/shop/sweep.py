@@ -278,7 +278,7 @@ def baseline_orders(knowledge, seed: int = RANDOM_SEED) -> dict[str, OrderFn]:
 
 def walk_has_order_hook() -> bool:
     """Whether ``walk.auto_walk`` takes ``order=`` (needed for the baselines)."""
-    from faultwise.walk import state as walk
+    from faultwise.walk import scripted as walk
 
     return "order" in inspect.signature(walk.auto_walk).parameters
 
@@ -309,7 +309,7 @@ def synthesise_readings(signature, expectations: Mapping) -> dict:
     A name the set has no expectation for keeps its class word (the walk then takes the
     word as the outcome).
     """
-    from faultwise.walk.state import representative_value
+    from faultwise.expect.classify import representative_value
 
     out: dict = {}
     for name, spec in signature.readings.items():
@@ -375,7 +375,7 @@ def sets_for_fault(knowledge, fault_id: str, demos: Sequence[DemoSet], *,
 def walk_signature(knowledge, fault_id: str, symptom: str, demo: DemoSet, *,
                    order: OrderFn | None = None, counts: Mapping | None = None) -> SweepWalk:
     """Walk one fault's signature for one symptom on one demo set."""
-    from faultwise.walk.state import auto_walk
+    from faultwise.walk.scripted import auto_walk
 
     fault = knowledge.node(fault_id)
     readings = synthesise_readings(fault.signature, demo.expectations)

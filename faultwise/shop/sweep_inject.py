@@ -135,7 +135,7 @@ class InjectReport:
 # ------------------------------------------------------------------------------- walking
 
 def _walk(knowledge, demo, symptom, readings, observations):
-    from faultwise.walk.state import auto_walk
+    from faultwise.walk.scripted import auto_walk
 
     return auto_walk(knowledge, demo.profile, symptom, readings, observations,
                      expectations=demo.expectations)
@@ -254,7 +254,7 @@ def reachable_checks(knowledge, symptom: str, family: str) -> list[str]:
 
 def check_outcome(check: Check, fault: Fault | None, faulty: Mapping | None, healthy: Mapping) -> str:
     """The outcome a check gives on the broken set (fault None: the healthy set)."""
-    from faultwise.walk.state import classify
+    from faultwise.expect.classify import classify
 
     if check.is_measurement:
         if fault is None:

@@ -76,7 +76,8 @@ def arm(point: str, save: int) -> None:
 
 def main(folder: str, point: str, save: int, saves_per_step: int = 1) -> int:
     from faultwise.cases.store import CaseStore
-    from faultwise.walk.state import Walk, walk_from_case
+    from faultwise.walk.state import Walk
+    from faultwise.walk.scripted import walk_from_case
 
     if point != "none":
         arm(point, save)

@@ -47,7 +47,7 @@ def recorded_case(case_id: str = CASE_ID, *, upto: int | None = None, customer="
                   status_closed: bool = True) -> dict:
     """A case dict as the store writes it, walked on kb_walk with the fixture bands."""
     from faultwise.cases.store import CaseStore  # noqa: F401  (import check: module loads)
-    from faultwise.cases.store import CASE_FORMAT, ordered
+    from faultwise.cases.codec import CASE_FORMAT, ordered
     from faultwise.profile.model import profile_to_dict
     from faultwise.walk.state import Walk
 
@@ -69,7 +69,7 @@ def recorded_case(case_id: str = CASE_ID, *, upto: int | None = None, customer="
 
 
 def case_bytes(data: dict) -> bytes:
-    from faultwise.cases.store import dump_case
+    from faultwise.cases.codec import dump_case
 
     return dump_case(data)
 

@@ -29,8 +29,11 @@ import pytest
 
 from rb_helpers import PY, TUI_KB, H, clock, run_script
 
-from faultwise.cases.store import CaseStore, read_case_bytes
-from faultwise.walk.state import Walk, walk_from_case
+from faultwise.cases.store import CaseStore
+
+from faultwise.cases.codec import read_case_bytes
+from faultwise.walk.state import Walk
+from faultwise.walk.scripted import walk_from_case
 
 CHILD = str(Path(__file__).with_name("kill_child.py"))
 KILL_RUNS = int(os.environ.get("FAULTWISE_KILL_RUNS", "4"))

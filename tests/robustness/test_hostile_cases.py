@@ -25,7 +25,8 @@ import pytest
 from rb_helpers import (KB_WALK, PY, assert_one_sentence, case_bytes, json_out,
                         recorded_case, run_cli, sha, tree_hashes, write_case)
 
-from faultwise.cases.store import CaseStore, read_case_bytes
+from faultwise.cases.store import CaseStore
+from faultwise.cases.codec import read_case_bytes
 from faultwise.core.errors import CaseError, DamagedCaseError
 
 REASONS = {"empty", "truncated", "not JSON", "binary", "not a mapping", "wrong format version",

@@ -140,7 +140,7 @@ async def test_a_pasted_note_with_escapes_is_recorded_exactly_and_shown_safely(t
 async def test_viewer_shows_a_closed_hostile_case_safely(tmp_path):
     from faultwise.cases.store import CaseStore
     from faultwise.graph.knowledge import load_knowledge
-    from faultwise.walk.state import walk_from_case
+    from faultwise.walk.scripted import walk_from_case
 
     ws = _workspace(tmp_path)
     case_id = _hostile_open_case(ws)

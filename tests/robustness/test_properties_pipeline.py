@@ -24,7 +24,8 @@ from hypothesis import strategies as st
 
 from rb_helpers import KB_SMALL, PY, H, recorded_case
 
-from faultwise.cases.store import CaseStore, read_case_bytes
+from faultwise.cases.store import CaseStore
+from faultwise.cases.codec import read_case_bytes
 from faultwise.core.errors import DamagedCaseError, FaultwiseError
 
 EXAMPLES = 120
@@ -177,7 +178,7 @@ def test_summary_of_mutated_case_never_crashes(data):
 def test_walk_rebuilt_from_mutated_case_raises_only_located_errors(data):
     """walk_from_case is what the TUI's resume and replay call: an odd type in a hand-edited
     case must come back as a WalkError/ProfileError, not a TypeError that ends the program."""
-    from faultwise.walk.state import walk_from_case
+    from faultwise.walk.scripted import walk_from_case
 
     loaded = _loaded(data)
     if loaded is not None:

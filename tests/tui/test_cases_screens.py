@@ -153,7 +153,7 @@ async def test_save_failure_keeps_answer_and_retry_works(make_app, cases_dir):
 async def test_viewer_shows_closed_case_step_by_step(make_app, workspace, cases_dir):
     from faultwise.cases.store import CaseStore
     from faultwise.graph.knowledge import load_knowledge
-    from faultwise.walk.state import walk_from_case
+    from faultwise.walk.scripted import walk_from_case
 
     case_id = open_case_on_disk(workspace, "1", "1k")
     store = CaseStore(cases_dir, "B1", fixed_clock)

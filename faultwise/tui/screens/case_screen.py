@@ -27,7 +27,7 @@ def open_walk(bench: Bench, case_id: str):
     FaultwiseError (locked, damaged, events that no longer fit the knowledge) leaves the
     case unlocked.
     """
-    from faultwise.walk.state import walk_from_case
+    from faultwise.walk.scripted import walk_from_case
 
     case = bench.store.open(case_id)
     try:

@@ -240,7 +240,7 @@ class ConclusionScreen(MeterKeys, CaseScreen):
 
     def _choose_outcome(self, text: str) -> None:
         from faultwise.core.errors import FaultwiseError
-        from faultwise.walk.state import resolve_choice
+        from faultwise.walk.results import resolve_choice
 
         error = self.query_one("#close-error", Static)
         if not str(text or "").strip():

@@ -189,7 +189,7 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
     @on(Input.Changed, "#tf-family")
     async def family_typed(self, event) -> None:
         from faultwise.core.errors import FaultwiseError
-        from faultwise.walk.state import resolve_choice
+        from faultwise.walk.results import resolve_choice
 
         text = event.value.strip()
         if self.family and text[:-1] == self.family and text[-1:] in ("1", "2", "3"):
