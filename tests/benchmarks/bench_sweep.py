@@ -19,6 +19,8 @@ import sys
 import time
 from pathlib import Path
 
+from timing import best_s
+
 HERE = Path(__file__).resolve().parent
 
 
@@ -36,15 +38,6 @@ def knowledge_dir(given: str | None) -> Path:
     except FaultwiseError as exc:
         print(f"bundled knowledge does not load ({exc}); using the test fixture")
         return HERE.parent / "fixtures" / "kb_sweep"
-
-
-def best_s(fn, runs: int) -> float:
-    best = float("inf")
-    for _ in range(runs):
-        t0 = time.perf_counter()
-        fn()
-        best = min(best, time.perf_counter() - t0)
-    return best
 
 
 def main() -> int:

@@ -12,7 +12,8 @@ for p in r.pairs:
     mine=[w for w in bws if (w.symptom,w.family)==(p.symptom,p.family)]
     wm = weighted_mean(_per_fault(mine,"minutes"), p.weights)
     rows.append((p.mean_minutes-wm, p.symptom, p.family, round(p.mean_minutes,2), round(wm,2), round(p.mean_checks,2), round(p.baselines["written"],2)))
-for row in sorted(rows, reverse=True)[:12]: print(row)
+for row in sorted(rows, reverse=True)[:12]:
+    print(row)
 n = len(rows)
 print(f"overall minutes: p/c {sum(r[3] for r in rows) / n:.3f}, written {sum(r[4] for r in rows) / n:.3f};"
       f" checks: p/c {sum(r[5] for r in rows) / n:.3f}, written {sum(r[6] for r in rows) / n:.3f}")

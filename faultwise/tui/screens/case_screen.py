@@ -223,31 +223,31 @@ class CaseScreen(Screen):
             event.stop()
             event.prevent_default()
 
-    def type_into_field(self, text: str) -> bool:
-        """Put ``text`` into the current step's field (focusing it); False when none."""
+    def _focused_field(self):
+        """The current step's field, focused; None when the screen has none (or is gone)."""
         from textual.css.query import NoMatches
 
         try:
             field = self.current_field() if self.is_attached else None
         except NoMatches:
             field = None
+        if field is not None:
+            field.focus()
+        return field
+
+    def type_into_field(self, text: str) -> bool:
+        """Put ``text`` into the current step's field (focusing it); False when none."""
+        field = self._focused_field()
         if field is None:
             return False
-        field.focus()
         field.insert_text_at_cursor(text)
         return True
 
     def submit_field(self) -> bool:
         """Enter on the current step's field, for a key that reached a closing dialog."""
-        from textual.css.query import NoMatches
-
-        try:
-            field = self.current_field() if self.is_attached else None
-        except NoMatches:
-            field = None
+        field = self._focused_field()
         if field is None:
             return False
-        field.focus()
         field.action_submit()
         return True
 
