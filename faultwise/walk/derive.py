@@ -260,12 +260,19 @@ class WalkDerivation:
                              f"{_MOVE_LIMIT} routes without asking anything",
                              node=st.node, hint="run 'faultwise lint' to find the loop")
 
-    def _ranked(self, frame) -> list:
-        """The frame's not-cleared investigations, best first (p/c, or the ``order`` hook)."""
+    def _ranked(self, frame, answers: Mapping[str, str]) -> list:
+        """The frame's not-cleared investigations, best first (p/c weighted by what the
+        ``answers`` so far say of each fault, :mod:`faultwise.walk.evidence`; or the
+        ``order`` hook)."""
         from faultwise.walk.rank import rank_investigations
 
+        likelihood = None
+        if answers and self.evidence is not None:
+            faults = self.knowledge.faults_under(frame.suspects, self.family)
+            likelihood = self.evidence.weights(faults, answers)
         ranked = rank_investigations(self.knowledge, frame.suspects, self.symptom, self.family,
-                                     frame.cleared, self.counts, applies=self._applies)
+                                     frame.cleared, self.counts, applies=self._applies,
+                                     likelihood=likelihood)
         if self.order is not None:
             ranked = list(self.order(ranked, self.knowledge.node(frame.suspects)))
         return ranked
@@ -273,7 +280,7 @@ class WalkDerivation:
     def _next_in_frame(self, st: _State) -> str:
         """The best not-cleared investigation of the top frame, or its exhausted route."""
         frame = st.stack[-1]
-        ranked = self._ranked(frame)
+        ranked = self._ranked(frame, st.memory)
         if ranked:
             frame.current = ranked[0].target
             return frame.current

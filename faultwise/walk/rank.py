@@ -126,11 +126,14 @@ def _ratio(p: float, cost: float) -> float:
 
 def rank_investigations(knowledge, suspects_id: str, symptom: str, family: str,
                         cleared: Iterable[str] = (), counts: Mapping[str, int] | None = None,
-                        applies: Applies | None = None) -> list[Ranked]:
+                        applies: Applies | None = None,
+                        likelihood: Mapping[str, float] | None = None) -> list[Ranked]:
     """The not-cleared investigations of a suspects list, best p/c first, ties by written order.
 
     ``applies(node_id)``: drop investigations whose target does not apply to the set and sum
     each one's probability over the faults under it that apply (None: the family decides).
+    ``likelihood``: per fault, how well the answers so far fit it
+    (:mod:`faultwise.walk.evidence`); each fault's probability is multiplied by it (missing: 1).
     """
     node = knowledge.node(suspects_id)
     if not isinstance(node, Suspects):
@@ -138,6 +141,8 @@ def rank_investigations(knowledge, suspects_id: str, symptom: str, family: str,
                              hint="rank only suspects nodes")
     counts = _counts(knowledge, symptom, family, counts)
     probs = fault_probabilities(knowledge, symptom, family, counts)
+    if likelihood:
+        probs = {f: p * float(likelihood.get(f, 1.0)) for f, p in probs.items()}
     done = set(cleared)
     rows: list[tuple[Investigation, float, frozenset[str]]] = []
     for inv in node.investigations:

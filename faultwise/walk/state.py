@@ -81,6 +81,9 @@ class Walk(WalkDerivation):
         from faultwise.graph.applicability import applies_predicate
 
         self._applies = applies_predicate(knowledge, profile, self.expectations)
+        from faultwise.walk.evidence import Evidence
+
+        self.evidence = Evidence(knowledge, profile, self.expectations)
         self.counts = dict(counts if counts is not None
                            else knowledge.learned.pair(symptom, self.family))
         self.clock = clock or _utc_now
@@ -201,7 +204,7 @@ class Walk(WalkDerivation):
             return Explanation(st.node, None, None, (), (), came, text)
         frame = st.stack[-1]
         suspects = self.knowledge.node(frame.suspects)
-        ranked = tuple(self._ranked(frame))
+        ranked = tuple(self._ranked(frame, st.memory))
         chosen = next((r for r in ranked if r.target == frame.current), None)
         if chosen is None:
             text = f"Every suspect in '{suspects.title}' is cleared."

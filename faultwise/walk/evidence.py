@@ -1,0 +1,104 @@
+"""What the answers so far say about each fault: the weights the p/c ranking multiplies in.
+
+A suspects list's investigations overlap: one fault can sit under several of them (the IF
+plate reading and the filter-resistor check both reach a drifted filter resistor). Ranked on
+the priors alone, such a fault keeps its whole weight under the second investigation after
+the first has already read it away, and the walk spends a check on it again. So every
+answered check is compared with what each fault predicts for it, and a fault the answers
+contradict keeps only a small part of its weight:
+
+- a reading check (``expect:``): the fault's signature gives the class (or a number,
+  classified against the set's band); where the signature is silent and the fault carries a
+  ``model:``, the set's own physics gives it (:func:`faultwise.expect.fault_physics.inject`,
+  classified against the healthy band, the same classification the walk uses);
+- an observation check: the fault's signature gives the choice; silent means no prediction.
+
+The likelihood of the answers given a fault is the product over answered checks of
+``AGREE`` (prediction met), ``CONTRADICTED`` (prediction missed), or, with no prediction,
+1 for a normal answer and ``UNEXPLAINED`` for an abnormal one (signatures list what a fault
+changes, but not always everything: a weak converter need not pull the AVC line down). No
+fault is ever ruled out: a contradicted one only moves back in the order, because nominal
+predictions meet real parts with tolerances, and the graph's routes, not the weights,
+decide every conclusion. Physics uses the bundled tube table (only the class matters here).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable, Mapping
+
+from faultwise.expect.classify import classify
+from faultwise.graph.nodes import Check, Fault
+
+AGREE = 1.0
+CONTRADICTED = 0.1
+UNEXPLAINED = 0.5
+_CLASSES = ("absent", "low", "normal", "high")
+
+
+class Evidence:
+    """Predictions of one set's faults for its checks, computed lazily and kept."""
+
+    def __init__(self, knowledge, profile, expectations: Mapping) -> None:
+        self.knowledge = knowledge
+        self.profile = profile
+        self.expectations = expectations
+        self._physics: dict[str, Mapping | None] = {}
+        self._predicted: dict[tuple[str, str], str | None] = {}
+
+    def _faulty(self, fault: Fault) -> Mapping | None:
+        if fault.id not in self._physics:
+            faulty = None
+            if fault.model:
+                from faultwise.expect.fault_physics import inject
+
+                try:
+                    faulty = inject(self.profile, fault.model, self.expectations)
+                except (ValueError, KeyError, ArithmeticError):
+                    faulty = None      # a model that does not fit this set predicts nothing
+            self._physics[fault.id] = faulty
+        return self._physics[fault.id]
+
+    def predicted(self, fault_id: str, check_id: str) -> str | None:
+        """The outcome the fault predicts for the check on this set, or None (no prediction)."""
+        key = (fault_id, check_id)
+        if key not in self._predicted:
+            self._predicted[key] = self._predict(self.knowledge.nodes.get(fault_id),
+                                                 self.knowledge.nodes.get(check_id))
+        return self._predicted[key]
+
+    def _predict(self, fault, check) -> str | None:
+        if not isinstance(fault, Fault) or not isinstance(check, Check):
+            return None
+        sig = fault.signature
+        if not check.is_measurement:
+            return sig.observations.get(check.id)
+        name = check.expect
+        band = self.expectations.get(name)
+        spec = sig.readings.get(name)
+        if isinstance(spec, str):
+            return spec if spec in _CLASSES else None
+        if isinstance(spec, (int, float)) and not isinstance(spec, bool) and band is not None:
+            return classify(float(spec), band)
+        faulty = self._faulty(fault)
+        if faulty is None or band is None or name not in faulty:
+            return None
+        return classify(faulty[name].nominal, band)
+
+    def weights(self, faults: Iterable[str], answers: Mapping[str, str]) -> dict[str, float]:
+        """Likelihood of the answers (check id -> outcome) for each fault (see the module doc)."""
+        out = {}
+        for f in faults:
+            w = 1.0
+            for check_id, outcome in answers.items():
+                if outcome == "skipped":
+                    continue
+                said = self.predicted(f, check_id)
+                if said is None:
+                    check = self.knowledge.nodes.get(check_id)
+                    normal = "normal" if getattr(check, "is_measurement", True) \
+                        else getattr(check, "normal", "normal")
+                    w *= 1.0 if outcome == normal else UNEXPLAINED
+                else:
+                    w *= AGREE if said == outcome else CONTRADICTED
+            out[f] = w
+        return out

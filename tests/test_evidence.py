@@ -1,0 +1,120 @@
+"""What the answers so far say about each fault (faultwise.walk.evidence), and its use in ranking.
+
+Outside references: Bayes' rule with a likelihood per answered check (any probability text;
+from memory); the p/c rule of Heckerman, Breese and Rommelse (1995), Comm. ACM 38(3). Trade
+facts, common practice, no source: an open filter resistor leaves nothing on the filtered B+
+line, so every plate fed from it (the IF tube's, through a few ohms of IF primary) reads
+nothing; a class-B pair that has lost its bias shows a low base-to-base voltage.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from faultwise.core.workspace import bundled_knowledge_dir
+from faultwise.graph.knowledge import load_knowledge
+from faultwise.shop.sweep import load_demo_sets
+from faultwise.walk import evidence, rank
+
+KB = Path(__file__).parent / "fixtures" / "kb_walk"
+
+
+@pytest.fixture(scope="module")
+def bundled():
+    kd = bundled_knowledge_dir()
+    k = load_knowledge(kd)
+    sets = load_demo_sets(kd / "sets", kd)
+    return k, {d.name: d for fam in sets.values() for d in fam}
+
+
+def _evidence(bundled, set_name):
+    k, demos = bundled
+    d = demos[set_name]
+    return evidence.Evidence(k, d.profile, d.expectations)
+
+
+def test_signature_reading_agrees_or_contradicts(bundled):
+    ev = _evidence(bundled, "demo-si-npn-portable.yaml")
+    f = "audio.tr-output-bias-low"          # signature: bias.output.bases_v low
+    assert ev.predicted(f, "audio.tr-output-bases-distort") == "low"
+    assert ev.weights([f], {"audio.tr-output-bases-distort": "low"})[f] == evidence.AGREE
+    assert ev.weights([f], {"audio.tr-output-bases-distort": "normal"})[f] == \
+        pytest.approx(evidence.CONTRADICTED)
+    # Two contradictions multiply; a skipped check says nothing.
+    both = {"audio.tr-output-bases-distort": "normal", "audio.tr-output-bases-lowvol": "normal",
+            "audio.tr-driver-vb-distort": "skipped"}
+    assert ev.weights([f], both)[f] == pytest.approx(evidence.CONTRADICTED ** 2)
+
+
+def test_observation_without_prediction(bundled):
+    ev = _evidence(bundled, "demo-si-npn-portable.yaml")
+    f = "audio.tr-output-bias-low"          # its signature says nothing of the volume control
+    assert ev.predicted(f, "audio.tr-volume-rotate") is None
+    assert ev.weights([f], {"audio.tr-volume-rotate": "smooth"})[f] == 1.0
+    assert ev.weights([f], {"audio.tr-volume-rotate": "scratchy"})[f] == evidence.UNEXPLAINED
+
+
+def test_physics_fills_what_the_signature_leaves_out(bundled):
+    # The open filter resistor's signature names the filtered B+ but not the IF plate; the
+    # set's own physics does: nothing reaches the IF plate (trade fact above).
+    k, _ = bundled
+    f = k.nodes["supply.open-filter-resistor"]
+    assert "stage.if.plate_v" not in f.signature.readings
+    ev = _evidence(bundled, "demo-5-tube-table.yaml")
+    assert ev.predicted(f.id, "if.if-plate-weak") == "absent"
+    # A healthy-looking IF plate then counts against it; a dead one for it.
+    assert ev.weights([f.id], {"if.if-plate-weak": "normal"})[f.id] == evidence.CONTRADICTED
+    assert ev.weights([f.id], {"if.if-plate-weak": "absent"})[f.id] == evidence.AGREE
+
+
+def test_a_fault_without_model_or_signature_entry_predicts_nothing(bundled):
+    ev = _evidence(bundled, "demo-5-tube-table.yaml")
+    k, _ = bundled
+    f = k.nodes["audio.tr-output-transformer-open"]      # no model, transistor family
+    assert not f.model
+    assert ev.predicted(f.id, "if.if-plate-weak") is None
+
+
+def test_likelihood_reorders_by_hand():
+    # tests/fixtures/kb_walk, supply.low-b-suspects (see test_rank): priors .375 (first-cap-esr),
+    # .25 (rectifier-test), .125 (surge-test); costs 4, 2, 3 min. An answer that contradicts
+    # the dry first capacitor leaves it a tenth: .0375, .25, .125; sum .4125; shares
+    # .0909, .6061, .3030; p/c .0227, .3030, .1010 -> rectifier, surge, first cap.
+    kb = load_knowledge(KB)
+    ranked = rank.rank_investigations(kb, "supply.low-b-suspects", "dead-lights-on",
+                                      "series-string", counts={},
+                                      likelihood={"supply.dry-first-cap": 0.1})
+    assert [r.target for r in ranked] == ["supply.rectifier-test", "supply.surge-test",
+                                          "supply.first-cap-esr"]
+    assert [r.p for r in ranked] == pytest.approx([.25 / .4125, .125 / .4125, .0375 / .4125])
+
+
+def test_the_walk_uses_the_answers(bundled):
+    # Weak reception on the demo 5-tube set, answered as a healthy set reads: weak across the
+    # dial, then the AVC line and the oscillator grid at their nominal values. Inside the
+    # weak-reception suspects list the ranking the walk shows is the p/c ranking weighted by
+    # the evidence, and the healthy AVC reading has moved faults that pull it low back.
+    from faultwise.walk.state import Walk
+
+    k, demos = bundled
+    d = demos["demo-5-tube-table.yaml"]
+    w = Walk(k, d.profile, "weak-reception", expectations=d.expectations, counts={})
+    for _ in range(3):
+        check = k.nodes[w.current_node]
+        if check.is_measurement:
+            w.answer_value(d.expectations[check.expect].nominal)
+        else:
+            w.answer(check.normal if check.id != "antenna.weak-where" else "all-dial")
+    ex = w.explain()
+    assert ex is not None and ex.suspects
+    frame = w._state.stack[-1]
+    faults = k.faults_under(frame.suspects, d.family)
+    like = w.evidence.weights(faults, w._state.memory)
+    assert min(like.values()) < 1.0        # some fault predicted a low AVC line
+    expected = rank.rank_investigations(k, frame.suspects, "weak-reception", d.family,
+                                        frame.cleared, {}, applies=w._applies,
+                                        likelihood=like)
+    assert [(r.target, round(r.p, 9)) for r in ex.ranked] == \
+        [(r.target, round(r.p, 9)) for r in expected]
