@@ -56,7 +56,7 @@ def family_word_hits(node) -> list[tuple[str, str, str]]:
 
 
 def text_rules(run) -> None:
-    """Run both rules on a lint run (:class:`faultwise.lint._Lint`)."""
+    """Run both rules on a lint run (:class:`faultwise.graph.lint_run.LintRun`)."""
     from faultwise.graph.node_text import placeholders
 
     for node in run.k.nodes.values():
