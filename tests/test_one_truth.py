@@ -18,14 +18,13 @@ def test_families_stages_and_event_types_are_one_declaration():
     import faultwise.graph.nodes as nodes
     import faultwise.profile.model as model
     import faultwise.report.model as report
-    import faultwise.walk.state as state
 
     assert nodes.FAMILIES is model.FAMILIES is vocabulary.FAMILIES
     assert model.LINE_FAMILIES is report.MAINS_FAMILIES is vocabulary.LINE_FAMILIES
     assert nodes.STAGES is expected.STAGES is vocabulary.STAGES
-    assert schema.EVENT_TYPES is state.EVENT_TYPES is vocabulary.EVENT_TYPES
+    assert schema.EVENT_TYPES is vocabulary.EVENT_TYPES
     assert set(vocabulary.LINE_FAMILIES) < set(vocabulary.FAMILIES)
-    assert set(state.UNDOABLE) < set(vocabulary.EVENT_TYPES)
+    assert set(vocabulary.UNDOABLE) < set(vocabulary.EVENT_TYPES)
 
 
 def test_rectifier_circuits_are_one_declaration():

@@ -1,7 +1,10 @@
 """Deriving a walk's state from its events: the reducer and the graph routing.
 
-The walk (:mod:`faultwise.walk.state`) is the public API; this mixin replays events into
-a :class:`_State` and routes through checks, suspects lists and faults.
+The walk (:mod:`faultwise.walk.state`) is the public API; this base class replays events
+into a :class:`_State` and routes through checks, suspects lists and faults, and knows which
+verify and closing checks apply to the set. :class:`~faultwise.walk.view.WalkView` and then
+``Walk`` build on it; the attributes it reads (knowledge, family, symptom, counts, order and
+the applicability predicate) are set by ``Walk.__init__``.
 """
 
 from __future__ import annotations
@@ -279,3 +282,16 @@ class WalkDerivation:
             return frame.current
         st.stack.pop()
         return self.knowledge.node(frame.suspects).exhausted
+
+    def _closing_ids(self) -> list[str]:
+        return [c.id for c in self.knowledge.closing_checks(self.family) if self._applies(c.id)]
+
+    def _verify_ids(self, fault_id: str | None) -> list[str]:
+        fault = self.knowledge.nodes.get(fault_id) if fault_id else None
+        out = []
+        for cid in getattr(fault, "verify", ()):
+            node = self.knowledge.nodes.get(cid)
+            if (isinstance(node, Check) and self.family in node.families and self._applies(cid)
+                    and cid not in out):
+                out.append(cid)
+        return out

@@ -3,14 +3,28 @@
 from __future__ import annotations
 
 from collections.abc import Callable, Mapping
+from dataclasses import dataclass
 from datetime import datetime
 
 from faultwise.core.errors import InputError
-from faultwise.graph.nodes import (CLEARED, MEASURE_OUTCOMES)
+from faultwise.graph.nodes import CLEARED, MEASURE_OUTCOMES, Fault
 
 from faultwise.expect.classify import representative_value
-from faultwise.walk.results import WalkResult
+from faultwise.walk.results import Step
 from faultwise.walk.state import Walk
+
+
+@dataclass(frozen=True)
+class WalkResult:
+    """An automatic walk (``walk --answers``, replay, sweep)."""
+
+    conclusion: Fault | None
+    escalate: str | None
+    steps: tuple[Step, ...]
+    checks: int
+    minutes: float
+    walk: Walk
+    missing: object | None = None     # errors.MissingAnswerError where an answer was missing
 
 
 def walk_from_case(knowledge, data: Mapping, *, knowledge_dir=None, **kwargs) -> Walk:
