@@ -37,7 +37,8 @@ def test_rectifier_circuits_are_one_declaration():
 
 def test_one_damaged_file_record_from_listing_index_and_review(tmp_path):
     from faultwise.cases.index import scan_cases
-    from faultwise.cases.store import CaseStore, DamagedFile
+    from faultwise.cases.listing import DamagedFile
+    from faultwise.cases.store import CaseStore
     from faultwise.shop.review import review_folder
 
     (tmp_path / "20261201-B1-001.json").write_text("{not json", encoding="utf-8")

@@ -31,7 +31,7 @@ from dataclasses import dataclass
 from datetime import date
 from typing import Iterable, Mapping
 
-from faultwise.cases.store import DamagedFile
+from faultwise.cases.listing import DamagedFile
 from faultwise.cases.summary import pairs
 from faultwise.core.errors import FaultwiseError, KnowledgeError
 
