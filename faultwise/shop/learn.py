@@ -18,7 +18,7 @@ from typing import Iterable, Mapping
 
 from faultwise.core.atomic import atomic_write
 from faultwise.core.errors import FaultwiseError
-from faultwise.shop.review import fault_counts
+from faultwise.shop.review_pairs import fault_counts, suspects_lists
 
 LEARNED_FORMAT = "faultwise-learned/1"
 LEARNED_NAME = "learned.yaml"
@@ -100,7 +100,6 @@ def write_learned(knowledge_dir: str | os.PathLike, learning: Learning,
 def learn_changes(knowledge, learning: Learning) -> list[PairChange]:
     """Per pair with old or new counts: count changes and every suspects order that moves."""
     from faultwise.walk.rank import rank_investigations
-    from faultwise.shop.review import _suspects_lists
 
     old = knowledge.learned.counts
     pairs = sorted({(s, f) for s in old for f in old[s]} |
@@ -114,7 +113,7 @@ def learn_changes(knowledge, learning: Learning) -> list[PairChange]:
                         if int(before.get(f, 0)) != int(after.get(f, 0)))
         orders = []
         try:
-            lists = _suspects_lists(knowledge, symptom, family)
+            lists = suspects_lists(knowledge, symptom, family)
         except FaultwiseError:
             lists = []
         for sid in lists:

@@ -103,11 +103,11 @@ def write_cached(cases_dir: str | os.PathLike, key: str, review_doc: dict) -> bo
 
 
 def review_from_dict(doc: dict):
-    """The :class:`faultwise.shop.review.Review` of a ``review_to_dict`` document."""
+    """The :class:`faultwise.shop.review_results.Review` of a ``review_to_dict`` document."""
     from faultwise.cases.listing import DamagedFile
-    from faultwise.shop.review import (FaultShare, FindingGroup, ListOrder, MonthMinutes,
-                                       PairReview, Reopened, Review, SkippedCheck, SteadyCheck,
-                                       UnreachedFault)
+    from faultwise.shop.review_results import (FaultShare, FindingGroup, ListOrder,
+                                               MonthMinutes, PairReview, Reopened, Review,
+                                               SkippedCheck, SteadyCheck, UnreachedFault)
 
     def pair(p: dict) -> PairReview:
         return PairReview(
