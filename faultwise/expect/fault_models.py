@@ -267,6 +267,23 @@ def roles_needed(changes) -> tuple[tuple[str, str], ...]:
     return tuple(out)
 
 
+def stage_part_ohm(profile, role: str, part: str, table=None) -> float | None:
+    """The resistor a stage's chart uses for ``part`` (the profile's, else the family's
+    typical one); 0 or None when the stage has none (a screen fed straight from B+)."""
+    from faultwise.expect.context import Context
+    from faultwise.expect.stages import role_kind, stage_circuit, stage_operation
+
+    tube = profile.tube(role)
+    if tube is None:
+        return None
+    ctx = Context(profile, table)
+    op, _ = stage_operation(ctx, tube)
+    if op is None:
+        return None
+    circuit, _ = stage_circuit(ctx, tube, role_kind(role, op))
+    return getattr(circuit, part, None)
+
+
 def applies_to(changes, profile) -> str:
     """'' when the model can be applied to this profile, else why not."""
     for c in changes:
@@ -279,8 +296,6 @@ def applies_to(changes, profile) -> str:
     for c in changes:
         p = c.parts
         if p[0] == "tube" and len(p) == 3 and p[2].endswith("_ohm") and c.kind == "scale":
-            from faultwise.expect.fault_physics_chart import stage_part_ohm
-
             if not stage_part_ohm(profile, p[1], p[2]):
                 return f"the set's {p[1]} stage has no {p[2][:-4]} resistor to drift"
     if any(c.target == "output.bias" for c in changes):

@@ -29,6 +29,7 @@ from __future__ import annotations
 import math
 
 from faultwise.expect.fault_models import LEAKY_GRID_V, OPEN_OHM, SHORT_OHM
+from faultwise.expect.fault_state import stage_point
 
 _CONTEXTS: dict[int, tuple] = {}
 
@@ -46,23 +47,6 @@ def chart_context(profile, healthy, table):
         _CONTEXTS.clear()
     _CONTEXTS[id(profile)] = (profile, ctx)
     return ctx
-
-
-def stage_part_ohm(profile, role: str, part: str, table=None) -> float | None:
-    """The resistor a stage's chart uses for ``part`` (the profile's, else the family's
-    typical one); 0 or None when the stage has none (a screen fed straight from B+)."""
-    from faultwise.expect.context import Context
-    from faultwise.expect.stages import role_kind, stage_circuit, stage_operation
-
-    tube = profile.tube(role)
-    if tube is None:
-        return None
-    ctx = Context(profile, table)
-    op, _ = stage_operation(ctx, tube)
-    if op is None:
-        return None
-    circuit, _ = stage_circuit(ctx, tube, role_kind(role, op))
-    return getattr(circuit, part, None)
 
 
 def _part(change, values: dict, factors: dict, name: str) -> None:
@@ -165,8 +149,6 @@ def pair_readings(profile, st, healthy, table, vcc: float) -> tuple[dict[str, fl
         out["bias.output.vc_v"] = vcc
     if me is not None and me.kind == "short":
         # collector to emitter: the supply across the emitter resistor and half the primary
-        from faultwise.expect.fault_physics import stage_point
-
         pt = stage_point(vcc, b.top_ohm, b.bottom_ohm, b.emitter_ohm, b.collector_ohm, tr.beta,
                          0.0, state="short")
         out.update({"bias.output.ic_ma": pt.ic_ma, "bias.output.ve_v": pt.ve_v})

@@ -7,6 +7,7 @@ from dataclasses import replace
 
 from faultwise.expect.fault_models import SHORT_OHM
 from faultwise.expect.fault_physics_chart import grid_current_factor, tube_stage_readings
+from faultwise.expect.fault_state import SCREEN_OPEN_CURRENT
 
 BLEED_MA = 0.01
 """Load left on the supply when every tube is cold: the meter and leakage (a token 10 uA)."""
@@ -173,8 +174,6 @@ def line_readings(profile, st, healthy, table) -> dict[str, float]:
     f_h = healthy["supply.filtered_v"].nominal if "supply.filtered_v" in healthy else None
     f_f = out.get("supply.filtered_v", f_h)
     ratio = (max(f_f, 0.0) / f_h) if f_h else 1.0
-
-    from faultwise.expect.fault_physics import SCREEN_OPEN_CURRENT
 
     def current(role: str) -> float:
         if role in cold or st.line_open:

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from html import escape
 
-from faultwise.report.job import SAFETY_STATEMENT, num, pct
+from faultwise.report.formats import SAFETY_STATEMENT, num, pct
 from faultwise.report.svg import bar_chart_svg, column_chart_svg
 
 CSS = """

@@ -19,6 +19,7 @@ from typing import Mapping
 
 from faultwise.core.vocabulary import LINE_FAMILIES, STAGES
 from faultwise.core.workspace import Shop
+from faultwise.report.formats import band_text, number
 
 MAINS_FAMILIES = LINE_FAMILIES          # sets that get the leakage check
 # The bench copy says what the family means for the bench; the customer copy says what
@@ -147,8 +148,6 @@ def _number(value) -> float | None:
 def _answer_words(ev: Mapping, node, band: Mapping | None, value: float | None,
                   outcome: str) -> str:
     """What was typed or chosen, in words: never the key pressed for a choice."""
-    from faultwise.report.job import number
-
     if value is not None and band and band.get("unit"):
         return number(value, str(band["unit"]))
     choices = getattr(node, "choices", None) or {}
@@ -161,8 +160,6 @@ def _answer_words(ev: Mapping, node, band: Mapping | None, value: float | None,
 
 
 def _step(number: int, ev: Mapping, knowledge) -> Step:
-    from faultwise.report.job import band_text
-
     node_id = str(ev.get("node") or "")
     node = _node(knowledge, node_id)
     phase = str(ev.get("phase") or "diagnose")

@@ -17,8 +17,8 @@ from __future__ import annotations
 
 from functools import lru_cache
 
-from faultwise.report.job import (LEAKAGE_STATEMENT, NOT_LINE_CONNECTED, SAFETY_STATEMENT,
-                                  minutes_text, when_text)
+from faultwise.report.formats import (LEAKAGE_STATEMENT, NOT_LINE_CONNECTED, SAFETY_STATEMENT,
+                                      minutes_text, when_text)
 from faultwise.report.model import JobReport
 
 OUTCOME_WORDS = {"repaired": "Repaired", "returned-unrepaired": "Returned without a repair",
