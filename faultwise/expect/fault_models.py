@@ -80,8 +80,13 @@ role the set lacks does not apply to that set (the sweep skips the pair and says
 from __future__ import annotations
 
 import re
-from collections.abc import Mapping
+from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from faultwise.profile.model import Profile
+    from faultwise.profile.tubes import TubeTable
 
 SHORT_OHM = 1.0
 """Resistance of a shorted part: about an ohm (a failed electrolytic or a solder bridge,
@@ -190,7 +195,7 @@ def pattern_of(target: str) -> str | None:
     return None
 
 
-def parse_change(target: str, text) -> Change:
+def parse_change(target: str, text: object) -> Change:
     """One ``target: change`` entry; raises ValueError with the reason."""
     pattern = pattern_of(target)
     if pattern is None:
@@ -226,7 +231,8 @@ def target_family_ok(target: str, family: str) -> bool:
     return True
 
 
-def model_problems(model: Mapping, families) -> list[tuple[str, str, str]]:
+def model_problems(model: Mapping[str, object], families: Sequence[str]
+                   ) -> list[tuple[str, str, str]]:
     """(target, message, hint) for every entry lint must report."""
     out = []
     for target, text in model.items():
@@ -255,7 +261,7 @@ def model_problems(model: Mapping, families) -> list[tuple[str, str, str]]:
     return out
 
 
-def roles_needed(changes) -> tuple[tuple[str, str], ...]:
+def roles_needed(changes: Iterable[Change]) -> tuple[tuple[str, str], ...]:
     """(kind, role) pairs the profile must have for the model to apply: tube/transistor roles."""
     out = []
     for c in changes:
@@ -267,7 +273,8 @@ def roles_needed(changes) -> tuple[tuple[str, str], ...]:
     return tuple(out)
 
 
-def stage_part_ohm(profile, role: str, part: str, table=None) -> float | None:
+def stage_part_ohm(profile: Profile, role: str, part: str,
+                   table: TubeTable | None = None) -> float | None:
     """The resistor a stage's chart uses for ``part`` (the profile's, else the family's
     typical one); 0 or None when the stage has none (a screen fed straight from B+)."""
     from faultwise.expect.context import Context
@@ -284,7 +291,7 @@ def stage_part_ohm(profile, role: str, part: str, table=None) -> float | None:
     return getattr(circuit, part, None)
 
 
-def applies_to(changes, profile) -> str:
+def applies_to(changes: Sequence[Change], profile: Profile) -> str:
     """'' when the model can be applied to this profile, else why not."""
     for c in changes:
         if not target_family_ok(c.target, profile.family):

@@ -42,6 +42,7 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping
 from dataclasses import replace
+from typing import TYPE_CHECKING
 
 from faultwise.expect.expected import Expected
 from faultwise.expect.fault_models import LEAKY_SUPPLY_MA, parse_model
@@ -49,6 +50,10 @@ from faultwise.expect.fault_physics_chart import pair_readings
 from faultwise.expect.fault_physics_line import line_readings
 from faultwise.expect.fault_state import (OPEN_READ, VOICE_COIL_SHORT, State, fold,
                                           transistor_points)
+
+if TYPE_CHECKING:
+    from faultwise.profile.model import Profile
+    from faultwise.profile.tubes import TubeTable
 
 
 def _scaled(e: Expected, value: float) -> Expected:
@@ -60,8 +65,8 @@ def _scaled(e: Expected, value: float) -> Expected:
     return replace(e, nominal=value, low=min(e.low, value), high=max(e.high, value))
 
 
-def inject(profile, model: Mapping, healthy: Mapping[str, Expected], *,
-           tube_table=None) -> dict[str, Expected]:
+def inject(profile: Profile, model: Mapping[str, object], healthy: Mapping[str, Expected], *,
+           tube_table: TubeTable | None = None) -> dict[str, Expected]:
     """What every healthy expectation reads on the set with this fault (see the module doc)."""
     st = fold(parse_model(model))
     out = dict(healthy)
@@ -100,7 +105,8 @@ def inject(profile, model: Mapping, healthy: Mapping[str, Expected], *,
     return out
 
 
-def _battery_readings(profile, st: State, healthy, table=None) -> dict[str, float]:
+def _battery_readings(profile: Profile, st: State, healthy: Mapping[str, Expected],
+                      table: TubeTable | None = None) -> dict[str, float]:
     from faultwise.calc.bias import divider_bias
     from faultwise.calc.tolerance import vbe_v
     from faultwise.expect.output_pair import is_pair

@@ -27,14 +27,23 @@ profile and kept.
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping
+from typing import TYPE_CHECKING
 
 from faultwise.expect.fault_models import LEAKY_GRID_V, OPEN_OHM, SHORT_OHM
 from faultwise.expect.fault_state import stage_point
 
+if TYPE_CHECKING:
+    from faultwise.expect.context import Context, Expected
+    from faultwise.expect.fault_models import Change
+    from faultwise.expect.fault_state import State
+    from faultwise.profile.model import Profile
+    from faultwise.profile.tubes import TubeTable
+
 _CONTEXTS: dict[int, tuple] = {}
 
 
-def chart_context(profile, healthy, table):
+def chart_context(profile: Profile, healthy: Mapping[str, Expected], table: TubeTable | None) -> Context:
     """The chart engine's context for this profile (kept: the supply simulation is its cost)."""
     from faultwise.expect.context import Context
 
@@ -49,7 +58,7 @@ def chart_context(profile, healthy, table):
     return ctx
 
 
-def _part(change, values: dict, factors: dict, name: str) -> None:
+def _part(change: Change, values: dict[str, float], factors: dict[str, float], name: str) -> None:
     if change.kind == "open":
         values[name] = math.inf
     elif change.kind == "short":
@@ -60,7 +69,8 @@ def _part(change, values: dict, factors: dict, name: str) -> None:
         factors[name] = factors.get(name, 1.0) * change.factor
 
 
-def tube_stage_readings(profile, st, healthy, table, *, first_scale: float, scale: float,
+def tube_stage_readings(profile: Profile, st: State, healthy: Mapping[str, Expected],
+                        table: TubeTable | None, *, first_scale: float, scale: float,
                         cold: set[str]) -> dict[str, float]:
     """Every tube stage's chart readings on the broken set (names the healthy set has)."""
     from faultwise.expect.stages import NO_STAGE_ROLES, faulty_stage_readings
@@ -89,7 +99,8 @@ def tube_stage_readings(profile, st, healthy, table, *, first_scale: float, scal
     return out
 
 
-def grid_current_factor(profile, st, healthy, table, role: str) -> float:
+def grid_current_factor(profile: Profile, st: State, healthy: Mapping[str, Expected],
+                        table: TubeTable | None, role: str) -> float:
     """A positive grid's cathode current over the healthy one (the chart's stage model), for the
     older names (``output.cathode_v``) that scale with the stage's current; 1 without one."""
     from faultwise.expect.stages import faulty_stage_readings
@@ -103,7 +114,8 @@ def grid_current_factor(profile, st, healthy, table, role: str) -> float:
     return got.get(name, healthy[name].nominal) / healthy[name].nominal
 
 
-def pair_readings(profile, st, healthy, table, vcc: float) -> tuple[dict[str, float], float]:
+def pair_readings(profile: Profile, st: State, healthy: Mapping[str, Expected], table: TubeTable | None,
+                  vcc: float) -> tuple[dict[str, float], float]:
     """(bias.output.* readings, faulty idle current) of a push-pull pair on the broken set."""
     from faultwise.expect.output_pair import faulty_pair_readings
 

@@ -14,9 +14,13 @@ themselves are :mod:`faultwise.expect.fault_physics` (with ``fault_physics_line`
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 from faultwise.expect.fault_models import (LEAKY_CAP_MA, LEAKY_ICBO_MA, OPEN_OHM, SHORT_OHM,
                                            STAGE_PARTS, Change)
+
+if TYPE_CHECKING:
+    from faultwise.profile.model import Profile
 
 VCE_SAT_V = 0.2
 """Collector-emitter voltage of a saturated small-signal transistor (as calc.bias)."""
@@ -210,7 +214,7 @@ def stage_point(vcc: float, top: float, bottom: float, re: float, rc: float, bet
     return StagePoint(vb, ve, ic * 1000.0, vc, ic * 1000.0 + divider(vb))
 
 
-def transistor_points(profile, st: State, vcc: float) -> dict[str, StagePoint]:
+def transistor_points(profile: Profile, st: State, vcc: float) -> dict[str, StagePoint]:
     """Every stage's point at battery ``vcc`` with the model's changes."""
     from faultwise.calc.tolerance import vbe_v
 

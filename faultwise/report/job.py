@@ -10,7 +10,7 @@ statements and number formats every report shares are in :mod:`faultwise.report.
 from __future__ import annotations
 
 import os
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -21,6 +21,7 @@ from faultwise.report.render import bench_markdown
 if TYPE_CHECKING:
     from faultwise.core.workspace import Shop
     from faultwise.graph.knowledge import Knowledge
+    from faultwise.shop.review_results import Review
 
 # ------------------------------------------------------------------------ reading
 
@@ -80,7 +81,7 @@ def _cut(text: str, n: int) -> str:
 
 def _table(head: tuple[str, ...], rows: list[tuple], widths: tuple[int, ...]) -> list[str]:
     """Fixed-width columns; the first column is cut to its width, numbers right-aligned."""
-    def line(cells) -> str:
+    def line(cells: Sequence[object]) -> str:
         parts = []
         for i, (cell, w) in enumerate(zip(cells, widths)):
             cell = _cut(cell, w)
@@ -89,7 +90,7 @@ def _table(head: tuple[str, ...], rows: list[tuple], widths: tuple[int, ...]) ->
     return [line(head), "  ".join("-" * w for w in widths)] + [line(r) for r in rows]
 
 
-def review_text(review) -> str:
+def review_text(review: Review) -> str:
     """The shop review for a terminal of 100 columns."""
     out = [f"Shop review: {review.cases} closed case{'s' if review.cases != 1 else ''}"
            + (f" since {review.since}" if review.since else "")

@@ -34,6 +34,7 @@ import os
 from collections import defaultdict
 from collections.abc import Iterable, Mapping
 from datetime import date
+from typing import TYPE_CHECKING, Any
 
 from faultwise.cases.listing import DamagedFile
 from faultwise.core.errors import FaultwiseError
@@ -42,6 +43,10 @@ from faultwise.shop.review_results import PairReview, Review
 from faultwise.shop.review_shop import (REOPEN_DAYS, SIMILARITY, group_findings,
                                         minutes_by_month, never_reached, reopened_cases,
                                         skipped_checks)
+
+if TYPE_CHECKING:
+    from faultwise.cases.index import Progress, Scan
+    from faultwise.graph.knowledge import Knowledge
 
 
 # --------------------------------------------------------------------------- helpers
@@ -66,8 +71,9 @@ def selected_cases(summaries: Iterable[Mapping], since: date | None = None) -> l
 
 # ----------------------------------------------------------------------- top level
 
-def review_summaries(summaries: Iterable[Mapping], knowledge=None, *, since: date | None = None,
-                     damaged: Iterable = (), reopen_days: float = REOPEN_DAYS,
+def review_summaries(summaries: Iterable[Mapping], knowledge: Knowledge | None = None, *,
+                     since: date | None = None,
+                     damaged: Iterable[DamagedFile] = (), reopen_days: float = REOPEN_DAYS,
                      min_cases: int = STEADY_MIN_CASES,
                      similarity: float = SIMILARITY) -> Review:
     """The whole review from case summaries (:func:`faultwise.cases.summary.summarise`)."""
@@ -95,7 +101,8 @@ def review_summaries(summaries: Iterable[Mapping], knowledge=None, *, since: dat
         knowledge=getattr(knowledge, "version", "") if knowledge is not None else "")
 
 
-def review_scan(scan, knowledge=None, *, since: date | None = None, **options) -> Review:
+def review_scan(scan: Scan, knowledge: Knowledge | None = None, *, since: date | None = None,
+                **options: Any) -> Review:
     """Review the result of :func:`faultwise.cases.index.scan_cases`, with its read counts."""
     from dataclasses import replace
 
@@ -105,8 +112,9 @@ def review_scan(scan, knowledge=None, *, since: date | None = None, **options) -
                    index_note=scan.index_note)
 
 
-def review_folder(cases_dir: str | os.PathLike, knowledge=None, *, since: date | None = None,
-                  use_index: bool = True, progress=None, **options) -> Review:
+def review_folder(cases_dir: str | os.PathLike, knowledge: Knowledge | None = None, *,
+                  since: date | None = None, use_index: bool = True,
+                  progress: Progress | None = None, **options: Any) -> Review:
     """Scan a cases folder through its index and review it; damaged files are listed."""
     from faultwise.cases.index import scan_cases
 

@@ -25,9 +25,11 @@ imports; ``faultwise.shop.sweep_report`` formats the result.
 from __future__ import annotations
 
 import math
+import os
 from collections.abc import Iterable, Mapping, Sequence
 from datetime import datetime
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from faultwise.core.errors import FaultwiseError
 from faultwise.graph.nodes import FAMILIES, Fault
@@ -36,6 +38,10 @@ from faultwise.shop.sweep_results import (DemoSet, LearningCheck, NoSet, PairFig
                                           SweepReport, SweepWalk)
 from faultwise.shop.sweep_walk import (has_signature, pair_applies, sets_for_fault,
                                        sweep_targets, walk_signature)
+
+if TYPE_CHECKING:
+    from faultwise.cases.listing import CaseSummary
+    from faultwise.graph.knowledge import Knowledge
 
 
 # ------------------------------------------------------------------------- arithmetic
@@ -76,7 +82,9 @@ def _mean(xs: Sequence[float]) -> float:
 
 # ------------------------------------------------------------------------------- sets
 
-def load_demo_sets(sets_dir, knowledge_dir=None) -> dict[str, list[DemoSet]]:
+def load_demo_sets(sets_dir: str | os.PathLike[str],
+                   knowledge_dir: str | os.PathLike[str] | None = None
+                   ) -> dict[str, list[DemoSet]]:
     """Every set profile in ``sets_dir`` (sorted by file name), by family, with its expectations."""
     from faultwise.expect.expected import expect
     from faultwise.profile.load import load_profile
@@ -102,7 +110,7 @@ def _per_fault(walks: Iterable[SweepWalk], attr: str) -> dict[str, float]:
     return {f: _mean(v) for f, v in acc.items()}
 
 
-def pair_figures(knowledge, symptom: str, family: str, walks: Sequence[SweepWalk],
+def pair_figures(knowledge: Knowledge, symptom: str, family: str, walks: Sequence[SweepWalk],
                  baseline_walks: Mapping[str, Sequence[SweepWalk]]) -> PairFigures:
     """Prior-weighted means of one pair's walks (weights: fault_probabilities, renormalised)."""
     from faultwise.walk.rank import fault_probabilities
@@ -121,7 +129,7 @@ def pair_figures(knowledge, symptom: str, family: str, walks: Sequence[SweepWalk
         entropy_bits(weights.values()), base, unswept)
 
 
-def run_sweep(knowledge, sets: Mapping[str, Sequence[DemoSet]], *, family: str | None = None,
+def run_sweep(knowledge: Knowledge, sets: Mapping[str, Sequence[DemoSet]], *, family: str | None = None,
               symptom: str | None = None, all_sets: bool = False, baselines: bool = True,
               seed: int = RANDOM_SEED) -> SweepReport:
     """Walk every signature (see the module doc); baselines need the walk's ``order`` hook."""
@@ -171,7 +179,7 @@ def run_sweep(knowledge, sets: Mapping[str, Sequence[DemoSet]], *, family: str |
 
 # ------------------------------------------------------------------------------ learning
 
-def _opened_key(summary) -> tuple:
+def _opened_key(summary: CaseSummary) -> tuple[float, str, str]:
     try:
         stamp = datetime.fromisoformat(str(summary.opened)).timestamp()
     except ValueError:
@@ -179,7 +187,8 @@ def _opened_key(summary) -> tuple:
     return stamp, str(summary.opened), summary.id
 
 
-def learned_counts(summaries: Iterable, knowledge) -> dict:
+def learned_counts(summaries: Iterable[CaseSummary],
+                   knowledge: Knowledge) -> dict[str, dict[str, dict[str, int]]]:
     """{symptom: {family: {fault: n}}} over closed cases whose conclusion the knowledge knows."""
     counts: dict = {}
     for s in summaries:
@@ -191,7 +200,7 @@ def learned_counts(summaries: Iterable, knowledge) -> dict:
     return counts
 
 
-def learning_check(knowledge, cases_dir, sets: Mapping[str, Sequence[DemoSet]],
+def learning_check(knowledge: Knowledge, cases_dir: str | os.PathLike[str], sets: Mapping[str, Sequence[DemoSet]],
                    bench: str = "B1") -> LearningCheck | None:
     """Split the closed, concluded cases at the median opened date; learn on the earlier half.
 
@@ -222,7 +231,7 @@ def learning_check(knowledge, cases_dir, sets: Mapping[str, Sequence[DemoSet]],
         prior.append(walk_signature(knowledge, case.fault, case.symptom, demo, counts={}))
         learned.append(walk_signature(knowledge, case.fault, case.symptom, demo, counts=pair))
 
-    def mean_of(ws, attr):
+    def mean_of(ws: Sequence[SweepWalk], attr: str) -> float | None:
         return _mean([float(getattr(w, attr)) for w in ws]) if ws else None
     return LearningCheck(
         len(closed), len(earlier), len(later), later[0].opened, len(prior), tuple(skipped),
@@ -231,7 +240,8 @@ def learning_check(knowledge, cases_dir, sets: Mapping[str, Sequence[DemoSet]],
         sum(1 for w in prior if w.isolated), sum(1 for w in learned if w.isolated))
 
 
-def _unwalkable(knowledge, case, sets) -> str:
+def _unwalkable(knowledge: Knowledge, case: CaseSummary,
+                sets: Mapping[str, Sequence[DemoSet]]) -> str:
     """Why a later case cannot be re-walked, or ''."""
     node = knowledge.nodes.get(case.fault or "")
     if not isinstance(node, Fault):

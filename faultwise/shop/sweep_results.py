@@ -9,8 +9,13 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 from faultwise.shop.sweep_orders import RANDOM_SEED
+
+if TYPE_CHECKING:
+    from faultwise.expect.context import Expected
+    from faultwise.profile.model import Profile
 
 
 @dataclass(frozen=True)
@@ -19,8 +24,8 @@ class DemoSet:
 
     name: str                 # file name, e.g. demo-5-tube-table.yaml
     family: str
-    profile: object
-    expectations: Mapping
+    profile: Profile
+    expectations: Mapping[str, Expected]
 
 
 @dataclass(frozen=True)

@@ -12,14 +12,20 @@ walking is recorded in the walk (``SweepWalk.error``), not raised.
 from __future__ import annotations
 
 from collections.abc import Iterable, Mapping, Sequence
+from typing import TYPE_CHECKING
 
 from faultwise.core.errors import FaultwiseError
-from faultwise.graph.nodes import FAMILIES, MEASURE_OUTCOMES, Fault
+from faultwise.graph.nodes import FAMILIES, MEASURE_OUTCOMES, Fault, Signature
 from faultwise.shop.sweep_orders import OrderFn
 from faultwise.shop.sweep_results import DemoSet, PathStep, SweepWalk, Unreachable
 
+if TYPE_CHECKING:
+    from faultwise.expect.context import Expected
+    from faultwise.graph.knowledge import Knowledge
 
-def synthesise_readings(signature, expectations: Mapping) -> dict:
+
+def synthesise_readings(signature: Signature,
+                        expectations: Mapping[str, Expected]) -> dict[str, object]:
     """Signature readings as numbers for this set: a class -> representative_value, numbers kept.
 
     A name the set has no expectation for keeps its class word (the walk then takes the
@@ -36,7 +42,7 @@ def synthesise_readings(signature, expectations: Mapping) -> dict:
     return out
 
 
-def swept_faults(knowledge, symptom: str, family: str) -> list[str]:
+def swept_faults(knowledge: Knowledge, symptom: str, family: str) -> list[str]:
     """Faults swept for a pair: reachable, with a signature, naming the symptom in their priors."""
     return sorted(f for f in knowledge.faults_for(symptom, family)
                   if has_signature(knowledge.nodes[f]) and symptom in knowledge.nodes[f].priors)
@@ -46,12 +52,12 @@ def has_signature(fault: Fault) -> bool:
     return bool(fault.signature.readings) or bool(fault.signature.observations)
 
 
-def pair_applies(knowledge, symptom: str, family: str) -> bool:
+def pair_applies(knowledge: Knowledge, symptom: str, family: str) -> bool:
     sym = knowledge.symptoms.get(symptom)
     return sym is not None and family in sym.families and family in sym.entry
 
 
-def sweep_targets(knowledge, *, families: Iterable[str] = FAMILIES,
+def sweep_targets(knowledge: Knowledge, *, families: Iterable[str] = FAMILIES,
                   symptom: str | None = None) -> tuple[list[tuple[str, str, str]], list[Unreachable]]:
     """(symptom, family, fault) triples to walk, in a stable order, and the unreachable priors."""
     targets, unreachable = [], []
@@ -74,22 +80,23 @@ def sweep_targets(knowledge, *, families: Iterable[str] = FAMILIES,
     return targets, unreachable
 
 
-def fault_applies_on(knowledge, fault_id: str, demo: DemoSet) -> bool:
+def fault_applies_on(knowledge: Knowledge, fault_id: str, demo: DemoSet) -> bool:
     """Whether the fault applies on this demo set (family and ``when``)."""
     from faultwise.graph.applicability import node_applies
 
     return node_applies(knowledge.node(fault_id), demo.profile, demo.expectations)
 
 
-def sets_for_fault(knowledge, fault_id: str, demos: Sequence[DemoSet], *,
+def sets_for_fault(knowledge: Knowledge, fault_id: str, demos: Sequence[DemoSet], *,
                    all_sets: bool = False) -> tuple[DemoSet, ...]:
     """The demo sets (in file order) a fault is walked on: the first it applies on, or all."""
     fitting = tuple(d for d in demos if fault_applies_on(knowledge, fault_id, d))
     return fitting if all_sets else fitting[:1]
 
 
-def walk_signature(knowledge, fault_id: str, symptom: str, demo: DemoSet, *,
-                   order: OrderFn | None = None, counts: Mapping | None = None) -> SweepWalk:
+def walk_signature(knowledge: Knowledge, fault_id: str, symptom: str, demo: DemoSet, *,
+                   order: OrderFn | None = None,
+                   counts: Mapping[str, int] | None = None) -> SweepWalk:
     """Walk one fault's signature for one symptom on one demo set."""
     from faultwise.walk.scripted import auto_walk
 

@@ -10,14 +10,22 @@ the applicability predicate) are set by ``Walk.__init__``.
 from __future__ import annotations
 
 import copy
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 from faultwise.core.errors import InputError, KnowledgeError, WalkError
 from faultwise.graph.nodes import (CLEARED, Check, Fault,
                                    Suspects)
 
 from faultwise.walk.results import OUTCOMES, Step
+
+if TYPE_CHECKING:
+    from faultwise.expect.context import Expected
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.graph.nodes import Suspects
+    from faultwise.profile.model import Profile
+    from faultwise.walk.rank import Ranked
 
 _MOVE_LIMIT = 10_000          # routing steps in one move; the graph has no cycles (lint)
 
@@ -60,6 +68,16 @@ class _State:
 
 class WalkDerivation:
     """The event reducer and router that :class:`~faultwise.walk.state.Walk` builds on."""
+
+    # set by Walk.__init__
+    knowledge: Knowledge
+    profile: Profile
+    family: str
+    symptom: str
+    expectations: dict[str, Expected]
+    counts: dict[str, int]
+    order: Callable[[list[Ranked], Suspects], list[Ranked]] | None
+    _applies: Callable[[str], bool]
 
     def _derive(self, events: list[dict]) -> _State:
         st = _State()
@@ -263,7 +281,7 @@ class WalkDerivation:
                              f"{_MOVE_LIMIT} routes without asking anything",
                              node=st.node, hint="run 'faultwise lint' to find the loop")
 
-    def _ranked(self, frame) -> list:
+    def _ranked(self, frame: _MFrame) -> list[Ranked]:
         """The frame's not-cleared investigations, best first (p/c, or the ``order`` hook)."""
         from faultwise.walk.rank import rank_investigations
 

@@ -34,6 +34,7 @@ from __future__ import annotations
 import math
 from collections.abc import Callable, Iterable, Mapping
 from datetime import UTC, datetime
+from typing import TYPE_CHECKING, Any
 
 from faultwise.core.errors import InputError, WalkError
 from faultwise.core.vocabulary import UNDOABLE
@@ -41,6 +42,13 @@ from faultwise.graph.nodes import MEASURE_OUTCOMES, Check
 from faultwise.expect.classify import band_of, classify
 from faultwise.walk.results import resolve_choice
 from faultwise.walk.view import WalkView
+
+if TYPE_CHECKING:
+    from faultwise.expect.context import Expected
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.graph.nodes import Suspects
+    from faultwise.profile.model import Profile
+    from faultwise.walk.rank import Ranked
 
 
 def _utc_now() -> datetime:
@@ -52,10 +60,11 @@ def _utc_now() -> datetime:
 class Walk(WalkView):
     """One walk through the knowledge for one set and one complaint (see the module doc)."""
 
-    def __init__(self, knowledge, profile, symptom: str, *, expectations: Mapping | None = None,
+    def __init__(self, knowledge: Knowledge, profile: Profile, symptom: str, *,
+                 expectations: Mapping[str, Expected] | None = None,
                  counts: Mapping[str, int] | None = None,
                  clock: Callable[[], datetime] | None = None,
-                 order: Callable | None = None) -> None:
+                 order: Callable[[list[Ranked], Suspects], list[Ranked]] | None = None) -> None:
         """``order(ranked, suspects) -> ranked`` re-orders a suspects list (None: p/c order).
 
         Only the sweep's baselines pass it (written order, speaker back, random), to measure
@@ -90,8 +99,8 @@ class Walk(WalkView):
     # ---------------------------------------------------------------- construction
 
     @classmethod
-    def from_events(cls, knowledge, profile, symptom: str, events: Iterable[Mapping],
-                    **kwargs) -> Walk:
+    def from_events(cls, knowledge: Knowledge, profile: Profile, symptom: str,
+                    events: Iterable[Mapping[str, Any]], **kwargs: Any) -> Walk:
         """Rebuild a walk by replaying recorded events; WalkError names an event that does not fit."""
         walk = cls(knowledge, profile, symptom, **kwargs)
         recorded = [dict(e) for e in events]
