@@ -23,7 +23,8 @@ from hypothesis import strategies as st
 
 from faultwise.core.errors import KnowledgeError
 from faultwise.graph.knowledge import load_knowledge
-from faultwise.graph.lint import SYMPTOM_IDS, LintReport, _name_matcher, lint
+from faultwise.graph.lint import SYMPTOM_IDS, lint
+from faultwise.graph.lint_run import LintReport, name_matcher
 
 KB = Path(__file__).parent / "fixtures" / "kb_small"
 
@@ -107,7 +108,7 @@ def test_names_not_yet_available_is_a_warning_not_a_crash(monkeypatch):
 
 
 def test_role_placeholders_match_one_part():
-    known = _name_matcher(["heater.<role>.v", "supply.battery_v"])
+    known = name_matcher(["heater.<role>.v", "supply.battery_v"])
     assert known("heater.output.v") and known("heater.if2.v") and known("supply.battery_v")
     assert not known("heater.v") and not known("heater.a.b.v") and not known("supply.battery")
 

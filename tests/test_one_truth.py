@@ -18,14 +18,13 @@ def test_families_stages_and_event_types_are_one_declaration():
     import faultwise.graph.nodes as nodes
     import faultwise.profile.model as model
     import faultwise.report.model as report
-    import faultwise.walk.state as state
 
     assert nodes.FAMILIES is model.FAMILIES is vocabulary.FAMILIES
     assert model.LINE_FAMILIES is report.MAINS_FAMILIES is vocabulary.LINE_FAMILIES
     assert nodes.STAGES is expected.STAGES is vocabulary.STAGES
-    assert schema.EVENT_TYPES is state.EVENT_TYPES is vocabulary.EVENT_TYPES
+    assert schema.EVENT_TYPES is vocabulary.EVENT_TYPES
     assert set(vocabulary.LINE_FAMILIES) < set(vocabulary.FAMILIES)
-    assert set(state.UNDOABLE) < set(vocabulary.EVENT_TYPES)
+    assert set(vocabulary.UNDOABLE) < set(vocabulary.EVENT_TYPES)
 
 
 def test_rectifier_circuits_are_one_declaration():
@@ -38,7 +37,8 @@ def test_rectifier_circuits_are_one_declaration():
 
 def test_one_damaged_file_record_from_listing_index_and_review(tmp_path):
     from faultwise.cases.index import scan_cases
-    from faultwise.cases.store import CaseStore, DamagedFile
+    from faultwise.cases.listing import DamagedFile
+    from faultwise.cases.store import CaseStore
     from faultwise.shop.review import review_folder
 
     (tmp_path / "20261201-B1-001.json").write_text("{not json", encoding="utf-8")

@@ -19,7 +19,8 @@ from pathlib import Path
 import pytest
 
 from faultwise.graph.knowledge import load_knowledge
-from faultwise.shop.review import (group_findings, reopened_cases, review_folder, review_to_dict)
+from faultwise.shop.review import review_folder, review_to_dict
+from faultwise.shop.review_shop import group_findings, reopened_cases
 from review_case_factory import make_case, write_case
 
 KB = Path(__file__).parent / "fixtures" / "kb_review"

@@ -21,8 +21,8 @@ import pytest
 
 from faultwise.cases.codec import dump_case
 from faultwise.graph.knowledge import load_knowledge
-from faultwise.shop.sweep import (RANDOM_SEED, SPEAKER_BACK, learning_check, load_demo_sets,
-                                  run_sweep, walk_has_order_hook)
+from faultwise.shop.sweep import RANDOM_SEED, learning_check, load_demo_sets, run_sweep
+from faultwise.shop.sweep_orders import SPEAKER_BACK, walk_has_order_hook
 from faultwise.shop.sweep_report import failure_sentence, sweep_text, sweep_to_dict
 from faultwise.walk.scripted import auto_walk
 from faultwise.core.workspace import bundled_knowledge_dir

@@ -19,6 +19,7 @@ open: no base bias, no idle current, crossover distortion), ``bottom_ohm=0`` or
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 
 THERMAL_V = 0.025865
@@ -49,7 +50,7 @@ def junction_v(i_ma: float, vbe_1ma_v: float, n: float = JUNCTION_N) -> float:
     return vbe_1ma_v + n * THERMAL_V * math.log(max(i_ma, 1e-12))
 
 
-def _root(f, hi: float) -> float:
+def _root(f: Callable[[float], float], hi: float) -> float:
     """Root of a falling f on [0, hi] by bisection on the log of the current (f(0+) > 0)."""
     lo_l, hi_l = math.log(1e-9), math.log(hi)
     if f(math.exp(lo_l)) <= 0:

@@ -26,6 +26,7 @@ screen), ``cathode_ohm=math.inf`` (cathode resistor open), ``emission=0.4`` (a w
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 
 KNEE_FRACTION = 0.2
@@ -122,7 +123,7 @@ def _electrodes(op: TypicalOperation, ik_ma: float, plate_supply_v: float,
     return StageDC(vp, vg2, vk, grid_v, ip + ig2, ip, ig2)
 
 
-def _root_ma(residual, hi: float) -> float:
+def _root_ma(residual: Callable[[float], float], hi: float) -> float:
     """The root of a falling residual on [0, hi]: regula falsi with the Illinois step."""
     lo, f_lo = 0.0, residual(0.0)
     if hi <= 0.0 or f_lo <= 0.0:

@@ -1,6 +1,6 @@
-"""The case layer: the case store and file codec, the case schema, summaries and the index.
+"""The case layer: store, lock, ids, listing, file codec, schema, summaries and the index.
 
-The names below are re-exported from :mod:`faultwise.cases.store` and :mod:`faultwise.cases.codec` so that the old
+The names below are re-exported from the submodules so that the old
 ``from faultwise.cases import ...`` keeps working; code inside faultwise imports the
 submodules directly.
 """
@@ -8,7 +8,9 @@ submodules directly.
 from __future__ import annotations
 
 from faultwise.cases.codec import CASE_FORMAT, CASE_KEYS, dump_case, ordered, read_case_bytes
-from faultwise.cases.store import CaseStore, case_path, check_bench
+from faultwise.cases.ids import case_path
+from faultwise.cases.store import CaseStore
+from faultwise.core.workspace import check_bench
 
 __all__ = [
     "CASE_FORMAT",

@@ -6,6 +6,7 @@ DESIGN section 8; the format is in :mod:`faultwise.cases.schema`. Pure: no file 
 from __future__ import annotations
 
 import json
+import os
 from collections.abc import Callable, Mapping
 
 from faultwise.core.errors import DamagedCaseError
@@ -41,7 +42,7 @@ def migrate(data: dict) -> dict:
 
 # ------------------------------------------------------------------------ reading bytes
 
-def _damage(file, reason: str) -> DamagedCaseError:
+def _damage(file: object, reason: str) -> DamagedCaseError:
     err = DamagedCaseError(f"the case file is damaged ({reason})", file=str(file),
                            hint="it is left as it is; restore it from a backup or move it aside")
     err.reason = reason
@@ -56,7 +57,7 @@ def _ends_early(text: str, exc: json.JSONDecodeError) -> bool:
     return exc.pos >= len(stripped) or "\n" not in stripped[exc.pos:]
 
 
-def read_case_bytes(raw: bytes, file="case") -> dict:
+def read_case_bytes(raw: bytes, file: str | os.PathLike[str] = "case") -> dict:
     """Bytes of a case file -> migrated case data; DamagedCaseError with ``reason`` otherwise."""
     if not raw.strip():
         raise _damage(file, "empty")

@@ -23,7 +23,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Callable
 
-from faultwise.cases.store import DamagedFile
+from faultwise.cases.listing import DamagedFile
 from faultwise.cases.codec import read_case_bytes
 from faultwise.cases.summary import SUMMARY_VERSION, summarise
 from faultwise.core.errors import DamagedCaseError

@@ -60,6 +60,7 @@ written for readers (review, report, other shop tools); the events are the recor
 from __future__ import annotations
 
 import math
+from collections.abc import Collection
 from typing import Any, Mapping
 
 from faultwise.core.vocabulary import EVENT_TYPES
@@ -104,7 +105,8 @@ def _is(value: Any, kind: str) -> bool:
     return isinstance(value, dict)
 
 
-def _fields(data: Mapping, spec: Mapping[str, str], nullable, where: str) -> str | None:
+def _fields(data: Mapping, spec: Mapping[str, str], nullable: Collection[str],
+            where: str) -> str | None:
     for key, kind in spec.items():
         if key not in data:
             continue

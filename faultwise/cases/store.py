@@ -6,101 +6,50 @@ folder), so a crash leaves either the old or the new file, never half of one. A 
 two benches off one open case: filelock's SoftFileLock on ``<id>.lock`` (exclusive
 creation, so it works on a shared network folder; a holder on this host whose process died
 is taken over, another host's lock is respected) and ``<id>.lock-owner`` beside it naming
-the bench for messages. A damaged file is reported with its reason and never written.
+the bench for messages (:mod:`faultwise.cases.lock`). A damaged file is reported with its
+reason and never written. A new case takes the next free number of the day for the bench
+and is put in place exclusively (a hard link, or an exclusive create where the folder has
+none), so two benches never get one id. Ids and file names: :mod:`faultwise.cases.ids`;
+the folder's listing: :mod:`faultwise.cases.listing`.
 """
 
 from __future__ import annotations
 
-import json
 import os
 import re
-import socket
-import time
 from collections.abc import Callable, Mapping
-from dataclasses import dataclass
 from datetime import UTC, datetime
 from pathlib import Path
+from typing import TYPE_CHECKING, Any, Protocol
 
+from faultwise.cases.codec import CASE_FORMAT, _ordered_event, dump_case, ordered, read_case_bytes
+from faultwise.cases.ids import case_path, next_case_number
+from faultwise.cases.listing import Listing, list_cases
+from faultwise.cases.lock import CaseLocks, LockInfo, pid_alive, safe_host
 from faultwise.core.atomic import TEMP_SUFFIX, atomic_write, fsync_dir, write_temp
-from faultwise.core.errors import CaseError, CaseLockedError, DamagedCaseError
+from faultwise.core.errors import CaseError, CaseLockedError
 from faultwise.core.workspace import check_bench
-from faultwise.cases.codec import (CASE_FORMAT, _ordered_event, dump_case, ordered, read_case_bytes)
 
-# \Z, not "$" (which lets a final newline through); lengths keep names under NAME_MAX.
-_ID_RE = re.compile(r"^[A-Za-z0-9_-]{1,120}\Z")
+if TYPE_CHECKING:
+    from filelock import BaseFileLock
+
+    from faultwise.profile.model import Profile
+
 _TEMP_RE = re.compile(r"^\.(?P<id>[A-Za-z0-9_-]+)\.(?P<host>[A-Za-z0-9_-]*)\.(?P<pid>\d+)\."
                       r"[0-9a-f]+" + re.escape(TEMP_SUFFIX) + "$")
 
 
-# ------------------------------------------------------------------------------ results
-
-@dataclass(frozen=True)
-class LockInfo:
-    bench: str
-    host: str
-    pid: int | None
-    since: str
-
-
-@dataclass(frozen=True)
-class CaseSummary:
-    id: str
-    path: Path
-    bench: str
-    status: str
-    opened: str
-    updated: str
-    customer: str
-    symptom: str
-    family: str
-    set_label: str
-    fault: str | None
-    fault_title: str | None
-    outcome: str | None
-    minutes: float | None
-    locked_by: LockInfo | None = None
-
-
-@dataclass(frozen=True)
-class DamagedFile:
-    """A case file that could not be read (listing, index, review); left exactly as it is."""
-
-    file: str                 # the path as found, or the name inside the cases folder
-    reason: str
-
-    @property
-    def path(self) -> Path:
-        return Path(self.file)
-
-
-@dataclass(frozen=True)
-class Listing:
-    open: tuple[CaseSummary, ...]
-    closed: tuple[CaseSummary, ...]
-    damaged: tuple[DamagedFile, ...]
-
-
 # ----------------------------------------------------------------------------- helpers
 
-def _safe_host() -> str:
-    return re.sub(r"[^A-Za-z0-9_-]", "-", socket.gethostname())[:60] or "host"
+class RecordsCase(Protocol):
+    """What ``OpenCase.record`` takes: a walk (:class:`faultwise.walk.state.Walk`)."""
 
-
-def _pid_alive(pid: int) -> bool:
-    try:
-        os.kill(pid, 0)
-    except ProcessLookupError:
-        return False
-    except PermissionError:
-        return True
-    except OSError:
-        return False
-    return True
+    def to_case_fields(self) -> dict[str, Any]: ...
 
 
 def _write_temp(folder: Path, case_id: str, payload: bytes) -> Path:
     """``.<id>.<host>.<pid>.<hex>.fwtmp``: the host and pid let a stale temp be traced."""
-    return write_temp(folder, f"{case_id}.{_safe_host()}.{os.getpid()}", payload)
+    return write_temp(folder, f"{case_id}.{safe_host()}.{os.getpid()}", payload)
 
 
 def _now_text(clock: Callable[[], datetime]) -> str:
@@ -111,21 +60,13 @@ def _utc_now() -> datetime:
     return datetime.now(UTC).astimezone()
 
 
-def case_path(folder, case_id: str) -> Path:
-    """``<folder>/<id>.json``; CaseError unless the id is letters, digits, '-' and '_'."""
-    if not isinstance(case_id, str) or not _ID_RE.match(case_id):
-        raise CaseError(f"'{case_id}' is not a case id", key="case",
-                        hint="a case id holds only letters, digits, '-' and '_' (120 at most), "
-                             "such as 20261201-B1-001")
-    return Path(folder) / f"{case_id}.json"
-
-
 # --------------------------------------------------------------------------- open case
 
 class OpenCase:
     """A case held by this bench: its data, saved atomically after every change."""
 
-    def __init__(self, store: CaseStore, case_id: str, data: dict, lock) -> None:
+    def __init__(self, store: CaseStore, case_id: str, data: Mapping[str, Any],
+                 lock: BaseFileLock) -> None:
         self.store = store
         self.id = case_id
         self.path = store.path_for(case_id)
@@ -135,7 +76,7 @@ class OpenCase:
     def __enter__(self) -> OpenCase:
         return self
 
-    def __exit__(self, *exc) -> None:
+    def __exit__(self, *exc: object) -> None:
         self.close()
 
     @property
@@ -153,21 +94,21 @@ class OpenCase:
         payload = dump_case(self.data)
         try:
             atomic_write(self.path, payload,
-                         temp_prefix=f"{self.id}.{_safe_host()}.{os.getpid()}")
+                         temp_prefix=f"{self.id}.{safe_host()}.{os.getpid()}")
         except OSError as exc:
             raise CaseError(f"the case {self.id} could not be saved ({exc.strerror or exc})",
                             file=str(self.path),
                             hint="check that the cases folder exists, is writable and has "
                                  "space, then save again; nothing is lost yet") from None
 
-    def update(self, **fields) -> None:
+    def update(self, **fields: Any) -> None:
         """Set top-level fields and save."""
         self.data.update(fields)
         self.data = ordered(self.data)
         self.data["updated"] = _now_text(self.store.clock)
         self.save()
 
-    def append(self, event: Mapping) -> dict:
+    def append(self, event: Mapping[str, Any]) -> dict[str, Any]:
         """Number the event, append it and save; returns the stored event."""
         self._require_open()
         stored = _ordered_event(dict(event))
@@ -178,7 +119,7 @@ class OpenCase:
         self.save()
         return stored
 
-    def record(self, walk) -> None:
+    def record(self, walk: RecordsCase) -> None:
         """Copy the walk's events and derived fields into the case and save."""
         fields = walk.to_case_fields()
         self.data.update(fields)
@@ -199,11 +140,13 @@ class OpenCase:
 class CaseStore:
     """The cases folder of a workspace, used by one bench."""
 
-    def __init__(self, folder, bench: str, clock: Callable[[], datetime] | None = None) -> None:
+    def __init__(self, folder: str | os.PathLike[str], bench: str,
+                 clock: Callable[[], datetime] | None = None) -> None:
         self.folder = Path(folder)
         self.bench = check_bench(bench)
         self.clock = clock or _utc_now
-        self.host = _safe_host()
+        self.host = safe_host()
+        self.locks = CaseLocks(self.folder, self.bench, self.clock)
         self.remove_stale_temps()
 
     # ----- paths
@@ -212,12 +155,6 @@ class CaseStore:
         """The case file of an id; CaseError unless the id is letters, digits, '-' and '_'."""
         return case_path(self.folder, case_id)
 
-    def _lock_path(self, case_id: str) -> Path:
-        return self.folder / f"{case_id}.lock"
-
-    def _owner_path(self, case_id: str) -> Path:
-        return self.folder / f"{case_id}.lock-owner"
-
     def remove_stale_temps(self) -> list[Path]:
         """Delete our own temp files left by a crash (this host, dead process)."""
         removed = []
@@ -225,7 +162,7 @@ class CaseStore:
             return removed
         for entry in self.folder.iterdir():
             m = _TEMP_RE.match(entry.name)
-            if not m or m["host"] != self.host or _pid_alive(int(m["pid"])):
+            if not m or m["host"] != self.host or pid_alive(int(m["pid"])):
                 continue
             try:
                 entry.unlink()
@@ -238,74 +175,17 @@ class CaseStore:
 
     def lock_info(self, case_id: str) -> LockInfo | None:
         """Who holds the case, or None when nobody does."""
-        lock_path = self._lock_path(case_id)
-        if not lock_path.exists():
-            return None
-        info = {}
-        try:
-            info = json.loads(self._owner_path(case_id).read_text(encoding="utf-8"))
-            if not isinstance(info, dict):
-                info = {}
-        except (OSError, ValueError):
-            info = {}
-        since = info.get("since")
-        if not since:
-            try:
-                since = datetime.fromtimestamp(lock_path.stat().st_mtime, UTC) \
-                    .astimezone().isoformat(timespec="seconds")
-            except OSError:
-                since = "?"
-        pid = info.get("pid")
-        return LockInfo(bench=str(info.get("bench") or "another bench"),
-                        host=str(info.get("host") or "?"),
-                        pid=pid if isinstance(pid, int) else None, since=str(since))
+        return self.locks.info(case_id)
 
-    def _acquire(self, case_id: str):
-        from filelock import SoftFileLock, Timeout
+    def _acquire(self, case_id: str) -> BaseFileLock:
+        return self.locks.acquire(case_id)
 
-        self.folder.mkdir(parents=True, exist_ok=True)
-        lock = SoftFileLock(str(self._lock_path(case_id)), timeout=0, thread_local=False)
-        try:
-            lock.acquire()
-        except Timeout:
-            info = self.lock_info(case_id)
-            for _ in range(20):        # the holder names itself just after it takes the lock
-                if info is None or info.bench != "another bench":
-                    break
-                time.sleep(0.025)
-                info = self.lock_info(case_id)
-            who = f"bench {info.bench}" if info else "another bench"
-            since = f" (since {info.since})" if info else ""
-            where = f" on {info.host}" if info and info.host not in ("?", self.host) else ""
-            raise CaseLockedError(f"case {case_id} is open at {who}{where}{since}",
-                                  bench=info.bench if info else None,
-                                  file=str(self.path_for(case_id)),
-                                  hint="close it there first, or open it read-only") from None
-        except OSError as exc:
-            raise CaseError(f"the case {case_id} could not be locked ({exc.strerror or exc})",
-                            file=str(self._lock_path(case_id)),
-                            hint="check that the cases folder is writable") from None
-        owner = {"bench": self.bench, "host": self.host, "pid": os.getpid(),
-                 "since": _now_text(self.clock)}
-        try:
-            self._owner_path(case_id).write_text(json.dumps(owner) + "\n", encoding="utf-8")
-        except OSError:
-            pass          # the lock itself holds; the name is only for messages
-        return lock
-
-    def _release(self, case_id: str, lock) -> None:
-        try:
-            self._owner_path(case_id).unlink()
-        except OSError:
-            pass
-        try:
-            lock.release(force=True)
-        except OSError:
-            pass
+    def _release(self, case_id: str, lock: BaseFileLock) -> None:
+        self.locks.release(case_id, lock)
 
     # ----- reading
 
-    def read(self, case_id_or_path) -> dict:
+    def read(self, case_id_or_path: str | os.PathLike[str]) -> dict[str, Any]:
         """Read a case without locking it; DamagedCaseError names the file and the reason."""
         path = self._resolve(case_id_or_path)
         if path.exists() and not path.is_file():
@@ -321,49 +201,14 @@ class CaseStore:
                             file=str(path)) from None
         return read_case_bytes(raw, path)
 
-    def _resolve(self, case_id_or_path) -> Path:
+    def _resolve(self, case_id_or_path: str | os.PathLike[str]) -> Path:
         if isinstance(case_id_or_path, os.PathLike) or str(case_id_or_path).endswith(".json"):
             return Path(case_id_or_path)
         return self.path_for(str(case_id_or_path))
 
     def list(self) -> Listing:
         """Every case file of the folder, open and closed, and the damaged ones by name."""
-        opened, closed, damaged = [], [], []
-        if not self.folder.is_dir():
-            return Listing((), (), ())
-        for path in sorted(self.folder.glob("*.json")):
-            if path.name.startswith(".") or not path.is_file():
-                continue          # a folder or FIFO named like a case (reading a FIFO blocks)
-            try:
-                data = read_case_bytes(path.read_bytes(), path)
-            except DamagedCaseError as exc:
-                damaged.append(DamagedFile(str(path), exc.reason))
-                continue
-            except OSError as exc:
-                damaged.append(DamagedFile(str(path), f"unreadable ({exc.strerror or exc})"))
-                continue
-            summary = self._summary(path, data)
-            (closed if summary.status == "closed" else opened).append(summary)
-        return Listing(tuple(opened), tuple(closed), tuple(damaged))
-
-    def _summary(self, path: Path, data: dict) -> CaseSummary:
-        conclusion = data.get("conclusion") if isinstance(data.get("conclusion"), dict) else {}
-        profile = (data.get("set") or {}).get("profile") if isinstance(data.get("set"), dict) else {}
-        label = profile.get("label") if isinstance(profile, dict) else None
-        status = str(data.get("status") or "open")
-        case_id = str(data.get("id"))
-        locked = self.lock_info(case_id) if status != "closed" and _ID_RE.match(case_id) else None
-        minutes = data.get("minutes")
-        return CaseSummary(
-            id=case_id, path=path, bench=str(data.get("bench") or ""), status=status,
-            opened=str(data.get("opened") or ""), updated=str(data.get("updated") or ""),
-            customer=str(data.get("customer") or ""), symptom=str(data.get("symptom") or ""),
-            family=str(data.get("family") or ""), set_label=str(label or ""),
-            fault=conclusion.get("fault"), fault_title=conclusion.get("title"),
-            outcome=data.get("outcome"),
-            minutes=float(minutes) if isinstance(minutes, (int, float)) and
-            not isinstance(minutes, bool) else None,
-            locked_by=locked)
+        return list_cases(self.folder, self.lock_info)
 
     # ----- opening and creating
 
@@ -381,15 +226,9 @@ class CaseStore:
             raise
         return OpenCase(self, case_id, data, lock)
 
-    def _next_number(self, prefix: str) -> int:
-        pattern = re.compile(re.escape(prefix) + r"(\d+)\.json$")
-        numbers = [int(m.group(1)) for p in self.folder.glob(prefix + "*.json")
-                   if (m := pattern.match(p.name))]
-        return max(numbers, default=0) + 1
-
-    def new_case(self, profile, profile_source: str, complaint: str, symptom: str,
-                 customer: str = "", apprentice: bool = False, knowledge_version: str = "",
-                 reopened_from: str | None = None) -> OpenCase:
+    def new_case(self, profile: Profile | Mapping[str, Any], profile_source: str,
+                 complaint: str, symptom: str, customer: str = "", apprentice: bool = False,
+                 knowledge_version: str = "", reopened_from: str | None = None) -> OpenCase:
         """Create ``YYYYMMDD-<bench>-<nnn>`` exclusively (the next free number) and hold it."""
         try:
             self.folder.mkdir(parents=True, exist_ok=True)
@@ -406,7 +245,7 @@ class CaseStore:
         now = self.clock()
         stamp = now.isoformat(timespec="seconds")
         prefix = f"{now:%Y%m%d}-{self.bench}-"
-        number = self._next_number(prefix)
+        number = next_case_number(self.folder, prefix)
         for _ in range(10_000):
             case_id = f"{prefix}{number:03d}"
             data = ordered({

@@ -12,7 +12,7 @@ from datetime import datetime, timezone
 SUMMARY_VERSION = 2          # bump when summarise() changes: the index is then rebuilt
 
 
-def parse_time(text) -> datetime | None:
+def parse_time(text: object) -> datetime | None:
     """ISO 8601 text -> datetime, None when absent or unreadable."""
     if not isinstance(text, str) or not text:
         return None
@@ -22,7 +22,7 @@ def parse_time(text) -> datetime | None:
         return None
 
 
-def _text(value) -> str:
+def _text(value: object) -> str:
     return value if isinstance(value, str) else ("" if value is None else str(value))
 
 
@@ -37,13 +37,13 @@ def _set_name(case: dict) -> str:
     return _text(s.get("source"))
 
 
-def _number(value) -> float | None:
+def _number(value: object) -> float | None:
     if isinstance(value, (int, float)) and not isinstance(value, bool):
         return float(value)
     return None
 
 
-def _str(value) -> str:
+def _str(value: object) -> str:
     return value if type(value) is str else _text(value)
 
 

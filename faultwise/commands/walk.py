@@ -2,7 +2,8 @@
 
 The answers file (YAML) has ``readings`` keyed by expectation name (a number in the
 expectation's unit, a string with a unit such as "58 V", or one of absent/low/normal/high)
-and ``observations`` keyed by check id (a choice each).
+and ``observations`` keyed by check id (a choice each); :mod:`faultwise.walk.answers` reads
+and checks it.
 
 The walk stops with exit status 1 at the first check the file leaves unanswered, naming the
 check and the answers it accepts (``--json``: ``{"missing": {...}}`` with the steps so far);
@@ -18,9 +19,6 @@ from __future__ import annotations
 import argparse
 import json
 import sys
-from pathlib import Path
-
-ANSWER_KEYS = ("readings", "observations")
 
 
 def register(subparsers) -> None:
@@ -41,74 +39,6 @@ def register(subparsers) -> None:
     p.set_defaults(func=run)
 
 
-def load_answers(path, knowledge, expectations) -> tuple[dict, dict]:
-    """Read and check an answers file; InputError names file, line and key of a problem."""
-    from faultwise.core.errors import FaultwiseError, InputError
-    from faultwise.graph.nodes import MEASURE_OUTCOMES, Check
-    from faultwise.core.units import parse_reading
-    from faultwise.core.yamlload import line_of, load_yaml_file
-
-    file = str(path)
-    try:
-        data = load_yaml_file(Path(path))
-    except FaultwiseError as exc:
-        raise InputError(exc.message, file=exc.file or file, line=exc.line, key=exc.key,
-                         hint=exc.hint) from None
-    if data is None:
-        data = {}
-    if not isinstance(data, dict):
-        raise InputError("the answers file must be a mapping", file=file, line=1,
-                         hint="write 'readings:' and 'observations:' sections")
-    for key in data:
-        if key not in ANSWER_KEYS:
-            raise InputError(f"unknown key '{key}' in the answers file", file=file,
-                             line=line_of(data, key), key=str(key),
-                             hint="use only readings and observations")
-    readings: dict = {}
-    raw = data.get("readings") or {}
-    if not isinstance(raw, dict):
-        raise InputError("'readings' must be a mapping", file=file,
-                         line=line_of(data, "readings"), key="readings",
-                         hint="write 'expectation.name: value' lines under it")
-    for name, value in raw.items():
-        line = line_of(raw, name)
-        if name not in expectations:
-            raise InputError(f"unknown expectation name '{name}' for this set", file=file,
-                             line=line, key=str(name),
-                             hint="run 'faultwise expect PROFILE' to list the names")
-        unit = expectations[name].unit
-        if isinstance(value, bool) or value is None or isinstance(value, (list, dict)):
-            raise InputError(f"the reading for '{name}' must be a number or a value with a unit",
-                             file=file, line=line, key=str(name), hint=f"write e.g. '{name}: 12 {unit}'")
-        if isinstance(value, str) and value.strip() not in MEASURE_OUTCOMES:
-            try:
-                parse_reading(value, unit)
-            except InputError as exc:
-                raise InputError(exc.message, file=file, line=line, key=str(name),
-                                 hint=exc.hint) from None
-        readings[str(name)] = value.strip() if isinstance(value, str) else value
-    observations: dict = {}
-    raw = data.get("observations") or {}
-    if not isinstance(raw, dict):
-        raise InputError("'observations' must be a mapping", file=file,
-                         line=line_of(data, "observations"), key="observations",
-                         hint="write 'check-id: choice' lines under it")
-    for check_id, choice in raw.items():
-        line = line_of(raw, check_id)
-        node = knowledge.nodes.get(check_id)
-        if not isinstance(node, Check) or node.is_measurement:
-            raise InputError(f"'{check_id}' is not an observation check of the knowledge",
-                             file=file, line=line, key=str(check_id),
-                             hint="give measurements under readings by expectation name")
-        if isinstance(choice, bool):   # YAML reads yes/no as booleans
-            choice = "yes" if choice else "no"
-        if not isinstance(choice, str) or choice not in node.choices:
-            raise InputError(f"'{choice}' is not a choice of '{check_id}'", file=file, line=line,
-                             key=str(check_id), hint="use one of " + ", ".join(node.choices))
-        observations[str(check_id)] = choice
-    return readings, observations
-
-
 def _step_json(step) -> dict:
     return {"n": step.n, "node": step.node, "title": step.title, "expect": step.expect,
             "raw": step.raw, "value": step.value, "outcome": step.outcome,
@@ -126,6 +56,7 @@ def run(args: argparse.Namespace) -> int:
     from faultwise.graph.knowledge import load_knowledge
     from faultwise.profile.load import load_profile
     from faultwise.profile.tubes import workspace_tube_dir
+    from faultwise.walk.answers import load_answers
     from faultwise.walk.scripted import auto_walk
     from faultwise.core.workspace import workspace_from_args
 

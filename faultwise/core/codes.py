@@ -99,7 +99,7 @@ class ColourCode:
     tolerance_pct: float
 
 
-def _colour(name) -> str:
+def _colour(name: object) -> str:
     if not isinstance(name, str):
         raise InputError(f"a colour band must be a colour name, not {name!r}")
     key = " ".join(name.strip().lower().split())

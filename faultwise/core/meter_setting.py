@@ -22,6 +22,7 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Callable
 from dataclasses import dataclass, replace
 
 from faultwise.core.errors import FaultwiseError
@@ -61,7 +62,7 @@ class MeterConfig:
         return self.kind == MANUAL
 
 
-def parse_spec(text, *, file: str | None = None, line: int | None = None,
+def parse_spec(text: object, *, file: str | None = None, line: int | None = None,
                key: str = "meter") -> MeterConfig:
     """``visa:RESOURCE`` / ``sigrok:DRIVER[:conn=...]`` / ``manual`` -> MeterConfig."""
     where = {"file": file, "line": line, "key": key}
@@ -97,12 +98,14 @@ def parse_spec(text, *, file: str | None = None, line: int | None = None,
     return MeterConfig("sigrok", driver, conn)
 
 
-def parse_meter_setting(value, *, file: str | None = None, line_of=None) -> MeterConfig:
+def parse_meter_setting(value: object, *, file: str | None = None,
+                        line_of: Callable[[object, object], int | None] | None = None
+                        ) -> MeterConfig:
     """The ``meter:`` value of faultwise.yaml (a SPEC or a mapping, module doc).
 
     ``line_of(container, key)`` gives the line of a key (faultwise.core.yamlload.line_of).
     """
-    def at(container, key):
+    def at(container: object, key: object) -> int | None:
         return line_of(container, key) if line_of else None
 
     if isinstance(value, str):

@@ -22,11 +22,11 @@ def _picture(match: re.Match) -> str:
     return "\u2421" if code == 0x7F else "\ufffd"
 
 
-def shown_text(text) -> str:
+def shown_text(text: object) -> str:
     """``text`` with every control character but newline and tab made visible and harmless."""
     return CONTROL.sub(_picture, str(text))
 
 
-def one_line(text) -> str:
+def one_line(text: object) -> str:
     """``text`` on one line: runs of white space folded, control characters made visible."""
     return " ".join(shown_text(text).split())

@@ -26,9 +26,13 @@ import os
 import re
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from faultwise.core.errors import CaseError, FaultwiseError
 from faultwise.core.meter_setting import MeterConfig
+
+if TYPE_CHECKING:
+    import argparse
 
 CONFIG_NAME = "faultwise.yaml"
 CONFIG_KEYS = ("knowledge", "cases", "bench", "shop", "meter")
@@ -57,7 +61,7 @@ def bundled_knowledge_dir() -> Path:
                               "root, or give --knowledge DIR")
 
 
-def check_bench(bench) -> str:
+def check_bench(bench: object) -> str:
     """The bench name, if it is safe in a case id and a file name; CaseError otherwise."""
     bench = str(bench)
     if not _BENCH_RE.match(bench):
@@ -128,7 +132,7 @@ def _config(cwd: Path) -> dict:
     return data
 
 
-def _text(value, key: str, path: Path, line: int | None) -> str:
+def _text(value: object, key: str, path: Path, line: int | None) -> str:
     """A shop field as text: strings and plain numbers (a phone number) are accepted."""
     if isinstance(value, bool) or not isinstance(value, (str, int, float)):
         raise FaultwiseError(f"'shop.{key}' must be a text", file=str(path), line=line,
@@ -197,7 +201,7 @@ def resolve_workspace(knowledge: str | os.PathLike | None = None,
                      shop=shop_from_config(conf, cwd), meter=meter_config)
 
 
-def workspace_from_args(args) -> Workspace:
+def workspace_from_args(args: argparse.Namespace) -> Workspace:
     """The workspace for a parsed command line (options given before or after the command)."""
     return resolve_workspace(getattr(args, "knowledge", None), getattr(args, "cases", None),
                              getattr(args, "bench", None), meter=getattr(args, "meter", None))

@@ -10,6 +10,7 @@ PyYAML's C parser is used where it is installed.
 from __future__ import annotations
 
 from pathlib import Path
+from typing import Any, NoReturn
 
 import yaml
 
@@ -30,7 +31,7 @@ class LineDict(dict):
     line: int = 0
     key_lines: dict
 
-    def line_of(self, key) -> int:
+    def line_of(self, key: object) -> int:
         return getattr(self, "key_lines", {}).get(key, self.line)
 
 
@@ -45,7 +46,7 @@ class LineList(list):
         return lines[index] if 0 <= index < len(lines) else self.line
 
 
-def line_of(container, key) -> int | None:
+def line_of(container: object, key: object) -> int | None:
     """Line of ``key`` inside a loaded mapping or sequence, or None when unknown."""
     if isinstance(container, (LineDict, LineList)):
         return container.line_of(key) or None
@@ -55,13 +56,13 @@ def line_of(container, key) -> int | None:
 class _Loader(_BaseLoader):
     """Safe loader: plain data only, no aliases, bounded depth, line numbers kept."""
 
-    def __init__(self, stream, source: str) -> None:
+    def __init__(self, stream: str | bytes, source: str) -> None:
         super().__init__(stream)
         self._source = source
         self._text = stream if isinstance(stream, str) else None
         self._depth = 0
 
-    def construct_object(self, node, deep=False):
+    def construct_object(self, node: yaml.Node, deep: bool = False) -> Any:
         if node in self.constructed_objects:
             raise FaultwiseError("YAML aliases (*name) are not accepted", file=self._source,
                                  line=self._first_alias_line() or node.start_mark.line + 1,
@@ -94,7 +95,7 @@ class _Loader(_BaseLoader):
             return None
         return None
 
-    def construct_line_mapping(self, node):
+    def construct_line_mapping(self, node: yaml.Node) -> LineDict:
         if not isinstance(node, yaml.MappingNode):  # pragma: no cover - guarded by the tag
             raise FaultwiseError("expected a mapping", file=self._source,
                                  line=node.start_mark.line + 1)
@@ -115,13 +116,13 @@ class _Loader(_BaseLoader):
             out.key_lines[key] = key_node.start_mark.line + 1
         return out
 
-    def construct_line_sequence(self, node):
+    def construct_line_sequence(self, node: yaml.SequenceNode) -> LineList:
         out = LineList(self.construct_object(child, deep=True) for child in node.value)
         out.line = node.start_mark.line + 1
         out.item_lines = [child.start_mark.line + 1 for child in node.value]
         return out
 
-    def construct_unknown(self, node):
+    def construct_unknown(self, node: yaml.Node) -> NoReturn:
         raise FaultwiseError(f"the YAML tag '{node.tag}' is not accepted", file=self._source,
                              line=node.start_mark.line + 1,
                              hint="write plain values only (no !tags)")
@@ -136,7 +137,7 @@ _Loader.add_constructor("tag:yaml.org,2002:binary", _Loader.construct_unknown)
 _Loader.add_constructor(None, _Loader.construct_unknown)
 
 
-def _timestamp_as_text(loader: _Loader, node):
+def _timestamp_as_text(loader: _Loader, node: yaml.ScalarNode) -> str:
     return loader.construct_scalar(node)
 
 
@@ -144,7 +145,7 @@ def _timestamp_as_text(loader: _Loader, node):
 _Loader.add_constructor("tag:yaml.org,2002:timestamp", _timestamp_as_text)
 
 
-def load_yaml_text(text: str, source: str = "<text>"):
+def load_yaml_text(text: str, source: str = "<text>") -> Any:
     """Parse YAML text into plain data with line numbers; raise FaultwiseError located."""
     if len(text) > MAX_BYTES:
         raise FaultwiseError(f"file larger than {MAX_BYTES // (1024 * 1024)} MB", file=source,
@@ -168,7 +169,7 @@ def load_yaml_text(text: str, source: str = "<text>"):
         loader.dispose()
 
 
-def load_yaml_file(path: str | Path):
+def load_yaml_file(path: str | Path) -> Any:
     """Read and parse one YAML file people wrote; every problem is a located FaultwiseError."""
     path = Path(path)
     source = str(path)

@@ -2,7 +2,13 @@
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from faultwise.expect.context import Context, basis_num as _n
+
+if TYPE_CHECKING:
+    from faultwise.calc.tolerance import Spread
+    from faultwise.profile.model import Transistor
 
 ROLE_STAGE = {"rf": "antenna", "converter": "oscillator", "mixer": "if",
               "oscillator": "oscillator", "if": "if", "if2": "if", "if3": "if",
@@ -28,7 +34,7 @@ def add_battery(ctx: Context) -> None:
             f"{_n(high)} V (fresh) (trade)", keys=("battery",))
 
 
-def _bias_spreads(ctx: Context, tr) -> dict:
+def _bias_spreads(ctx: Context, tr: Transistor) -> dict[str, Spread]:
     from faultwise.calc import battery
     from faultwise.calc.tolerance import Spread, beta, resistor_ohm, vbe_v
 

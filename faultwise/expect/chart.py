@@ -9,9 +9,16 @@ transistors by lead (B, E, C) and the push-pull pair's own readings. ``render_ch
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 from faultwise.expect.context import basis_num as _n
+
+if TYPE_CHECKING:
+    from faultwise.expect.context import Expected
+    from faultwise.profile.model import Profile
+    from faultwise.profile.tubes import TubeTable
 
 
 @dataclass(frozen=True)
@@ -45,19 +52,21 @@ def _pins(pins: tuple) -> str:
     return "-".join(str(p) for p in pins) if pins else "?"
 
 
-def _row(role, device, pin, electrode, e) -> ChartRow:
+def _row(role: str, device: str, pin: str, electrode: str, e: Expected) -> ChartRow:
     return ChartRow(role, device, pin, electrode, e.name, e.stage, e.nominal, e.low, e.high,
                     e.unit, e.typical)
 
 
-def chart_rows(profile, expectations: dict, tube_table=None) -> list[ChartRow]:
+def chart_rows(profile: Profile, expectations: Mapping[str, Expected],
+               tube_table: TubeTable | None = None) -> list[ChartRow]:
     """The chart of this set, device by device in lineup order."""
     if profile.line_powered:
         return _tube_rows(profile, expectations, tube_table)
     return _transistor_rows(profile, expectations)
 
 
-def _tube_rows(profile, expectations: dict, tube_table) -> list[ChartRow]:
+def _tube_rows(profile: Profile, expectations: Mapping[str, Expected],
+               tube_table: TubeTable | None) -> list[ChartRow]:
     from faultwise.profile.tubes import load_tube_table, lookup
 
     table = tube_table if tube_table is not None else load_tube_table()
@@ -85,7 +94,7 @@ def _tube_rows(profile, expectations: dict, tube_table) -> list[ChartRow]:
     return rows
 
 
-def _transistor_rows(profile, expectations: dict) -> list[ChartRow]:
+def _transistor_rows(profile: Profile, expectations: Mapping[str, Expected]) -> list[ChartRow]:
     rows: list[ChartRow] = []
     for tr in profile.transistors:
         device = f"{tr.role} {tr.material[:2].upper()} {tr.polarity.upper()}"
@@ -125,7 +134,7 @@ def _shown(r: ChartRow) -> tuple[str, str]:
     return f"{neg(r.nominal)} {r.unit}", f"{neg(r.high)} to {neg(r.low)}"
 
 
-def render_chart(profile, rows: list[ChartRow], width: int = 80) -> list[str]:
+def render_chart(profile: Profile, rows: list[ChartRow], width: int = 80) -> list[str]:
     """Plain-text chart, at most ``width`` columns: device, pin, electrode, nominal, band."""
     lines = [f"Voltage chart: {profile.label}"[:width],
              ("DC to B- (series-string) or chassis, warm, off station; grids read negative"

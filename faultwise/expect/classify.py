@@ -2,11 +2,16 @@
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from faultwise.core.errors import InputError
 from faultwise.core.vocabulary import MEASURE_OUTCOMES
 
+if TYPE_CHECKING:
+    from faultwise.expect.context import Expected
 
-def classify(value: float, expected) -> str:
+
+def classify(value: float, expected: Expected) -> str:
     """|v| <= absent_below (when > 0) -> absent; |v| < low -> low; |v| > high -> high; else normal."""
     magnitude = abs(value)
     if expected.absent_below > 0 and magnitude <= expected.absent_below:
@@ -18,7 +23,7 @@ def classify(value: float, expected) -> str:
     return "normal"
 
 
-def representative_value(expected, outcome: str) -> float:
+def representative_value(expected: Expected, outcome: str) -> float:
     """A value (in the expectation's unit) that classifies as ``outcome``: used by automatic walks."""
     floor = max(expected.absent_below, 0.0)
     if outcome == "normal":
@@ -35,7 +40,7 @@ def representative_value(expected, outcome: str) -> float:
     raise InputError(f"'{outcome}' is not a reading class", hint="use " + ", ".join(MEASURE_OUTCOMES))
 
 
-def band_of(expected) -> dict:
+def band_of(expected: Expected) -> dict[str, object]:
     """The band as recorded in an answer event."""
     band = expected.to_json()
     band["absent_below"] = expected.absent_below

@@ -4,6 +4,13 @@ number format."""
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from faultwise.calc.tolerance import Spread
+    from faultwise.expect.supply import SimulatedSupply
+    from faultwise.profile.model import Profile
+    from faultwise.profile.tubes import TubeTable, TubeType
 
 
 @dataclass(frozen=True)
@@ -46,21 +53,21 @@ def basis_num(x: float) -> str:
 class Context:
     """The profile, the tube table (loaded on first use) and the expectations built so far."""
 
-    def __init__(self, profile, tube_table) -> None:
+    def __init__(self, profile: Profile, tube_table: TubeTable | None) -> None:
         self.p = profile
         self._table = tube_table
         self.out: dict[str, Expected] = {}
-        self.supply_sim = None   # expect_supply.simulate_supply caches its result here
+        self.supply_sim: SimulatedSupply | None = None   # supply.simulate_supply caches it here
 
     @property
-    def table(self):
+    def table(self) -> TubeTable:
         if self._table is None:
             from faultwise.profile.tubes import load_tube_table
 
             self._table = load_tube_table()
         return self._table
 
-    def tube_type(self, type_name: str):
+    def tube_type(self, type_name: str) -> TubeType | None:
         from faultwise.profile.tubes import lookup
 
         return lookup(type_name, self.table)
@@ -82,7 +89,7 @@ class Context:
             basis=basis, typical=self.typical(*keys) if typical is None else typical,
             absent_below=0.1 * abs(nominal) if absent is None else absent)
 
-    def line(self):
+    def line(self) -> Spread:
         from faultwise.calc.mains import line_range_v
 
         return line_range_v(self.p.mains_v)

@@ -15,8 +15,15 @@ reads of the ripple) and ``parts`` (replacement part ratings for this set); they
 
 from __future__ import annotations
 
+import os
+from typing import TYPE_CHECKING
+
 from faultwise.core.vocabulary import STAGES
 from faultwise.expect.context import Expected
+
+if TYPE_CHECKING:
+    from faultwise.profile.model import Profile
+    from faultwise.profile.tubes import TubeTable
 
 
 __all__ = ["Expected", "STAGES", "expectation_names", "expect", "expect_in_workspace"]
@@ -73,7 +80,7 @@ def expectation_names(family: str) -> frozenset[str]:
     return frozenset(names)
 
 
-def expect(profile, *, tube_table=None) -> dict[str, Expected]:
+def expect(profile: Profile, *, tube_table: TubeTable | None = None) -> dict[str, Expected]:
     """Every expectation this profile allows, keyed by name, in stage order.
 
     ``tube_table``: a :class:`faultwise.profile.tubes.TubeTable` for rectifier and output-tube data
@@ -114,7 +121,8 @@ def expect(profile, *, tube_table=None) -> dict[str, Expected]:
 
 
 
-def expect_in_workspace(profile, knowledge_dir) -> dict[str, Expected]:
+def expect_in_workspace(profile: Profile,
+                        knowledge_dir: str | os.PathLike[str] | None) -> dict[str, Expected]:
     """``expect(profile)`` with the workspace's own tube table when its knowledge has one.
 
     Every place that turns a set into expectations for a workspace (the walk command, the

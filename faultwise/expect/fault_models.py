@@ -80,8 +80,13 @@ role the set lacks does not apply to that set (the sweep skips the pair and says
 from __future__ import annotations
 
 import re
-from collections.abc import Mapping
+from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from faultwise.profile.model import Profile
+    from faultwise.profile.tubes import TubeTable
 
 SHORT_OHM = 1.0
 """Resistance of a shorted part: about an ohm (a failed electrolytic or a solder bridge,
@@ -190,7 +195,7 @@ def pattern_of(target: str) -> str | None:
     return None
 
 
-def parse_change(target: str, text) -> Change:
+def parse_change(target: str, text: object) -> Change:
     """One ``target: change`` entry; raises ValueError with the reason."""
     pattern = pattern_of(target)
     if pattern is None:
@@ -226,7 +231,8 @@ def target_family_ok(target: str, family: str) -> bool:
     return True
 
 
-def model_problems(model: Mapping, families) -> list[tuple[str, str, str]]:
+def model_problems(model: Mapping[str, object], families: Sequence[str]
+                   ) -> list[tuple[str, str, str]]:
     """(target, message, hint) for every entry lint must report."""
     out = []
     for target, text in model.items():
@@ -255,7 +261,7 @@ def model_problems(model: Mapping, families) -> list[tuple[str, str, str]]:
     return out
 
 
-def roles_needed(changes) -> tuple[tuple[str, str], ...]:
+def roles_needed(changes: Iterable[Change]) -> tuple[tuple[str, str], ...]:
     """(kind, role) pairs the profile must have for the model to apply: tube/transistor roles."""
     out = []
     for c in changes:
@@ -267,7 +273,25 @@ def roles_needed(changes) -> tuple[tuple[str, str], ...]:
     return tuple(out)
 
 
-def applies_to(changes, profile) -> str:
+def stage_part_ohm(profile: Profile, role: str, part: str,
+                   table: TubeTable | None = None) -> float | None:
+    """The resistor a stage's chart uses for ``part`` (the profile's, else the family's
+    typical one); 0 or None when the stage has none (a screen fed straight from B+)."""
+    from faultwise.expect.context import Context
+    from faultwise.expect.stages import role_kind, stage_circuit, stage_operation
+
+    tube = profile.tube(role)
+    if tube is None:
+        return None
+    ctx = Context(profile, table)
+    op, _ = stage_operation(ctx, tube)
+    if op is None:
+        return None
+    circuit, _ = stage_circuit(ctx, tube, role_kind(role, op))
+    return getattr(circuit, part, None)
+
+
+def applies_to(changes: Sequence[Change], profile: Profile) -> str:
     """'' when the model can be applied to this profile, else why not."""
     for c in changes:
         if not target_family_ok(c.target, profile.family):
@@ -279,8 +303,6 @@ def applies_to(changes, profile) -> str:
     for c in changes:
         p = c.parts
         if p[0] == "tube" and len(p) == 3 and p[2].endswith("_ohm") and c.kind == "scale":
-            from faultwise.expect.fault_physics_chart import stage_part_ohm
-
             if not stage_part_ohm(profile, p[1], p[2]):
                 return f"the set's {p[1]} stage has no {p[2][:-4]} resistor to drift"
     if any(c.target == "output.bias" for c in changes):

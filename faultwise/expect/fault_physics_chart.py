@@ -27,13 +27,23 @@ profile and kept.
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping
+from typing import TYPE_CHECKING
 
 from faultwise.expect.fault_models import LEAKY_GRID_V, OPEN_OHM, SHORT_OHM
+from faultwise.expect.fault_state import stage_point
+
+if TYPE_CHECKING:
+    from faultwise.expect.context import Context, Expected
+    from faultwise.expect.fault_models import Change
+    from faultwise.expect.fault_state import State
+    from faultwise.profile.model import Profile
+    from faultwise.profile.tubes import TubeTable
 
 _CONTEXTS: dict[int, tuple] = {}
 
 
-def chart_context(profile, healthy, table):
+def chart_context(profile: Profile, healthy: Mapping[str, Expected], table: TubeTable | None) -> Context:
     """The chart engine's context for this profile (kept: the supply simulation is its cost)."""
     from faultwise.expect.context import Context
 
@@ -48,24 +58,7 @@ def chart_context(profile, healthy, table):
     return ctx
 
 
-def stage_part_ohm(profile, role: str, part: str, table=None) -> float | None:
-    """The resistor a stage's chart uses for ``part`` (the profile's, else the family's
-    typical one); 0 or None when the stage has none (a screen fed straight from B+)."""
-    from faultwise.expect.context import Context
-    from faultwise.expect.stages import role_kind, stage_circuit, stage_operation
-
-    tube = profile.tube(role)
-    if tube is None:
-        return None
-    ctx = Context(profile, table)
-    op, _ = stage_operation(ctx, tube)
-    if op is None:
-        return None
-    circuit, _ = stage_circuit(ctx, tube, role_kind(role, op))
-    return getattr(circuit, part, None)
-
-
-def _part(change, values: dict, factors: dict, name: str) -> None:
+def _part(change: Change, values: dict[str, float], factors: dict[str, float], name: str) -> None:
     if change.kind == "open":
         values[name] = math.inf
     elif change.kind == "short":
@@ -76,7 +69,8 @@ def _part(change, values: dict, factors: dict, name: str) -> None:
         factors[name] = factors.get(name, 1.0) * change.factor
 
 
-def tube_stage_readings(profile, st, healthy, table, *, first_scale: float, scale: float,
+def tube_stage_readings(profile: Profile, st: State, healthy: Mapping[str, Expected],
+                        table: TubeTable | None, *, first_scale: float, scale: float,
                         cold: set[str]) -> dict[str, float]:
     """Every tube stage's chart readings on the broken set (names the healthy set has)."""
     from faultwise.expect.stages import NO_STAGE_ROLES, faulty_stage_readings
@@ -105,7 +99,8 @@ def tube_stage_readings(profile, st, healthy, table, *, first_scale: float, scal
     return out
 
 
-def grid_current_factor(profile, st, healthy, table, role: str) -> float:
+def grid_current_factor(profile: Profile, st: State, healthy: Mapping[str, Expected],
+                        table: TubeTable | None, role: str) -> float:
     """A positive grid's cathode current over the healthy one (the chart's stage model), for the
     older names (``output.cathode_v``) that scale with the stage's current; 1 without one."""
     from faultwise.expect.stages import faulty_stage_readings
@@ -119,7 +114,8 @@ def grid_current_factor(profile, st, healthy, table, role: str) -> float:
     return got.get(name, healthy[name].nominal) / healthy[name].nominal
 
 
-def pair_readings(profile, st, healthy, table, vcc: float) -> tuple[dict[str, float], float]:
+def pair_readings(profile: Profile, st: State, healthy: Mapping[str, Expected], table: TubeTable | None,
+                  vcc: float) -> tuple[dict[str, float], float]:
     """(bias.output.* readings, faulty idle current) of a push-pull pair on the broken set."""
     from faultwise.expect.output_pair import faulty_pair_readings
 
@@ -165,8 +161,6 @@ def pair_readings(profile, st, healthy, table, vcc: float) -> tuple[dict[str, fl
         out["bias.output.vc_v"] = vcc
     if me is not None and me.kind == "short":
         # collector to emitter: the supply across the emitter resistor and half the primary
-        from faultwise.expect.fault_physics import stage_point
-
         pt = stage_point(vcc, b.top_ohm, b.bottom_ohm, b.emitter_ohm, b.collector_ohm, tr.beta,
                          0.0, state="short")
         out.update({"bias.output.ic_ma": pt.ic_ma, "bias.output.ve_v": pt.ve_v})

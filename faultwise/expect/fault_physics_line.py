@@ -3,10 +3,20 @@
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping
 from dataclasses import replace
+from typing import TYPE_CHECKING
 
 from faultwise.expect.fault_models import SHORT_OHM
 from faultwise.expect.fault_physics_chart import grid_current_factor, tube_stage_readings
+from faultwise.expect.fault_state import SCREEN_OPEN_CURRENT
+
+if TYPE_CHECKING:
+    from faultwise.calc.rectifier import RectifierCircuit
+    from faultwise.expect.context import Expected
+    from faultwise.expect.fault_state import State
+    from faultwise.profile.model import Profile
+    from faultwise.profile.tubes import TubeTable
 
 BLEED_MA = 0.01
 """Load left on the supply when every tube is cold: the meter and leakage (a token 10 uA)."""
@@ -18,7 +28,9 @@ ZERO_BIAS_CURRENT = 1.8
 (a shorted cathode resistor), about 1.5-2 (tube curves, from memory)."""
 
 
-def _circuit(profile, st, table, *, load_ma=None, filter_load_ma=None):
+def _circuit(profile: Profile, st: State, table: TubeTable | None, *,
+             load_ma: float | None = None, filter_load_ma: float | None = None
+             ) -> RectifierCircuit:
     """The nominal RectifierCircuit of this profile with the model's value changes."""
     from faultwise.calc import rectifier as r
     from faultwise.expect.context import Context
@@ -47,7 +59,7 @@ def _circuit(profile, st, table, *, load_ma=None, filter_load_ma=None):
                         if filter_load_ma is None else filter_load_ma))
 
 
-def _into_short_v(c, short_ohm: float = SHORT_OHM, steps: int = 400) -> tuple[float, float]:
+def _into_short_v(c: RectifierCircuit, short_ohm: float = SHORT_OHM, steps: int = 400) -> tuple[float, float]:
     """(mean, peak-to-peak) voltage across a shorted first capacitor: the rectifier into Rs + short.
 
     Each instant solves vs = i (Rs + Rsh) + n_diodes * drop(i) by bisection.
@@ -75,7 +87,8 @@ def _into_short_v(c, short_ohm: float = SHORT_OHM, steps: int = 400) -> tuple[fl
     return sum(vals) / steps, max(vals) - min(vals)
 
 
-def simulate_faulty(profile, st, table, *, tubes_hot: bool) -> dict[str, float]:
+def simulate_faulty(profile: Profile, st: State, table: TubeTable | None, *,
+                    tubes_hot: bool) -> dict[str, float]:
     """rectifier_out_v, ripple_vpp, filtered_v and filter_drop_v of the faulty supply."""
     from faultwise.calc import rectifier as r
 
@@ -120,7 +133,7 @@ def simulate_faulty(profile, st, table, *, tubes_hot: bool) -> dict[str, float]:
                 filtered_v=res.filtered_v, filter_drop_v=rf * fload / 1000.0)
 
 
-def _heaters(profile, st, healthy, out: dict) -> set[str]:
+def _heaters(profile: Profile, st: State, healthy: Mapping[str, Expected], out: dict[str, float]) -> set[str]:
     """Heater readings; returns the tube roles left cold."""
     roles = [t.role for t in profile.tubes]
     cold: set[str] = set()
@@ -152,7 +165,8 @@ def _heaters(profile, st, healthy, out: dict) -> set[str]:
     return set(st.heater_open)
 
 
-def line_readings(profile, st, healthy, table) -> dict[str, float]:
+def line_readings(profile: Profile, st: State, healthy: Mapping[str, Expected],
+                  table: TubeTable | None) -> dict[str, float]:
     """Every reading of a line set the model moves (plus '_gain' for the signal readings)."""
     out: dict[str, float] = {}
     cold = _heaters(profile, st, healthy, out)
@@ -173,8 +187,6 @@ def line_readings(profile, st, healthy, table) -> dict[str, float]:
     f_h = healthy["supply.filtered_v"].nominal if "supply.filtered_v" in healthy else None
     f_f = out.get("supply.filtered_v", f_h)
     ratio = (max(f_f, 0.0) / f_h) if f_h else 1.0
-
-    from faultwise.expect.fault_physics import SCREEN_OPEN_CURRENT
 
     def current(role: str) -> float:
         if role in cold or st.line_open:
@@ -202,7 +214,8 @@ def line_readings(profile, st, healthy, table) -> dict[str, float]:
     return out
 
 
-def _output_stage(profile, st, healthy, out, k_current: float, screen_v) -> None:
+def _output_stage(profile: Profile, st: State, healthy: Mapping[str, Expected], out: dict[str, float],
+                  k_current: float, screen_v: float | None) -> None:
     t = profile.tube("output")
     if t is None:
         return

@@ -2,7 +2,12 @@
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from faultwise.expect.context import Context, basis_num as _n
+
+if TYPE_CHECKING:
+    from faultwise.profile.model import Profile, Tube
 
 
 def add_heaters(ctx: Context) -> None:
@@ -14,7 +19,7 @@ def add_heaters(ctx: Context) -> None:
         _heater_winding(ctx)
 
 
-def _string_current_a(p) -> float:
+def _string_current_a(p: Profile) -> float:
     """The string's rated current: the heater current most of its tubes share."""
     currents = [t.heater_a for t in p.tubes]
     return max(set(currents), key=lambda a: (currents.count(a), a))
@@ -75,7 +80,7 @@ def _series_string(ctx: Context) -> None:
     drop_v = r_drop * rated_a
     design = h.design_line_v(total, r_drop, rated_a)
     for t in tubes:
-        def heater_v(line_v: float, dv: float, t=t) -> float:
+        def heater_v(line_v: float, dv: float, t: Tube = t) -> float:
             return h.series_heater_v(line_v, t.heater_v, 1.0, total, 1.0, dv)
 
         b = worst_case(heater_v, {"line_v": line, "dv": relative(drop_v, RESISTOR_TOL)})
@@ -90,7 +95,7 @@ def _series_string(ctx: Context) -> None:
         _cold_ohm(ctx, t)
 
 
-def _cold_ohm(ctx: Context, t) -> None:
+def _cold_ohm(ctx: Context, t: Tube) -> None:
     from faultwise.calc import heaters as h
     from faultwise.calc.tolerance import heater
 

@@ -12,8 +12,15 @@ the class-A divider model of :mod:`faultwise.expect_bias`.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
+from typing import TYPE_CHECKING
 
 from faultwise.expect.context import Context, basis_num as _n
+
+if TYPE_CHECKING:
+    from faultwise.calc.push_pull import PushPull
+    from faultwise.calc.tolerance import Band, Spread
+    from faultwise.profile.model import Profile, Transistor
 
 PAIR_STAGES = ("push-pull-transformer", "complementary")
 PAIR_FIELDS = ("idle_ma", "bases_v", "midpoint_v")
@@ -30,12 +37,12 @@ ABSENT_FRACTION = 0.5
 """A reading below half the band's low end counts as absent (no idle current at all)."""
 
 
-def is_pair(profile) -> bool:
+def is_pair(profile: Profile) -> bool:
     return (not profile.line_powered and profile.output_stage in PAIR_STAGES
             and profile.transistor("output") is not None)
 
 
-def _spreads(ctx: Context, tr):
+def _spreads(ctx: Context, tr: Transistor) -> dict[str, Spread]:
     from faultwise.calc import battery
     from faultwise.calc.tolerance import VBE_V, Spread, beta, resistor_ohm
 
@@ -49,7 +56,8 @@ def _spreads(ctx: Context, tr):
             "vbe_1ma_v": vbe}
 
 
-def pair_model(ctx: Context):
+def pair_model(ctx: Context
+               ) -> tuple[Callable[..., PushPull], dict[str, Spread], str, list[str]]:
     """(function of the spreads, spreads, description, typical keys) for the set's pair."""
     from faultwise.calc import push_pull as pp
     from faultwise.calc.tolerance import Spread, relative, resistor_ohm
@@ -82,7 +90,8 @@ def pair_model(ctx: Context):
             f"diodes sets base to base = 2 Vd(Id); the pair: 2 Vbe(Ic) + 2 Ic Re = 2 Vd (diodes "
             f"{_n(pp.PAIR_AREA)} x smaller junctions, Shockley); midpoint at half the supply")
 
-    def fn(vcc_v, emitter_ohm, vbe_1ma_v, load_ohm, diode_1ma_v, midpoint_fraction):
+    def fn(vcc_v: float, emitter_ohm: float, vbe_1ma_v: float, load_ohm: float,
+           diode_1ma_v: float, midpoint_fraction: float) -> PushPull:
         return pp.complementary_pair(vcc_v, load_ohm, 2, emitter_ohm, 100.0, vbe_1ma_v,
                                      diode_1ma_v, midpoint_fraction)
 
@@ -106,7 +115,7 @@ def faulty_pair_readings(ctx: Context, **changes) -> dict[str, float]:
     return out
 
 
-def _half(b):
+def _half(b: Band) -> Band:
     from faultwise.calc.tolerance import Band
 
     return Band(b.nominal / 2.0, b.low / 2.0, b.high / 2.0)

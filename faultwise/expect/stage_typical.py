@@ -17,7 +17,8 @@ _MEM = "receiving-tube handbook typical operation, from memory"
 _SCREEN_MU = "; grid-1-to-screen mu a trade estimate"
 
 
-def _op(pv, sv, gv, pma, sma, mu, gm, src=_MEM):
+def _op(pv: float, sv: float, gv: float, pma: float, sma: float, mu: float, gm: float | None,
+        src: str = _MEM) -> TypicalOperation:
     return TypicalOperation(float(pv), float(sv), float(gv), float(pma), float(sma), float(mu),
                             None if gm is None else float(gm), src)
 

@@ -15,9 +15,18 @@ changed (``screen_ohm=math.inf``, ``emission=0.4`` ...), from the same model as 
 
 from __future__ import annotations
 
+from collections.abc import Callable, Mapping
 from dataclasses import replace
+from typing import TYPE_CHECKING
 
 from faultwise.expect.context import Context, basis_num as _n
+
+if TYPE_CHECKING:
+    from faultwise.calc.tolerance import Band, Spread
+    from faultwise.calc.tube_stage import StageDC, TypicalOperation
+    from faultwise.expect.stage_typical import StageCircuit
+    from faultwise.expect.supply import SimulatedSupply
+    from faultwise.profile.model import Tube
 
 STAGE_FIELDS = ("plate_v", "screen_v", "cathode_v", "grid_v", "cathode_ma")
 NO_STAGE_ROLES = ("rectifier", "tuning-eye", "ballast")
@@ -28,7 +37,7 @@ _WHAT = {"plate_v": ("plate", "V"), "screen_v": ("screen", "V"), "cathode_v": ("
          "grid_v": ("control grid", "V"), "cathode_ma": ("cathode current", "mA")}
 
 
-def role_kind(role: str, op) -> str:
+def role_kind(role: str, op: TypicalOperation) -> str:
     """converter | if | triode-audio | pentode-audio | output, from the role and the section."""
     if role in ("converter", "mixer", "oscillator"):
         return "converter"
@@ -39,7 +48,7 @@ def role_kind(role: str, op) -> str:
     return "triode-audio" if op.is_triode else "pentode-audio"
 
 
-def stage_operation(ctx: Context, tube):
+def stage_operation(ctx: Context, tube: Tube) -> tuple[TypicalOperation | None, bool]:
     """(TypicalOperation, typical?) for a tube, or (None, False) when it has no amplifier section."""
     from faultwise.calc.tube_stage import TypicalOperation
     from faultwise.expect.stage_typical import GENERIC_BY_KIND, OPERATION, OUTPUT_SLOPE
@@ -60,7 +69,7 @@ def stage_operation(ctx: Context, tube):
     return None, False
 
 
-def stage_circuit(ctx: Context, tube, kind: str):
+def stage_circuit(ctx: Context, tube: Tube, kind: str) -> tuple[StageCircuit, list[str]]:
     """(StageCircuit, typical keys used): the profile's parts over the family's typical ones."""
     from faultwise.expect.stage_typical import typical_circuit
 
@@ -81,7 +90,8 @@ def stage_circuit(ctx: Context, tube, kind: str):
     return circuit, used
 
 
-def _spreads(ctx: Context, circuit, kind: str, nodes: dict):
+def _spreads(ctx: Context, circuit: StageCircuit, kind: str, nodes: dict[str, Band]
+             ) -> tuple[dict[str, Spread], Band, Band, str | None]:
     from faultwise.calc.tolerance import TUBE_CURRENT_TOL, Spread, fixed, relative, resistor_ohm
     from faultwise.expect.stage_typical import GRID_STATE
 
@@ -122,7 +132,9 @@ def add_tube_stages(ctx: Context) -> None:
         _add_stage(ctx, tube, op, op_typical, nodes, sim)
 
 
-def stage_model(ctx: Context, tube, op, nodes: dict):
+def stage_model(ctx: Context, tube: Tube, op: TypicalOperation, nodes: dict[str, Band]
+                ) -> tuple[Callable[..., StageDC], dict[str, Spread], StageCircuit, list[str],
+                           str | None, Band, Band]:
     """(function of the spreads -> StageDC, spreads, circuit, typical keys, grid state, plate
     node, screen node) for one tube: what the chart's band and a fault model both evaluate."""
     from faultwise.calc.tube_stage import solve_stage
@@ -134,7 +146,8 @@ def stage_model(ctx: Context, tube, op, nodes: dict):
     p_nom, s_nom = pnode.nominal, snode.nominal
     rg1 = circuit.grid_ohm
 
-    def stage(scale, plate_ohm, screen_ohm, cathode_ohm, emission, grid_v, first_scale=None):
+    def stage(scale: float, plate_ohm: float, screen_ohm: float, cathode_ohm: float,
+              emission: float, grid_v: float, first_scale: float | None = None) -> StageDC:
         # first_scale: the first filter point moved on its own (a fault model; the bands
         # move both points together through ``scale``)
         p_scale = first_scale if first_scale is not None and circuit.supply == "first" else scale
@@ -147,7 +160,8 @@ def stage_model(ctx: Context, tube, op, nodes: dict):
     return stage, sp, circuit, used, state, pnode, snode
 
 
-def faulty_stage_readings(ctx: Context, role: str, *, factors=None, **changes) -> dict[str, float]:
+def faulty_stage_readings(ctx: Context, role: str, *, factors: Mapping[str, float] | None = None,
+                          **changes: float) -> dict[str, float]:
     """Chart readings of one tube stage with parts changed (a fault model), as magnitudes.
 
     ``changes`` override the nominal inputs: ``screen_ohm=math.inf`` (screen resistor open),
@@ -176,7 +190,8 @@ def faulty_stage_readings(ctx: Context, role: str, *, factors=None, **changes) -
     return {f"stage.{role}.{f}": abs(getattr(dc, f)) for f in fields}
 
 
-def _add_stage(ctx: Context, tube, op, op_typical: bool, nodes: dict, sim) -> None:
+def _add_stage(ctx: Context, tube: Tube, op: TypicalOperation, op_typical: bool,
+               nodes: dict[str, Band], sim: SimulatedSupply) -> None:
     from faultwise.calc.tolerance import worst_case_fields
     from faultwise.expect.stage_typical import GRID_STATE, OSC_GRID_MA
 

@@ -21,10 +21,17 @@ from __future__ import annotations
 
 from collections.abc import Callable, Mapping
 from types import MappingProxyType
+from typing import TYPE_CHECKING
 
 from faultwise.graph.nodes import Check, Fault, Suspects
 from faultwise.profile.model import (CIRCUITS, MATERIALS, POLARITIES, RECTIFIERS, TRANSISTOR_ROLES,
                                      TUBE_ROLES)
+
+if TYPE_CHECKING:
+    from faultwise.expect.context import Expected
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.graph.nodes import Node
+    from faultwise.profile.model import Profile
 
 YES_NO = ("yes", "no")
 
@@ -42,7 +49,7 @@ WHEN_KEYS: Mapping[str, tuple[str, ...]] = MappingProxyType({
 DROPPING_NAME = "heaters.dropping_ohm"
 
 
-def set_facts(profile, expectations: Mapping) -> dict[str, frozenset[str]]:
+def set_facts(profile: Profile, expectations: Mapping[str, Expected]) -> dict[str, frozenset[str]]:
     """The set's value(s) for every key of WHEN_KEYS (an empty set when it has none)."""
     supply = profile.supply
     dropper = expectations.get(DROPPING_NAME)
@@ -63,7 +70,8 @@ def when_holds(when: Mapping[str, tuple[str, ...]], facts: Mapping[str, frozense
     return all(facts.get(key, frozenset()) & set(values) for key, values in when.items())
 
 
-def node_applies(node, profile, expectations: Mapping, facts: Mapping | None = None) -> bool:
+def node_applies(node: Node, profile: Profile, expectations: Mapping[str, Expected],
+                 facts: Mapping[str, frozenset[str]] | None = None) -> bool:
     """Family, expectation name (measurements) and ``when`` of one check, fault or escalation.
 
     A suspects list is judged by family here; :func:`applies_predicate` adds the rule that
@@ -79,7 +87,8 @@ def node_applies(node, profile, expectations: Mapping, facts: Mapping | None = N
     return when_holds(when, facts if facts is not None else set_facts(profile, expectations))
 
 
-def applies_predicate(knowledge, profile, expectations: Mapping) -> Callable[[str], bool]:
+def applies_predicate(knowledge: Knowledge, profile: Profile,
+                      expectations: Mapping[str, Expected]) -> Callable[[str], bool]:
     """``applies(node_id) -> bool`` for one walk, cached per node id (unknown ids: False)."""
     facts = set_facts(profile, expectations)
     cache: dict[str, bool] = {}
@@ -100,7 +109,8 @@ def applies_predicate(knowledge, profile, expectations: Mapping) -> Callable[[st
     return applies
 
 
-def applying_faults(knowledge, profile, expectations: Mapping) -> frozenset[str]:
+def applying_faults(knowledge: Knowledge, profile: Profile,
+                    expectations: Mapping[str, Expected]) -> frozenset[str]:
     """The fault ids of the knowledge that apply to this set."""
     facts = set_facts(profile, expectations)
     return frozenset(n.id for n in knowledge.nodes.values()

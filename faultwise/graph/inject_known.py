@@ -16,11 +16,16 @@ family) and a bad entry is a located error. The knowledge README lists the same 
 
 from __future__ import annotations
 
+import os
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from faultwise.core.errors import FaultwiseError
 from faultwise.graph.nodes import Check, Fault
+
+if TYPE_CHECKING:
+    from faultwise.graph.knowledge import Knowledge
 
 FILE_NAME = "inject_known.yaml"
 FORMAT = "faultwise-inject-known/1"
@@ -34,7 +39,8 @@ class Known:
     reason: str
 
 
-def load_known(knowledge, knowledge_dir) -> dict[tuple[str, str], Known]:
+def load_known(knowledge: Knowledge,
+               knowledge_dir: str | os.PathLike[str]) -> dict[tuple[str, str], Known]:
     """{(set file name, fault id): entry}; empty when the file does not exist."""
     from faultwise.core.yamlload import line_of, load_yaml_file
 

@@ -20,7 +20,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Iterable
+from typing import TYPE_CHECKING, Iterable
 
 from faultwise.core.errors import KnowledgeError
 from faultwise.graph.parse import (DEFAULT_MINUTES, GRAPH_FILE_KEYS, GRAPH_FORMAT,  # the graph-file schema, re-exported
@@ -34,6 +34,9 @@ from faultwise.graph.reader import LoadNote, Problems
 from faultwise.core.knowledge_version import content_version, knowledge_files  # re-exported
 from faultwise.graph.nodes import (CLEARED, STAGES, Caution, Check, Fault, Learned, Located, Node,
                                    Suspects, Symptom)
+
+if TYPE_CHECKING:
+    import networkx as nx
 
 __all__ = [
     "GRAPH_FORMAT", "SYMPTOMS_FORMAT", "CAUTIONS_FORMAT", "LEARNED_FORMAT",
@@ -196,7 +199,7 @@ class Knowledge:
         node = self.node(fault_id)
         return float(getattr(node, "priors", {}).get(symptom_id, 1.0))
 
-    def digraph(self):
+    def digraph(self) -> nx.DiGraph:
         """networkx.DiGraph of every node and route (``cleared`` is not a node); cached."""
         if self._digraph is None:
             import networkx as nx
@@ -225,7 +228,7 @@ class Knowledge:
             self._digraph = g
         return self._digraph
 
-    def family_graph(self, family: str):
+    def family_graph(self, family: str) -> nx.DiGraph:
         """The walk's graph for one family: its nodes, and routes other than ``verify``."""
         if family not in self._family_graphs:
             import networkx as nx

@@ -50,7 +50,8 @@ def _top(path: Path, fmt: str, list_key: str, problems: Problems, required: bool
     return data, items
 
 
-def _item_reader(raw, file: str, what: str, index: int, line, problems: Problems):
+def _item_reader(raw: object, file: str, what: str, index: int, line: int | None,
+                 problems: Problems) -> tuple[KnowledgeReader | None, str | None]:
     if not isinstance(raw, dict):
         problems.add(f"{what} {index + 1} is not a mapping", file=file, line=line,
                      hint="write '- id: ...' with its fields indented")

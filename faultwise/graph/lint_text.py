@@ -12,6 +12,11 @@ sees it (after its ``text_by_family`` variant), so the fix is a variant or neutr
 from __future__ import annotations
 
 import re
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from faultwise.graph.lint_run import LintRun
+    from faultwise.graph.nodes import Node
 
 WORD_GROUPS = {
     # words -> the families whose walks may show them
@@ -36,7 +41,7 @@ def _compiled():
     return out
 
 
-def family_word_hits(node) -> list[tuple[str, str, str]]:
+def family_word_hits(node: Node) -> list[tuple[str, str, str]]:
     """(family shown to, word found, group) for every foreign family word in the node."""
     from faultwise.graph.node_text import texts_of
 
@@ -55,8 +60,8 @@ def family_word_hits(node) -> list[tuple[str, str, str]]:
     return hits
 
 
-def text_rules(run) -> None:
-    """Run both rules on a lint run (:class:`faultwise.lint._Lint`)."""
+def text_rules(run: LintRun) -> None:
+    """Run both rules on a lint run (:class:`faultwise.graph.lint_run.LintRun`)."""
     from faultwise.graph.node_text import placeholders
 
     for node in run.k.nodes.values():

@@ -18,9 +18,12 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass
-from typing import Iterable, Mapping
+from typing import TYPE_CHECKING, Iterable, Mapping
 
 from faultwise.graph.nodes import Symptom
+
+if TYPE_CHECKING:
+    from faultwise.graph.knowledge import Knowledge
 
 # Words that carry no complaint ("the radio", "it is").
 STOP_WORDS = frozenset("""
@@ -107,7 +110,7 @@ def normalise(text: str) -> str:
     return " ".join(normalise_words(text))
 
 
-def _symptom_list(source) -> list[Symptom]:
+def _symptom_list(source: Knowledge | Mapping[str, Symptom] | Iterable[Symptom]) -> list[Symptom]:
     symptoms = getattr(source, "symptoms", source)
     if isinstance(symptoms, Mapping):
         return list(symptoms.values())

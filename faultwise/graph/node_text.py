@@ -22,7 +22,13 @@ from __future__ import annotations
 import dataclasses
 import re
 from types import MappingProxyType
-from typing import Mapping
+from typing import TYPE_CHECKING, Mapping, TypeVar
+
+from faultwise.graph.nodes import Check, Escalate, Fault, Node, Suspects
+
+if TYPE_CHECKING:
+    from faultwise.expect.context import Expected
+    from faultwise.graph.reader import KnowledgeReader
 
 VARIANT_FIELDS = {
     "check": ("title", "how", "why", "choices"),
@@ -31,11 +37,12 @@ VARIANT_FIELDS = {
     "escalate": ("title", "advice"),
 }
 LIST_FIELDS = ("repair", "parts")
+N = TypeVar("N", Check, Suspects, Fault, Escalate)
 PLACEHOLDER_RE = re.compile(r"\{([a-z][a-z0-9_]*(?:\.[a-z0-9_]+)+)(?:\|([^{}]*))?\}")
 
 
-def parse_variants(r, kind: str, families: tuple[str, ...], choices: Mapping | None = None
-                   ) -> MappingProxyType:
+def parse_variants(r: KnowledgeReader, kind: str, families: tuple[str, ...],
+                   choices: Mapping[str, str] | None = None) -> MappingProxyType:
     """Read ``text_by_family`` of one node (``r``: its KnowledgeReader); problems are located."""
     from faultwise.graph.reader import KnowledgeReader, key_line
 
@@ -90,7 +97,7 @@ def fill(text: str, expectations: Mapping | None) -> str:
     return PLACEHOLDER_RE.sub(one, text)
 
 
-def placeholders(node) -> list[str]:
+def placeholders(node: Node) -> list[str]:
     """Every expectation name a node's texts refer to (for lint), all variants included."""
     out = []
     for text in texts_of(node, None) + [t for fam in node.variants
@@ -99,7 +106,7 @@ def placeholders(node) -> list[str]:
     return out
 
 
-def texts_of(node, family: str | None) -> list[str]:
+def texts_of(node: Node, family: str | None) -> list[str]:
     """The texts a walk of ``family`` shows for this node (None: the base texts)."""
     view = node if family is None else with_family(node, family)
     out = [view.title]
@@ -113,7 +120,7 @@ def texts_of(node, family: str | None) -> list[str]:
     return out
 
 
-def with_family(node, family: str):
+def with_family(node: N, family: str) -> N:
     """The node with the fields of its ``text_by_family`` entry for ``family`` put in."""
     variant = node.variants.get(family) if node.variants else None
     if not variant:
@@ -126,7 +133,7 @@ def with_family(node, family: str):
     return dataclasses.replace(node, **changes)
 
 
-def for_set(node, family: str, expectations: Mapping | None):
+def for_set(node: N | None, family: str, expectations: Mapping[str, Expected] | None) -> N | None:
     """The node as this set's walk shows it: family variant, then placeholders filled."""
     if node is None:
         return None
@@ -143,7 +150,8 @@ def for_set(node, family: str, expectations: Mapping | None):
     return dataclasses.replace(view, **changes) if changes else view
 
 
-def for_case_profile(node, family: str, profile: Mapping | None):
+def for_case_profile(node: N | None, family: str, profile: Mapping[str, object] | None
+                     ) -> N | None:
     """:func:`for_set` for a node read back from a case file's copied profile (reports).
 
     A profile that no longer loads leaves the placeholders' fallbacks in the text.

@@ -88,7 +88,7 @@ def _choices(r: KnowledgeReader) -> dict[str, str]:
     return out
 
 
-def _when_values(r: KnowledgeReader, key: str, raw, line: int | None) -> tuple[str, ...]:
+def _when_values(r: KnowledgeReader, key: str, raw: object, line: int | None) -> tuple[str, ...]:
     """One ``when`` entry's values: a value or a list of them, each one WHEN_KEYS allows."""
     allowed = WHEN_KEYS[key]
     items = raw if isinstance(raw, list) else [raw]
@@ -258,7 +258,7 @@ def _priors(r: KnowledgeReader) -> dict[str, float]:
     return out
 
 
-def _node(raw, file: str, stage: str, families: tuple[str, ...], problems: Problems,
+def _node(raw: object, file: str, stage: str, families: tuple[str, ...], problems: Problems,
           index: int, list_line: int | None) -> Node | None:
     if not isinstance(raw, dict):
         problems.add(f"node {index + 1} is not a mapping", file=file, line=list_line,

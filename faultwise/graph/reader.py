@@ -11,7 +11,7 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Mapping
+from typing import Any, Mapping
 
 from faultwise.core.errors import FaultwiseError, KnowledgeError
 from faultwise.graph.nodes import FAMILIES
@@ -49,22 +49,22 @@ class Problems:
         self.notes.append(LoadNote(file, line, node, message, hint, code))
 
 
-def key_line(container, key) -> int | None:
+def key_line(container: object, key: object) -> int | None:
     try:
         return container.line_of(key) or None
     except AttributeError:
         return None
 
 
-def own_line(container) -> int | None:
+def own_line(container: object) -> int | None:
     return getattr(container, "line", None) or None
 
 
-def is_number(value) -> bool:
+def is_number(value: object) -> bool:
     return isinstance(value, (int, float)) and not isinstance(value, bool)
 
 
-def kind_name(value) -> str:
+def kind_name(value: object) -> str:
     """What a YAML value is, in words: 'a mapping', 'a list', 'a number', 'true/false'."""
     if isinstance(value, dict):
         return "a mapping"
@@ -77,7 +77,7 @@ def kind_name(value) -> str:
     return "text" if isinstance(value, str) else "empty"
 
 
-def key_text(key) -> str:
+def key_text(key: object) -> str:
     """Why a mapping key is not text: YAML 1.1 reads yes/no/on/off as booleans."""
     if isinstance(key, bool):
         return (f"the key '{key}' was read as {str(key).lower()} "
@@ -179,7 +179,7 @@ class KnowledgeReader:
                          "use only " + ", ".join(sorted(allowed)))
 
 
-def read_yaml(path: Path, problems: Problems):
+def read_yaml(path: Path, problems: Problems) -> Any:
     """The parsed file, or None with its located problem recorded."""
     try:
         return load_yaml_file(path)

@@ -2,10 +2,18 @@
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from faultwise.core.meter_setting import MANUAL, MeterConfig
+from collections.abc import Callable
+from datetime import datetime
+
+if TYPE_CHECKING:
+    from faultwise.meter.base import Meter
 
 
-def open_meter(config: MeterConfig, *, clock=None):
+def open_meter(config: MeterConfig, *,
+               clock: Callable[[], datetime] | None = None) -> Meter:
     """The :class:`~faultwise.meter.base.Meter` for a setting (nothing is contacted yet)."""
     if config.kind == "visa":
         from faultwise.meter.visa import VisaMeter

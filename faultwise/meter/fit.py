@@ -18,8 +18,13 @@ from __future__ import annotations
 
 import math
 import re
+from typing import TYPE_CHECKING
 
 from faultwise.meter.base import QUANTITIES, MeterRefused, Quantity, Sample
+
+if TYPE_CHECKING:
+    from faultwise.expect.context import Expected
+    from faultwise.walk.state import Walk
 
 _AC_NAMES = re.compile(r"^(mains\.line_v|safety\.leakage_v|supply\.secondary_v|"
                        r"heaters\.(winding_v|string_v|string_ma|total_a)|heater\.[^.]+\.v)$")
@@ -34,7 +39,7 @@ _WHY_NOT = {
 }
 
 
-def quantity_for(expected) -> Quantity:
+def quantity_for(expected: Expected) -> Quantity:
     """The meter quantity for an expectation; MeterRefused when a meter cannot read it."""
     from faultwise.core.units import resolve_unit
 
@@ -57,7 +62,7 @@ def quantity_for(expected) -> Quantity:
                        hint="type the reading")
 
 
-def value_for_check(sample: Sample, expected) -> float:
+def value_for_check(sample: Sample, expected: Expected) -> float:
     """The sample's value in the expectation's unit; MeterRefused when it does not fit."""
     from faultwise.core.units import convert
 
@@ -77,7 +82,7 @@ def value_for_check(sample: Sample, expected) -> float:
     return convert(sample.value, sample.unit, expected.unit)
 
 
-def answer_from_meter(walk, sample: Sample) -> dict:
+def answer_from_meter(walk: Walk, sample: Sample) -> dict:
     """Answer the walk's current measurement with a meter sample; returns the event.
 
     The event carries the classification as a typed answer does, and ``meter``: the

@@ -23,6 +23,8 @@ import math
 import re
 import shutil
 import subprocess
+from collections.abc import Callable
+from datetime import datetime
 
 from faultwise.core.safe_text import one_line
 from faultwise.meter.base import Meter, MeterError, MeterTimeout, Quantity, Sample, stamp
@@ -107,7 +109,8 @@ class SigrokMeter(Meter):
     kind = "sigrok"
 
     def __init__(self, driver: str, *, conn: str | None = None, channel: str | None = None,
-                 timeout_s: float = 10.0, clock=None, program: str = PROGRAM) -> None:
+                 timeout_s: float = 10.0, clock: Callable[[], datetime] | None = None,
+                 program: str = PROGRAM) -> None:
         spec = f"sigrok:{driver}" + (f":conn={conn}" if conn else "")
         super().__init__(spec, timeout_s=timeout_s, clock=clock)
         self.driver, self.conn, self.channel, self.program = driver, conn, channel, program

@@ -18,6 +18,8 @@ import math
 import re
 import threading
 import warnings
+from collections.abc import Callable
+from datetime import datetime
 
 from faultwise.core.safe_text import one_line
 from faultwise.meter.base import (
@@ -78,7 +80,7 @@ class VisaMeter(Meter):
     can_select = True
 
     def __init__(self, resource: str, *, timeout_s: float = 3.0, backend: str | None = None,
-                 clock=None) -> None:
+                 clock: Callable[[], datetime] | None = None) -> None:
         super().__init__(f"visa:{resource}", timeout_s=timeout_s, clock=clock)
         self.resource = resource
         self.backend = backend or "@py"

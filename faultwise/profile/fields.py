@@ -9,9 +9,13 @@ line and key; it also records which dotted keys were filled with a typical value
 from __future__ import annotations
 
 import math
+from collections.abc import Collection, Iterable
+from typing import TypeVar
 
 from faultwise.core.errors import InputError, ProfileError
 from faultwise.core.safe_text import one_line
+
+T = TypeVar("T")
 
 _UNIT_OF_SUFFIX = (("_khz", "kHz"), ("_ohm", "ohm"), ("_uf", "uF"), ("_pf", "pF"),
                    ("_uh", "uH"), ("_hz", "Hz"), ("_ma", "mA"), ("_v", "V"), ("_a", "A"))
@@ -40,7 +44,7 @@ def unit_for(key: str) -> str:
     return "ratio"
 
 
-def nearest(word, choices, cutoff: float = 60) -> str | None:
+def nearest(word: object, choices: Iterable[str], cutoff: float = 60) -> str | None:
     """The choice closest to ``word`` (rapidfuzz ratio of at least ``cutoff``), or None."""
     from rapidfuzz import fuzz, process
 
@@ -61,7 +65,7 @@ class ProfileReader:
                             key=one_line(key) if key else None, hint=one_line(hint))
 
     @staticmethod
-    def line(container, key=None) -> int | None:
+    def line(container: object, key: object = None) -> int | None:
         from faultwise.core.yamlload import line_of
 
         if key is None:
@@ -70,7 +74,7 @@ class ProfileReader:
         return line_of(container, key) or ProfileReader.line(container)
 
     # structure
-    def mapping(self, data, path: str, line: int | None) -> dict:
+    def mapping(self, data: object, path: str, line: int | None) -> dict:
         if data is None:
             return {}
         if not isinstance(data, dict):
@@ -79,7 +83,7 @@ class ProfileReader:
                              "write key: value pairs (see the contract in DESIGN section 4)")
         return data
 
-    def sequence(self, data, path: str, line: int | None) -> list:
+    def sequence(self, data: object, path: str, line: int | None) -> list:
         if data is None:
             return []
         if not isinstance(data, list):
@@ -87,7 +91,7 @@ class ProfileReader:
                              "write one '- {role: ..., ...}' item per stage")
         return data
 
-    def keys(self, data: dict, allowed, path: str) -> None:
+    def keys(self, data: dict, allowed: Collection[str], path: str) -> None:
         for key in data:
             if key not in allowed:
                 near = nearest(key, allowed)
@@ -156,7 +160,8 @@ class ProfileReader:
             raise self.error(f"{key} is empty", dotted, self.line(data, key), f"write {key}")
         return text
 
-    def choice(self, data: dict, key: str, path: str, choices, required: bool = False) -> str | None:
+    def choice(self, data: dict, key: str, path: str, choices: Collection[str],
+               required: bool = False) -> str | None:
         value = data.get(key)
         if value is None and not required:
             return None
@@ -170,7 +175,7 @@ class ProfileReader:
                              hint)
         return low
 
-    def fill(self, value, typical_value, dotted: str):
+    def fill(self, value: T | None, typical_value: T, dotted: str) -> T:
         """``value`` if given, else ``typical_value`` with ``dotted`` marked typical."""
         if value is not None:
             return value
@@ -178,7 +183,7 @@ class ProfileReader:
         return typical_value
 
 
-def what_of(value) -> str:
+def what_of(value: object) -> str:
     if isinstance(value, bool):
         return "true/false"
     if isinstance(value, list):
@@ -194,7 +199,7 @@ def join_key(path: str, key: str) -> str:
     return f"{path}.{key}" if path else key
 
 
-def item_line(rows, i: int) -> int | None:
+def item_line(rows: object, i: int) -> int | None:
     from faultwise.core.yamlload import line_of
 
     return line_of(rows, i)

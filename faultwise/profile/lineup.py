@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import replace
+from typing import TYPE_CHECKING
 
 from faultwise.profile.model import (OUTPUT_ROLES, MATERIALS, POLARITIES, TRANSISTOR_ROLES,
                                      TUBE_ROLES, Bias, Transistor, Tube)
@@ -17,8 +18,11 @@ from faultwise.profile.fields import (TRANSISTOR_KEYS, TUBE_KEYS, TUBE_SUPPLY_PO
 from faultwise.profile.typical import (TYPICAL_BETA, TYPICAL_MATERIAL, TYPICAL_OUTPUT,
                                        TYPICAL_POLARITY, typical_bias)
 
+if TYPE_CHECKING:
+    from faultwise.profile.tubes import TubeTable, TubeType
 
-def read_tubes(r: ProfileReader, data: dict, family: str, table) -> list[Tube]:
+
+def read_tubes(r: ProfileReader, data: dict, family: str, table: TubeTable) -> list[Tube]:
     from faultwise.profile.tubes import lookup, normalise_name
 
     rows = r.sequence(data.get("tubes"), "tubes", r.line(data, "tubes"))
@@ -68,7 +72,8 @@ def read_tubes(r: ProfileReader, data: dict, family: str, table) -> list[Tube]:
     return tubes
 
 
-def _check_role_fits(r: ProfileReader, item: dict, path: str, role: str, known) -> None:
+def _check_role_fits(r: ProfileReader, item: dict, path: str, role: str,
+                     known: TubeType) -> None:
     if role == "rectifier" and not known.is_rectifier:
         raise r.error(f"{known.name} is a {known.kind}, not a rectifier", f"{path}.type",
                       r.line(item, "type"), "check the type or the role")
@@ -77,7 +82,8 @@ def _check_role_fits(r: ProfileReader, item: dict, path: str, role: str, known) 
                       r.line(item, "role"), "give it role: rectifier")
 
 
-def fill_output_tubes(r: ProfileReader, tubes: list[Tube], family: str, table) -> list[Tube]:
+def fill_output_tubes(r: ProfileReader, tubes: list[Tube], family: str,
+                      table: TubeTable) -> list[Tube]:
     """Cathode resistor and current of the output tube(s) from the table's typical operation."""
     from faultwise.profile.tubes import lookup
 

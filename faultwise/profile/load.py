@@ -8,6 +8,8 @@ typical values; ``load_profile`` reads a YAML file. The data model and its write
 
 from __future__ import annotations
 
+import os
+from collections.abc import Iterable
 from pathlib import Path
 
 from faultwise.core.errors import FaultwiseError, ProfileError
@@ -15,14 +17,14 @@ from faultwise.profile.fields import SECTION_KEYS, TOP_KEYS, ProfileReader
 from faultwise.profile.lineup import (check_series_string, fill_output_tubes, heater_winding,
                                       read_transistors, read_tubes)
 from faultwise.profile.model import (FAMILIES, FORMAT, LINE_FAMILIES, OUTPUT_ROLES, OUTPUT_STAGES,
-                                     Profile)
+                                     Profile, Transistor)
 from faultwise.profile.sections import read_audio, read_common, read_supply, read_typical_list
 from faultwise.profile.typical import TYPICAL_BATTERY_V, TYPICAL_MAINS_HZ, TYPICAL_MAINS_V
 
 __all__ = ["profile_from_dict", "load_profile", "typical_output_stage"]
 
 
-def typical_output_stage(transistors) -> str:
+def typical_output_stage(transistors: Iterable[Transistor]) -> str:
     """Two output transistors of opposite polarity: complementary; of the same polarity:
     push-pull with a driver transformer; one: single-ended (trade practice)."""
     outs = [t for t in transistors if t.role in OUTPUT_ROLES]
@@ -33,7 +35,8 @@ def typical_output_stage(transistors) -> str:
 
 # --- entry points ------------------------------------------------------------------------
 
-def profile_from_dict(data, source: str = "<profile>", knowledge_dir=None) -> Profile:
+def profile_from_dict(data: object, source: str = "<profile>",
+                      knowledge_dir: str | os.PathLike[str] | None = None) -> Profile:
     """Validate a profile mapping (from YAML or a case file) and fill the family's typicals."""
     r = ProfileReader(str(source))
     data = r.mapping(data, "", r.line(data) if isinstance(data, dict) else None)
@@ -100,7 +103,8 @@ def _replace(profile: Profile, **changes) -> Profile:
     return replace(profile, **changes)
 
 
-def load_profile(path, knowledge_dir=None) -> Profile:
+def load_profile(path: str | os.PathLike[str],
+                 knowledge_dir: str | os.PathLike[str] | None = None) -> Profile:
     """Read, validate and complete a set profile YAML file; ProfileError located on a fault."""
     from faultwise.core.yamlload import load_yaml_file
 

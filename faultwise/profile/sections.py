@@ -7,6 +7,7 @@ read and raises ProfileError located by file, line and key.
 from __future__ import annotations
 
 import math
+from typing import TYPE_CHECKING
 
 from faultwise.profile.model import (CIRCUITS, OUTPUT_ROLES, RECTIFIERS, Audio, Profile, Supply,
                                      Tube, profile_to_dict)
@@ -14,6 +15,9 @@ from faultwise.profile.fields import SECTION_KEYS, ProfileReader, item_line, nea
 from faultwise.profile.typical import (SCREEN_SHARE, TYPICAL_BAND_KHZ, TYPICAL_GANG_PF,
                                        TYPICAL_IF_KHZ, TYPICAL_OUTPUT, TYPICAL_SPEAKER_OHM,
                                        TYPICAL_STAGE_MA, TYPICAL_SUPPLY)
+
+if TYPE_CHECKING:
+    from faultwise.profile.tubes import TubeTable
 
 
 def read_common(r: ProfileReader, data: dict, family: str) -> dict:
@@ -46,7 +50,8 @@ def read_common(r: ProfileReader, data: dict, family: str) -> dict:
     return out
 
 
-def read_supply(r: ProfileReader, data: dict, family: str, tubes: list[Tube], table) -> Supply:
+def read_supply(r: ProfileReader, data: dict, family: str, tubes: list[Tube],
+                table: TubeTable) -> Supply:
     from faultwise.profile.tubes import lookup
 
     sup = r.mapping(data.get("supply"), "supply", r.line(data, "supply"))
@@ -105,7 +110,7 @@ def read_supply(r: ProfileReader, data: dict, family: str, tubes: list[Tube], ta
 
 
 def _loads(r: ProfileReader, sup: dict, family: str, tubes: list[Tube],
-           table) -> tuple[float, float]:
+           table: TubeTable) -> tuple[float, float]:
     """DC load on the first capacitor and the part of it through the filter resistor."""
     from faultwise.profile.tubes import lookup
 
@@ -132,7 +137,8 @@ def _loads(r: ProfileReader, sup: dict, family: str, tubes: list[Tube],
     return load, filter_load
 
 
-def read_audio(r: ProfileReader, data: dict, family: str, tubes: list[Tube], table) -> Audio:
+def read_audio(r: ProfileReader, data: dict, family: str, tubes: list[Tube],
+               table: TubeTable) -> Audio:
     from faultwise.profile.tubes import lookup
 
     aud = r.mapping(data.get("audio"), "audio", r.line(data, "audio"))

@@ -10,9 +10,11 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Mapping
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
+from typing import Any
 
 from faultwise.core.errors import FaultwiseError, KnowledgeError
 
@@ -138,13 +140,13 @@ def _bad(message: str, source: str, line: int | None, key: str, hint: str) -> Kn
     return KnowledgeError(message, file=source, line=line, key=key, hint=hint)
 
 
-def _line(container, key) -> int | None:
+def _line(container: object, key: object) -> int | None:
     from faultwise.core.yamlload import line_of
 
     return line_of(container, key)
 
 
-def _number(entry, key: str, where: str, source: str, *, positive: bool = True,
+def _number(entry: Mapping[str, Any], key: str, where: str, source: str, *, positive: bool = True,
             required: bool = True) -> float | None:
     value = entry.get(key)
     if value is None:
@@ -162,7 +164,7 @@ def _number(entry, key: str, where: str, source: str, *, positive: bool = True,
     return float(value)
 
 
-def _text(entry, key: str, where: str, source: str, required: bool = True) -> str | None:
+def _text(entry: Mapping[str, Any], key: str, where: str, source: str, required: bool = True) -> str | None:
     value = entry.get(key)
     if value is None and not required:
         return None
@@ -174,14 +176,14 @@ def _text(entry, key: str, where: str, source: str, required: bool = True) -> st
     return value.strip()
 
 
-def _unknown_keys(entry, allowed: set[str], where: str, source: str) -> None:
+def _unknown_keys(entry: Mapping[str, Any], allowed: set[str], where: str, source: str) -> None:
     for key in entry:
         if key not in allowed:
             raise _bad(f"unknown key {key!r}", source, _line(entry, key), f"{where}.{key}",
                        "use only " + ", ".join(sorted(allowed)))
 
 
-def _rectifier(data, where: str, source: str) -> RectifierData:
+def _rectifier(data: object, where: str, source: str) -> RectifierData:
     if not isinstance(data, dict):
         raise _bad("rectifier must be a mapping", source, None, where, "see the file's header")
     _unknown_keys(data, _RECT_KEYS, where, source)
@@ -197,7 +199,7 @@ def _rectifier(data, where: str, source: str) -> RectifierData:
     return RectifierData(circuit=circuit, source=_text(data, "source", where, source), **nums)
 
 
-def _operation(data, where: str, source: str) -> Operation:
+def _operation(data: object, where: str, source: str) -> Operation:
     if not isinstance(data, dict):
         raise _bad("operation must be a mapping", source, None, where, "see the file's header")
     _unknown_keys(data, _OP_KEYS, where, source)
@@ -233,7 +235,7 @@ def missing_electrodes(tube: TubeType) -> list[str]:
     return [e for e in required_electrodes(tube.kind, tube.rectifier) if e not in have]
 
 
-def _pins(data, base: str, where: str, source: str) -> tuple:
+def _pins(data: object, base: str, where: str, source: str) -> tuple:
     if not isinstance(data, dict):
         raise _bad("pins must be a mapping of electrode to pin", source, None, where,
                    "for example pins: {heater: [3, 4], cathode: 7, plate: 5}")
@@ -254,7 +256,7 @@ def _pins(data, base: str, where: str, source: str) -> tuple:
     return tuple(out)
 
 
-def _entry(entry, i: int, source: str) -> TubeType:
+def _entry(entry: object, i: int, source: str) -> TubeType:
     where = f"tubes[{i}]"
     if not isinstance(entry, dict):
         raise _bad("each tube entry must be a mapping", source, None, where,
@@ -291,7 +293,7 @@ def _entry(entry, i: int, source: str) -> TubeType:
         pins_source=_text(entry, "pins_source", where, source, required=False))
 
 
-def parse_tube_table(data, source: str = "<tubes>") -> TubeTable:
+def parse_tube_table(data: object, source: str = "<tubes>") -> TubeTable:
     """Validate loaded tube-table data; KnowledgeError with file, line and key on a fault."""
     if not isinstance(data, dict):
         raise _bad("the tube table must be a mapping", source, None, "", "write format and tubes")

@@ -8,9 +8,10 @@ submodules directly.
 
 from __future__ import annotations
 
-from faultwise.report.job import (LEAKAGE_STATEMENT, NOT_LINE_CONNECTED, SAFETY_STATEMENT,
-                                  band_text, find_case, job_report, job_report_markdown,
-                                  minutes_text, number, read_case, review_text, when_text)
+from faultwise.report.formats import (LEAKAGE_STATEMENT, NOT_LINE_CONNECTED, SAFETY_STATEMENT,
+                                      band_text, minutes_text, number, when_text)
+from faultwise.report.job import (find_case, job_report, job_report_markdown, read_case,
+                                  review_text)
 from faultwise.report.model import JobReport
 
 __all__ = [

@@ -11,9 +11,14 @@ from __future__ import annotations
 
 import math
 from html import escape
+from typing import TYPE_CHECKING
 
 from faultwise.expect.chart import ChartRow
 from faultwise.expect.context import basis_num as _n
+
+if TYPE_CHECKING:
+    from faultwise.profile.model import Profile
+    from faultwise.profile.tubes import TubeTable
 
 _CSS = ("body{font-family:sans-serif;margin:1.5em;color:#222}h1{font-size:1.4em}"
         "h2{font-size:1.1em;margin:1.2em 0 .3em}.dev{page-break-inside:avoid;display:flex;"
@@ -22,7 +27,8 @@ _CSS = ("body{font-family:sans-serif;margin:1.5em;color:#222}h1{font-size:1.4em}
         "font-size:.9em}th{background:#eee}td.n{text-align:right}.note{font-size:.85em;color:#555}")
 
 
-def _t(x, y, text, size=11, anchor="middle", weight="normal") -> str:
+def _t(x: float, y: float, text: object, size: float = 11, anchor: str = "middle",
+       weight: str = "normal") -> str:
     return (f'<text x="{x:.1f}" y="{y:.1f}" font-family="sans-serif" font-size="{size}" '
             f'text-anchor="{anchor}" font-weight="{weight}">{escape(str(text))}</text>')
 
@@ -79,7 +85,7 @@ def lead_svg(readings: dict[str, str], title: str) -> str:
     return "".join(parts)
 
 
-def chart_html(profile, rows: list[ChartRow], tube_table=None) -> str:
+def chart_html(profile: Profile, rows: list[ChartRow], tube_table: TubeTable | None = None) -> str:
     """The whole printable page for one set."""
     from faultwise.profile.tubes import load_tube_table, lookup
 

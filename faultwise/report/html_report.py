@@ -9,9 +9,14 @@ anywhere (nothing in the page names a URL). Every piece of case text goes throug
 from __future__ import annotations
 
 from html import escape
+from typing import TYPE_CHECKING
 
-from faultwise.report.job import SAFETY_STATEMENT, num, pct
+from faultwise.report.formats import SAFETY_STATEMENT, num, pct
 from faultwise.report.svg import bar_chart_svg, column_chart_svg
+
+if TYPE_CHECKING:
+    from faultwise.report.model import JobReport
+    from faultwise.shop.review_results import Review
 
 CSS = """
 body { font-family: sans-serif; color: #1d1d1d; margin: 24px auto; max-width: 900px;
@@ -42,20 +47,20 @@ def _page(title: str, body: list[str]) -> str:
             + "\n".join(body) + "\n</body></html>\n")
 
 
-def _e(text) -> str:
+def _e(text: object) -> str:
     from faultwise.core.safe_text import shown_text
 
     return escape(shown_text(text))
 
 
-def job_report_html(r) -> str:
+def job_report_html(r: JobReport) -> str:
     """The bench copy as one printable page (:func:`faultwise.report.render.bench_html`)."""
     from faultwise.report.render import bench_html
 
     return bench_html(r)
 
 
-def review_html(review, shop: str = "") -> str:
+def review_html(review: Review, shop: str = "") -> str:
     """The shop review as one printable page with inline SVG charts; ``shop``: the configured
     shop name (none shown when empty)."""
     since = f" since {_e(review.since)}" if review.since else ""

@@ -1,29 +1,27 @@
-"""Reading a case for its job report, the report's number formats, and the shop review as
+"""Reading a case for its job report, the report's entry points, and the shop review as
 text for a 100-column terminal.
 
 The job report's model is :mod:`faultwise.report.model` (one model, two views: the bench
 copy and the customer copy), rendered by :mod:`faultwise.report.render`; ``job_report`` and
-``job_report_markdown`` here are the entry points the commands and the tests use.
+``job_report_markdown`` here are the entry points the commands and the tests use. The
+statements and number formats every report shares are in :mod:`faultwise.report.formats`.
 """
 
 from __future__ import annotations
 
 import os
+from collections.abc import Mapping, Sequence
 from pathlib import Path
-from typing import Mapping
+from typing import TYPE_CHECKING, Any
 
-SAFETY_STATEMENT = (
-    "This record was kept with faultwise, which supports trained people. It does not replace "
-    "training, the set's service data, local electrical codes or licensed practice, and it "
-    "defers to all of them.")
-LEAKAGE_STATEMENT = (
-    "A mains-powered set can put line voltage on its chassis and on any metal a person can "
-    "touch (a series-string set by design, a transformer set through a fault). It goes back "
-    "to its owner only after a leakage check: the AC voltage across 1500 ohm shunted by 0.15 uF, from each exposed metal part to a true earth, with the plug "
-    "one way and then reversed, not through an isolation transformer, is at most 0.75 V "
-    "(0.5 mA).")
-NOT_LINE_CONNECTED = "Not mains-powered (battery set): no leakage check is needed."
+from faultwise.report.formats import num, pct
+from faultwise.report.model import JobReport, build_report
+from faultwise.report.render import bench_markdown
 
+if TYPE_CHECKING:
+    from faultwise.core.workspace import Shop
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.shop.review_results import Review
 
 # ------------------------------------------------------------------------ reading
 
@@ -57,82 +55,20 @@ def read_case(path: str | os.PathLike) -> dict:
 
 # ------------------------------------------------------------------------ the model
 
-def job_report(case: Mapping, knowledge=None, shop=None):
+def job_report(case: Mapping[str, Any], knowledge: Knowledge | None = None,
+               shop: Shop | None = None) -> JobReport:
     """The report model of a case (:func:`faultwise.report.model.build_report`)."""
-    from faultwise.report.model import build_report
-
     return build_report(case, knowledge, shop)
 
 
-# ------------------------------------------------------------------------ formatting
-
-def number(value: float, unit: str = "") -> str:
-    """A value with its unit for display (units.format_reading where it knows the unit)."""
-    if unit:
-        try:
-            from faultwise.core.units import format_reading
-
-            return format_reading(float(value), unit)
-        except Exception:  # an unknown unit recorded by an older version: show it plainly
-            pass
-    return f"{value:.4g} {unit}".strip()
-
-
-def band_text(band: Mapping | None) -> str:
-    """``low to high unit (nominal n)`` from a recorded band, or an empty string."""
-    if not band:
-        return ""
-    unit = str(band.get("unit") or "")
-    low, high, nom = band.get("low"), band.get("high"), band.get("nominal")
-    nums = all(isinstance(v, (int, float)) for v in (low, high))
-    text = f"{number(low, unit)} to {number(high, unit)}" if nums else ""
-    if isinstance(nom, (int, float)):
-        text += f" (nominal {number(nom, unit)})"
-    if band.get("typical"):
-        text += ", typical values"
-    return text.strip()
-
-
-def when_text(iso: str) -> str:
-    """``2026-12-01T09:30:00+00:00`` -> ``2026-12-01 09:30 +00:00``; other text as it is."""
-    from faultwise.cases.summary import parse_time
-
-    t = parse_time(iso)
-    if t is None:
-        return iso
-    zone = t.strftime(" %z") if t.tzinfo else ""
-    if len(zone) == 6:
-        zone = zone[:4] + ":" + zone[4:]
-    return t.strftime("%Y-%m-%d %H:%M") + zone
-
-
-def minutes_text(minutes: float | None) -> str:
-    if minutes is None:
-        return "not recorded"
-    h, m = divmod(int(round(minutes)), 60)
-    return f"{h} h {m:02d} min" if h else f"{m} min"
-
-
-def job_report_markdown(r) -> str:
+def job_report_markdown(r: JobReport) -> str:
     """The bench copy as Markdown (:func:`faultwise.report.render.bench_markdown`)."""
-    from faultwise.report.render import bench_markdown
-
     return bench_markdown(r)
 
 
 # ------------------------------------------------------------------- review as text
 
 WIDTH = 100
-
-
-def pct(x: float | None) -> str:
-    """A share 0..1 as a whole percent (``"-"`` when unknown): one rule for every report."""
-    return "-" if x is None else f"{100 * x:.0f}%"
-
-
-def num(x: float | None, digits: int = 1) -> str:
-    """A number with ``digits`` decimals (``"-"`` when unknown): one rule for every report."""
-    return "-" if x is None else f"{x:.{digits}f}"
 
 
 def _cut(text: str, n: int) -> str:
@@ -145,7 +81,7 @@ def _cut(text: str, n: int) -> str:
 
 def _table(head: tuple[str, ...], rows: list[tuple], widths: tuple[int, ...]) -> list[str]:
     """Fixed-width columns; the first column is cut to its width, numbers right-aligned."""
-    def line(cells) -> str:
+    def line(cells: Sequence[object]) -> str:
         parts = []
         for i, (cell, w) in enumerate(zip(cells, widths)):
             cell = _cut(cell, w)
@@ -154,7 +90,7 @@ def _table(head: tuple[str, ...], rows: list[tuple], widths: tuple[int, ...]) ->
     return [line(head), "  ".join("-" * w for w in widths)] + [line(r) for r in rows]
 
 
-def review_text(review) -> str:
+def review_text(review: Review) -> str:
     """The shop review for a terminal of 100 columns."""
     out = [f"Shop review: {review.cases} closed case{'s' if review.cases != 1 else ''}"
            + (f" since {review.since}" if review.since else "")

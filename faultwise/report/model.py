@@ -15,10 +15,16 @@ Steps are numbered 1..n in walk order over every answered or skipped check of ev
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Mapping
+from collections.abc import Iterable
+from typing import TYPE_CHECKING, Mapping
 
 from faultwise.core.vocabulary import LINE_FAMILIES, STAGES
 from faultwise.core.workspace import Shop
+from faultwise.report.formats import band_text, number
+
+if TYPE_CHECKING:
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.graph.nodes import Node
 
 MAINS_FAMILIES = LINE_FAMILIES          # sets that get the leakage check
 # The bench copy says what the family means for the bench; the customer copy says what
@@ -119,11 +125,11 @@ class JobReport:
 
 # ------------------------------------------------------------------------ building
 
-def _node(knowledge, node_id: str):
+def _node(knowledge: Knowledge | None, node_id: str) -> Node | None:
     return knowledge.nodes.get(node_id) if knowledge is not None and node_id else None
 
 
-def _title(knowledge, node_id: str) -> str:
+def _title(knowledge: Knowledge | None, node_id: str) -> str:
     node = _node(knowledge, node_id)
     if node is not None:
         return node.title
@@ -132,23 +138,21 @@ def _title(knowledge, node_id: str) -> str:
     return words[:1].upper() + words[1:] if words else "Check"
 
 
-def _is_normal(knowledge, node_id: str, outcome: str) -> bool:
+def _is_normal(knowledge: Knowledge | None, node_id: str, outcome: str) -> bool:
     node = _node(knowledge, node_id)
     if node is not None and getattr(node, "normal", None):
         return outcome == node.normal
     return outcome == "normal"
 
 
-def _number(value) -> float | None:
+def _number(value: object) -> float | None:
     return float(value) if isinstance(value, (int, float)) and not isinstance(value, bool) \
         else None
 
 
-def _answer_words(ev: Mapping, node, band: Mapping | None, value: float | None,
+def _answer_words(ev: Mapping, node: Node | None, band: Mapping | None, value: float | None,
                   outcome: str) -> str:
     """What was typed or chosen, in words: never the key pressed for a choice."""
-    from faultwise.report.job import number
-
     if value is not None and band and band.get("unit"):
         return number(value, str(band["unit"]))
     choices = getattr(node, "choices", None) or {}
@@ -160,9 +164,7 @@ def _answer_words(ev: Mapping, node, band: Mapping | None, value: float | None,
     return outcome.replace("-", " ") if outcome else "-"
 
 
-def _step(number: int, ev: Mapping, knowledge) -> Step:
-    from faultwise.report.job import band_text
-
+def _step(number: int, ev: Mapping, knowledge: Knowledge | None) -> Step:
     node_id = str(ev.get("node") or "")
     node = _node(knowledge, node_id)
     phase = str(ev.get("phase") or "diagnose")
@@ -183,7 +185,7 @@ def _step(number: int, ev: Mapping, knowledge) -> Step:
                 band_text(band), result, normal)
 
 
-def _stage_of(knowledge, node_id: str) -> str:
+def _stage_of(knowledge: Knowledge | None, node_id: str) -> str:
     node = _node(knowledge, node_id)
     if node is not None:
         return node.stage
@@ -191,7 +193,8 @@ def _stage_of(knowledge, node_id: str) -> str:
     return head if head in STAGES else ""
 
 
-def stage_states(checks, fault_stage: str, knowledge=None) -> dict:
+def stage_states(checks: Iterable[Step], fault_stage: str,
+                 knowledge: Knowledge | None = None) -> dict[str, str]:
     """Stage -> state of :func:`faultwise.walk.stages.stage_states` (the bench map's rule)."""
     from faultwise.walk.stages import StepView
     from faultwise.walk.stages import stage_states as rule
@@ -218,7 +221,8 @@ def _off_graph_text(case: Mapping, events: list[dict]) -> str:
                                    else str(off or ""))
 
 
-def build_report(case: Mapping, knowledge=None, shop: Shop | None = None) -> JobReport:
+def build_report(case: Mapping, knowledge: Knowledge | None = None,
+                 shop: Shop | None = None) -> JobReport:
     """The report model of a case dict (format: :mod:`faultwise.cases.schema`)."""
     from faultwise.report.part_ratings import part_ratings
 

@@ -17,8 +17,8 @@ from __future__ import annotations
 
 from functools import lru_cache
 
-from faultwise.report.job import (LEAKAGE_STATEMENT, NOT_LINE_CONNECTED, SAFETY_STATEMENT,
-                                  minutes_text, when_text)
+from faultwise.report.formats import (LEAKAGE_STATEMENT, NOT_LINE_CONNECTED, SAFETY_STATEMENT,
+                                      minutes_text, when_text)
 from faultwise.report.model import JobReport
 
 OUTCOME_WORDS = {"repaired": "Repaired", "returned-unrepaired": "Returned without a repair",
@@ -38,7 +38,7 @@ LEAKAGE_RESULT = {
 }
 
 
-def md_text(value) -> str:
+def md_text(value: object) -> str:
     """Case text made safe inside a Markdown table cell or line (no control characters)."""
     from faultwise.core.safe_text import one_line
 
@@ -48,7 +48,7 @@ def md_text(value) -> str:
         .replace("<", "&lt;").replace(">", "&gt;")
 
 
-def _shown(value) -> str:
+def _shown(value: object) -> str:
     from faultwise.core.safe_text import shown_text
 
     if hasattr(value, "__html__"):          # markup built here (the stage map, the CSS)

@@ -16,9 +16,19 @@ from __future__ import annotations
 import random
 from dataclasses import dataclass
 from datetime import datetime, timedelta, timezone
+from collections.abc import Mapping
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from faultwise.core.errors import FaultwiseError
+
+if TYPE_CHECKING:
+    from faultwise.cases.store import CaseStore, OpenCase
+    from faultwise.expect.context import Expected
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.graph.nodes import Fault
+    from faultwise.profile.model import Profile
+    from faultwise.walk.state import Walk
 
 SHOP = "Larkspur Lane Radio Works"
 BENCHES = ("B1", "B2", "B3")
@@ -79,17 +89,17 @@ class DemoSummary:
     folder: Path
 
 
-def _profiles(knowledge_dir: Path):
+def _profiles(knowledge_dir: Path) -> dict[str, list[tuple[str, Profile]]]:
     from faultwise.profile.load import load_profile
 
-    by_family: dict[str, list] = {}
+    by_family: dict[str, list[tuple[str, Profile]]] = {}
     for path in sorted((knowledge_dir / "sets").glob("*.yaml")):
         profile = load_profile(path, knowledge_dir=knowledge_dir)
         by_family.setdefault(profile.family, []).append((path.name, profile))
     return by_family
 
 
-def _shop_weights(knowledge, symptom: str, profile) -> dict[str, float]:
+def _shop_weights(knowledge: Knowledge, symptom: str, profile: Profile) -> dict[str, float]:
     """The invented shop's fault mix for this set: the graph's probabilities, with the
     middle-ranked fault raised to twice the likeliest (this shop's own common fault)."""
     from faultwise.graph.applicability import applying_faults
@@ -106,7 +116,7 @@ def _shop_weights(knowledge, symptom: str, profile) -> dict[str, float]:
     return weights
 
 
-def _reading_text(expected, outcome: str, rng: random.Random) -> str:
+def _reading_text(expected: Expected, outcome: str, rng: random.Random) -> str:
     """What a tech would type for a reading of this class, with a meter's scatter."""
     from faultwise.core.units import format_reading
     from faultwise.expect.classify import representative_value
@@ -120,7 +130,7 @@ def _reading_text(expected, outcome: str, rng: random.Random) -> str:
     return format_reading(value, expected.unit)
 
 
-def _answer(walk, fault, rng: random.Random, skip_ok: bool) -> None:
+def _answer(walk: Walk, fault: Fault, rng: random.Random, skip_ok: bool) -> None:
     """Answer the current check as the fault's signature implies."""
     from faultwise.expect.classify import classify
 
@@ -147,7 +157,8 @@ def _answer(walk, fault, rng: random.Random, skip_ok: bool) -> None:
     walk.answer(choice)
 
 
-def _diagnose(walk, fault, rng, clock: _Clock, case, stop_after: int | None = None) -> None:
+def _diagnose(walk: Walk, fault: Fault, rng: random.Random, clock: _Clock, case: OpenCase,
+              stop_after: int | None = None) -> None:
     asked = 0
     while walk.phase == "diagnose":
         prompt = walk.prompt()
@@ -161,7 +172,8 @@ def _diagnose(walk, fault, rng, clock: _Clock, case, stop_after: int | None = No
         asked += 1
 
 
-def _finish_checks(walk, rng, clock: _Clock, case, phase: str) -> None:
+def _finish_checks(walk: Walk, rng: random.Random, clock: _Clock, case: OpenCase,
+                   phase: str) -> None:
     """Answer verify or closing checks the way a good repair reads."""
     while walk.phase == phase:
         prompt = walk.prompt()
@@ -186,8 +198,10 @@ def _finish_checks(walk, rng, clock: _Clock, case, phase: str) -> None:
         case.record(walk)
 
 
-def _one_case(store, knowledge, profiles, rng: random.Random, clock: _Clock, plan: str,
-              reopened_from=None, forced=None):
+def _one_case(store: CaseStore, knowledge: Knowledge,
+              profiles: Mapping[str, list[tuple[str, Profile]]], rng: random.Random,
+              clock: _Clock, plan: str, reopened_from: str | None = None,
+              forced: tuple[str, Profile, str, str] | None = None) -> tuple[str, tuple[str, Profile, str, str]]:
     from faultwise.walk.state import Walk
 
     if forced is None:

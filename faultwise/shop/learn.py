@@ -14,11 +14,14 @@ import os
 from dataclasses import dataclass
 from datetime import datetime, timezone
 from pathlib import Path
-from typing import Iterable, Mapping
+from typing import TYPE_CHECKING, Iterable, Mapping
 
 from faultwise.core.atomic import atomic_write
 from faultwise.core.errors import FaultwiseError
-from faultwise.shop.review import fault_counts
+from faultwise.shop.review_pairs import fault_counts, suspects_lists
+
+if TYPE_CHECKING:
+    from faultwise.graph.knowledge import Knowledge
 
 LEARNED_FORMAT = "faultwise-learned/1"
 LEARNED_NAME = "learned.yaml"
@@ -50,7 +53,7 @@ class PairChange:
     orders: tuple[OrderChange, ...]
 
 
-def learn_counts(cases: Iterable[Mapping], knowledge) -> Learning:
+def learn_counts(cases: Iterable[Mapping], knowledge: Knowledge | None) -> Learning:
     """Counts of concluded faults per symptom and family from closed, repaired cases."""
     counts: dict = {}
     dropped = []
@@ -97,10 +100,9 @@ def write_learned(knowledge_dir: str | os.PathLike, learning: Learning,
     return path
 
 
-def learn_changes(knowledge, learning: Learning) -> list[PairChange]:
+def learn_changes(knowledge: Knowledge, learning: Learning) -> list[PairChange]:
     """Per pair with old or new counts: count changes and every suspects order that moves."""
     from faultwise.walk.rank import rank_investigations
-    from faultwise.shop.review import _suspects_lists
 
     old = knowledge.learned.counts
     pairs = sorted({(s, f) for s in old for f in old[s]} |
@@ -114,7 +116,7 @@ def learn_changes(knowledge, learning: Learning) -> list[PairChange]:
                         if int(before.get(f, 0)) != int(after.get(f, 0)))
         orders = []
         try:
-            lists = _suspects_lists(knowledge, symptom, family)
+            lists = suspects_lists(knowledge, symptom, family)
         except FaultwiseError:
             lists = []
         for sid in lists:

@@ -13,13 +13,20 @@ old and new conclusions. Case files are only read; a damaged one is named and sk
 
 from __future__ import annotations
 
+import os
 from collections import deque
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from faultwise.core.errors import DamagedCaseError, FaultwiseError
 from faultwise.graph.nodes import MEASURE_OUTCOMES
+
+if TYPE_CHECKING:
+    from faultwise.expect.context import Expected
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.walk.state import Walk
 
 
 @dataclass(frozen=True)
@@ -87,7 +94,7 @@ def _recorded_inputs(events: list[Mapping]) -> tuple[dict, dict]:
     return readings, observations
 
 
-def _give(walk, event: Mapping, readings: Mapping, observations: Mapping) -> None:
+def _give(walk: Walk, event: Mapping, readings: Mapping, observations: Mapping) -> None:
     """Give one recorded answer again to the walk's current check."""
     from faultwise.walk.scripted import auto_answer
     from faultwise.expect.classify import representative_value
@@ -119,8 +126,10 @@ def _at(path: tuple[tuple[str, str], ...], step: int) -> str | None:
     return f"{path[step - 1][0]}: {path[step - 1][1]}" if step <= len(path) else None
 
 
-def replay_case(knowledge, data: Mapping, *, expectations: Mapping | None = None,
-                file: str = "", knowledge_dir=None) -> ReplayResult:
+def replay_case(knowledge: Knowledge, data: Mapping, *,
+                expectations: Mapping[str, Expected] | None = None,
+                file: str = "",
+                knowledge_dir: str | os.PathLike[str] | None = None) -> ReplayResult:
     """Re-walk one case's recorded answers against this knowledge; see the module doc.
 
     ``knowledge_dir``: the workspace's knowledge folder (its own tube table, if any, sets
@@ -185,7 +194,8 @@ def replay_case(knowledge, data: Mapping, *, expectations: Mapping | None = None
                         check_was, check_now, old_path, new_path)
 
 
-def replay_files(knowledge, paths: Iterable[Path], *, knowledge_dir=None) -> ReplayReport:
+def replay_files(knowledge: Knowledge, paths: Iterable[Path], *,
+                 knowledge_dir: str | os.PathLike[str] | None = None) -> ReplayReport:
     """Replay every case file; damaged files are named, unreplayable cases listed, none written."""
     from faultwise.cases.codec import read_case_bytes
 

@@ -24,6 +24,12 @@ import hashlib
 import json
 import os
 from datetime import date
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    import sqlite3
+
+    from faultwise.shop.review_results import Review
 
 __all__ = ["CACHE_FORMAT", "cache_key", "read_cached", "write_cached", "review_from_dict"]
 
@@ -41,7 +47,7 @@ def cache_key(cases_dir: str | os.PathLike, knowledge_dir: str | os.PathLike, *,
     return hashlib.sha256("\0".join(parts).encode("utf-8")).hexdigest()
 
 
-def _connect(cases_dir):
+def _connect(cases_dir: str | os.PathLike) -> sqlite3.Connection | None:
     import sqlite3
 
     from faultwise.cases.index import index_path
@@ -102,12 +108,12 @@ def write_cached(cases_dir: str | os.PathLike, key: str, review_doc: dict) -> bo
     return True
 
 
-def review_from_dict(doc: dict):
-    """The :class:`faultwise.shop.review.Review` of a ``review_to_dict`` document."""
-    from faultwise.cases.store import DamagedFile
-    from faultwise.shop.review import (FaultShare, FindingGroup, ListOrder, MonthMinutes,
-                                       PairReview, Reopened, Review, SkippedCheck, SteadyCheck,
-                                       UnreachedFault)
+def review_from_dict(doc: dict) -> Review:
+    """The :class:`faultwise.shop.review_results.Review` of a ``review_to_dict`` document."""
+    from faultwise.cases.listing import DamagedFile
+    from faultwise.shop.review_results import (FaultShare, FindingGroup, ListOrder,
+                                               MonthMinutes, PairReview, Reopened, Review,
+                                               SkippedCheck, SteadyCheck, UnreachedFault)
 
     def pair(p: dict) -> PairReview:
         return PairReview(

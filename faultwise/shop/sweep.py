@@ -5,7 +5,7 @@ For every fault with a signature, every symptom in its ``priors`` whose walk can
 set of that family (file order) on which the fault applies (its ``when`` holds, see
 :mod:`faultwise.graph.applicability`; a fault that applies on none of them is listed under
 ``no_set`` for that family, not walked), turns the signature into readings for that set
-(a class becomes a number from the set's band through ``walk.representative_value``;
+(a class becomes a number from the set's band through ``expect.classify.representative_value``;
 numbers are used as written; every other reading is nominal and every other observation
 normal, as ``auto_walk`` does), walks automatically and records whether the walk
 concluded that fault, after how many checks and minutes (DESIGN section 12).
@@ -16,180 +16,32 @@ walk uses them), renormalised over the faults swept in the pair. The overall fig
 plain means over the pairs. Baseline orders re-walk every signature with the suspects
 taken in another order (through the walk's ``order`` hook), to show what p/c ranking buys.
 
-No printing, no UI imports; ``faultwise.shop.sweep_report`` formats the result.
+This module holds the figures and the two entry points (``run_sweep``, ``learning_check``);
+the result types are in ``sweep_results``, the baseline orders in ``sweep_orders``, one
+signature's walk and the choice of what to walk in ``sweep_walk``. No printing, no UI
+imports; ``faultwise.shop.sweep_report`` formats the result.
 """
 
 from __future__ import annotations
 
-import inspect
 import math
-import random
-from collections.abc import Callable, Iterable, Mapping, Sequence
-from dataclasses import dataclass, field
+import os
+from collections.abc import Iterable, Mapping, Sequence
 from datetime import datetime
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from faultwise.core.errors import FaultwiseError
-from faultwise.graph.nodes import FAMILIES, MEASURE_OUTCOMES, Fault
+from faultwise.graph.nodes import FAMILIES, Fault
+from faultwise.shop.sweep_orders import RANDOM_SEED, baseline_orders, walk_has_order_hook
+from faultwise.shop.sweep_results import (DemoSet, LearningCheck, NoSet, PairFigures,
+                                          SweepReport, SweepWalk)
+from faultwise.shop.sweep_walk import (has_signature, pair_applies, sets_for_fault,
+                                       sweep_targets, walk_signature)
 
-#: stage order of the speaker-back baseline: signal tracing from the speaker towards the aerial,
-#: then the supply last (common practice, no source).
-SPEAKER_BACK = ("audio", "detector", "if", "oscillator", "antenna", "supply")
-BASELINES = ("written", "speaker-back", "random")
-RANDOM_SEED = 1955          # fixed so that the random baseline is the same on every run
-
-
-# ------------------------------------------------------------------------------ results
-
-@dataclass(frozen=True)
-class DemoSet:
-    """A demo set profile the sweep walks on, with its expectations computed once."""
-
-    name: str                 # file name, e.g. demo-5-tube-table.yaml
-    family: str
-    profile: object
-    expectations: Mapping
-
-
-@dataclass(frozen=True)
-class PathStep:
-    """One answered check of a sweep walk."""
-
-    node: str
-    outcome: str
-    value: float | None = None
-    minutes: float = 0.0
-
-
-@dataclass(frozen=True)
-class SweepWalk:
-    """One signature walked: which fault, where, and what the walk concluded."""
-
-    fault: str
-    symptom: str
-    family: str
-    set_name: str
-    concluded: str | None     # fault id the walk concluded, or None
-    escalate: str | None      # escalate node (or "cleared") where the walk ran out
-    checks: int
-    minutes: float
-    known_cause_minutes: float   # minutes of the last check before the conclusion
-    path: tuple[PathStep, ...] = ()
-    error: str = ""           # a FaultwiseError raised while walking (the walk failed)
-
-    @property
-    def isolated(self) -> bool:
-        return self.concluded == self.fault and not self.error
-
-    def ended_at(self) -> str:
-        """Where the walk ended, in words."""
-        if self.error:
-            return f"an error ({self.error})"
-        if self.concluded:
-            return f"the fault '{self.concluded}'"
-        if self.escalate and self.escalate != "cleared":
-            return f"the escalation '{self.escalate}'"
-        return "no conclusion (every suspect cleared)"
-
-
-@dataclass(frozen=True)
-class PairFigures:
-    """Prior-weighted figures for one (symptom, family) pair."""
-
-    symptom: str
-    family: str
-    weights: Mapping[str, float]       # fault -> renormalised probability (swept faults)
-    walks: int
-    isolated: int
-    mean_checks: float
-    mean_minutes: float
-    known_cause_minutes: float
-    entropy_bits: float
-    baselines: Mapping[str, float]     # baseline name -> prior-weighted mean checks
-    unswept: tuple[str, ...] = ()      # faults the walk can reach that carry no prior/signature
-
-    @property
-    def ratio(self) -> float | None:
-        """mean checks / entropy bits; None when the entropy is zero (one fault)."""
-        return self.mean_checks / self.entropy_bits if self.entropy_bits > 0 else None
-
-
-@dataclass(frozen=True)
-class Unreachable:
-    """A fault whose priors name a symptom whose walk (for this family) cannot reach it."""
-
-    fault: str
-    symptom: str
-    family: str
-
-
-@dataclass(frozen=True)
-class NoSet:
-    """Faults of a family that apply on none of its demo sets (or the family has none)."""
-
-    family: str
-    faults: tuple[str, ...]
-
-
-@dataclass(frozen=True)
-class LearningCheck:
-    """Expected checks on the later half of the closed cases, with and without learned counts.
-
-    Method: each later case's fault signature is re-walked for its symptom and family on the
-    family's sweep set, once with ``counts`` = the counts learned from the earlier half for
-    that pair, once with ``counts = {}`` (the graph's priors only); the means are over the
-    later cases that could be walked.
-    """
-
-    cases: int                 # closed cases with a conclusion
-    earlier: int
-    later: int
-    split: str                 # the opened time of the first later case
-    walked: int
-    skipped: tuple[tuple[str, str], ...]     # (case id, reason)
-    counts: Mapping            # {symptom: {family: {fault: n}}} from the earlier part
-    mean_checks_prior: float | None
-    mean_checks_learned: float | None
-    mean_minutes_prior: float | None
-    mean_minutes_learned: float | None
-    isolated_prior: int = 0
-    isolated_learned: int = 0
-    method: str = "signature re-walk"
-
-
-@dataclass(frozen=True)
-class SweepReport:
-    """The whole sweep: every walk, per-pair figures, overall figures and baselines."""
-
-    walks: tuple[SweepWalk, ...]
-    pairs: tuple[PairFigures, ...]
-    sets: Mapping[str, tuple[str, ...]]          # family -> set file names walked
-    no_set: tuple[NoSet, ...]                    # per family: faults with no demo set to walk on
-    unreachable: tuple[Unreachable, ...]
-    mean_checks: float
-    entropy_bits: float
-    mean_minutes: float
-    known_cause_minutes: float
-    baselines: Mapping[str, float] | None        # None when the walk has no order hook
-    baseline_walks: Mapping[str, tuple[SweepWalk, ...]] = field(default_factory=dict)
-    random_seed: int = RANDOM_SEED
-    learning: LearningCheck | None = None
-
-    @property
-    def signatures(self) -> int:
-        return len(self.walks)
-
-    @property
-    def isolated(self) -> int:
-        return sum(1 for w in self.walks if w.isolated)
-
-    @property
-    def failures(self) -> tuple[SweepWalk, ...]:
-        return tuple(w for w in self.walks if not w.isolated)
-
-    @property
-    def ratio(self) -> float | None:
-        return self.mean_checks / self.entropy_bits if self.entropy_bits > 0 else None
+if TYPE_CHECKING:
+    from faultwise.cases.listing import CaseSummary
+    from faultwise.graph.knowledge import Knowledge
 
 
 # ------------------------------------------------------------------------- arithmetic
@@ -228,64 +80,11 @@ def _mean(xs: Sequence[float]) -> float:
     return sum(xs) / len(xs) if xs else 0.0
 
 
-# ----------------------------------------------------------------------- baseline orders
-
-OrderFn = Callable[[list, object], list]
-
-
-def _written_index(suspects) -> dict[str, int]:
-    index: dict[str, int] = {}
-    for i, inv in enumerate(suspects.investigations):
-        index.setdefault(inv.target, i)
-    return index
-
-
-def written_order(ranked: list, suspects) -> list:
-    """The investigations as the graph writes them, ignoring p/c."""
-    index = _written_index(suspects)
-    return sorted(ranked, key=lambda r: index.get(r.target, len(index)))
-
-
-def speaker_back_order(knowledge) -> OrderFn:
-    """Investigations by the stage of their target (SPEAKER_BACK), written order within a stage."""
-    def order(ranked: list, suspects) -> list:
-        index = _written_index(suspects)
-
-        def key(r):
-            node = knowledge.nodes.get(r.target)
-            stage = getattr(node, "stage", "supply")
-            rank = SPEAKER_BACK.index(stage) if stage in SPEAKER_BACK else len(SPEAKER_BACK)
-            return rank, index.get(r.target, len(index))
-        return sorted(ranked, key=key)
-    return order
-
-
-def random_order(seed: int = RANDOM_SEED) -> OrderFn:
-    """Each suspects list shuffled once by random.Random(f"{seed}:{suspects id}"): fixed per seed."""
-    def order(ranked: list, suspects) -> list:
-        targets = list(_written_index(suspects))
-        random.Random(f"{seed}:{suspects.id}").shuffle(targets)
-        position = {t: i for i, t in enumerate(targets)}
-        return sorted(ranked, key=lambda r: position.get(r.target, len(position)))
-    return order
-
-
-def baseline_orders(knowledge, seed: int = RANDOM_SEED) -> dict[str, OrderFn]:
-    """The simple orders the p/c walk is measured against, by name (BASELINES)."""
-    return {"written": written_order, "speaker-back": speaker_back_order(knowledge),
-            "random": random_order(seed)}
-
-
-def walk_has_order_hook() -> bool:
-    """Whether ``walk.auto_walk`` takes ``order=`` (needed for the baselines)."""
-    from faultwise.walk import scripted as walk
-
-    return "order" in inspect.signature(walk.auto_walk).parameters
-
-
 # ------------------------------------------------------------------------------- sets
 
-def load_demo_sets(sets_dir, knowledge_dir=None) -> dict[str, list[DemoSet]]:
+def load_demo_sets(sets_dir: str | os.PathLike[str],
+                   knowledge_dir: str | os.PathLike[str] | None = None
+                   ) -> dict[str, list[DemoSet]]:
     """Every set profile in ``sets_dir`` (sorted by file name), by family, with its expectations."""
     from faultwise.expect.expected import expect
     from faultwise.profile.load import load_profile
@@ -301,101 +100,6 @@ def load_demo_sets(sets_dir, knowledge_dir=None) -> dict[str, list[DemoSet]]:
     return out
 
 
-# ------------------------------------------------------------------------------ walking
-
-def synthesise_readings(signature, expectations: Mapping) -> dict:
-    """Signature readings as numbers for this set: a class -> representative_value, numbers kept.
-
-    A name the set has no expectation for keeps its class word (the walk then takes the
-    word as the outcome).
-    """
-    from faultwise.expect.classify import representative_value
-
-    out: dict = {}
-    for name, spec in signature.readings.items():
-        if isinstance(spec, str) and spec in MEASURE_OUTCOMES and name in expectations:
-            out[name] = representative_value(expectations[name], spec)
-        else:
-            out[name] = spec
-    return out
-
-
-def swept_faults(knowledge, symptom: str, family: str) -> list[str]:
-    """Faults swept for a pair: reachable, with a signature, naming the symptom in their priors."""
-    return sorted(f for f in knowledge.faults_for(symptom, family)
-                  if _has_signature(knowledge.nodes[f]) and symptom in knowledge.nodes[f].priors)
-
-
-def _has_signature(fault: Fault) -> bool:
-    return bool(fault.signature.readings) or bool(fault.signature.observations)
-
-
-def _pair_applies(knowledge, symptom: str, family: str) -> bool:
-    sym = knowledge.symptoms.get(symptom)
-    return sym is not None and family in sym.families and family in sym.entry
-
-
-def sweep_targets(knowledge, *, families: Iterable[str] = FAMILIES,
-                  symptom: str | None = None) -> tuple[list[tuple[str, str, str]], list[Unreachable]]:
-    """(symptom, family, fault) triples to walk, in a stable order, and the unreachable priors."""
-    targets, unreachable = [], []
-    wanted = tuple(families)
-    for node in knowledge.nodes.values():
-        if not isinstance(node, Fault) or not _has_signature(node):
-            continue
-        for sym in node.priors:
-            if symptom is not None and sym != symptom:
-                continue
-            for fam in node.families:
-                if fam not in wanted or not _pair_applies(knowledge, sym, fam):
-                    continue
-                if node.id in knowledge.faults_for(sym, fam):
-                    targets.append((sym, fam, node.id))
-                else:
-                    unreachable.append(Unreachable(node.id, sym, fam))
-    targets.sort()
-    unreachable.sort(key=lambda u: (u.symptom, u.family, u.fault))
-    return targets, unreachable
-
-
-def fault_applies_on(knowledge, fault_id: str, demo: DemoSet) -> bool:
-    """Whether the fault applies on this demo set (family and ``when``)."""
-    from faultwise.graph.applicability import node_applies
-
-    return node_applies(knowledge.node(fault_id), demo.profile, demo.expectations)
-
-
-def sets_for_fault(knowledge, fault_id: str, demos: Sequence[DemoSet], *,
-                   all_sets: bool = False) -> tuple[DemoSet, ...]:
-    """The demo sets (in file order) a fault is walked on: the first it applies on, or all."""
-    fitting = tuple(d for d in demos if fault_applies_on(knowledge, fault_id, d))
-    return fitting if all_sets else fitting[:1]
-
-
-def walk_signature(knowledge, fault_id: str, symptom: str, demo: DemoSet, *,
-                   order: OrderFn | None = None, counts: Mapping | None = None) -> SweepWalk:
-    """Walk one fault's signature for one symptom on one demo set."""
-    from faultwise.walk.scripted import auto_walk
-
-    fault = knowledge.node(fault_id)
-    readings = synthesise_readings(fault.signature, demo.expectations)
-    kwargs = {"expectations": demo.expectations, "counts": counts}
-    if order is not None:
-        kwargs["order"] = order
-    try:
-        result = auto_walk(knowledge, demo.profile, symptom, readings,
-                           dict(fault.signature.observations), **kwargs)
-    except FaultwiseError as exc:
-        return SweepWalk(fault_id, symptom, demo.family, demo.name, None, None, 0, 0.0, 0.0,
-                         error=str(exc))
-    steps = [s for s in result.steps if s.phase == "diagnose" and s.outcome != "skipped"]
-    path = tuple(PathStep(s.node, s.outcome, s.value, s.minutes) for s in steps)
-    last = path[-1].minutes if path else 0.0
-    return SweepWalk(fault_id, symptom, demo.family, demo.name,
-                     result.conclusion.id if result.conclusion else None, result.escalate,
-                     result.checks, float(result.minutes), float(last), path)
-
-
 # ------------------------------------------------------------------------------ sweeping
 
 def _per_fault(walks: Iterable[SweepWalk], attr: str) -> dict[str, float]:
@@ -406,7 +110,7 @@ def _per_fault(walks: Iterable[SweepWalk], attr: str) -> dict[str, float]:
     return {f: _mean(v) for f, v in acc.items()}
 
 
-def pair_figures(knowledge, symptom: str, family: str, walks: Sequence[SweepWalk],
+def pair_figures(knowledge: Knowledge, symptom: str, family: str, walks: Sequence[SweepWalk],
                  baseline_walks: Mapping[str, Sequence[SweepWalk]]) -> PairFigures:
     """Prior-weighted means of one pair's walks (weights: fault_probabilities, renormalised)."""
     from faultwise.walk.rank import fault_probabilities
@@ -425,7 +129,7 @@ def pair_figures(knowledge, symptom: str, family: str, walks: Sequence[SweepWalk
         entropy_bits(weights.values()), base, unswept)
 
 
-def run_sweep(knowledge, sets: Mapping[str, Sequence[DemoSet]], *, family: str | None = None,
+def run_sweep(knowledge: Knowledge, sets: Mapping[str, Sequence[DemoSet]], *, family: str | None = None,
               symptom: str | None = None, all_sets: bool = False, baselines: bool = True,
               seed: int = RANDOM_SEED) -> SweepReport:
     """Walk every signature (see the module doc); baselines need the walk's ``order`` hook."""
@@ -475,7 +179,7 @@ def run_sweep(knowledge, sets: Mapping[str, Sequence[DemoSet]], *, family: str |
 
 # ------------------------------------------------------------------------------ learning
 
-def _opened_key(summary) -> tuple:
+def _opened_key(summary: CaseSummary) -> tuple[float, str, str]:
     try:
         stamp = datetime.fromisoformat(str(summary.opened)).timestamp()
     except ValueError:
@@ -483,7 +187,8 @@ def _opened_key(summary) -> tuple:
     return stamp, str(summary.opened), summary.id
 
 
-def learned_counts(summaries: Iterable, knowledge) -> dict:
+def learned_counts(summaries: Iterable[CaseSummary],
+                   knowledge: Knowledge) -> dict[str, dict[str, dict[str, int]]]:
     """{symptom: {family: {fault: n}}} over closed cases whose conclusion the knowledge knows."""
     counts: dict = {}
     for s in summaries:
@@ -495,7 +200,7 @@ def learned_counts(summaries: Iterable, knowledge) -> dict:
     return counts
 
 
-def learning_check(knowledge, cases_dir, sets: Mapping[str, Sequence[DemoSet]],
+def learning_check(knowledge: Knowledge, cases_dir: str | os.PathLike[str], sets: Mapping[str, Sequence[DemoSet]],
                    bench: str = "B1") -> LearningCheck | None:
     """Split the closed, concluded cases at the median opened date; learn on the earlier half.
 
@@ -526,7 +231,7 @@ def learning_check(knowledge, cases_dir, sets: Mapping[str, Sequence[DemoSet]],
         prior.append(walk_signature(knowledge, case.fault, case.symptom, demo, counts={}))
         learned.append(walk_signature(knowledge, case.fault, case.symptom, demo, counts=pair))
 
-    def mean_of(ws, attr):
+    def mean_of(ws: Sequence[SweepWalk], attr: str) -> float | None:
         return _mean([float(getattr(w, attr)) for w in ws]) if ws else None
     return LearningCheck(
         len(closed), len(earlier), len(later), later[0].opened, len(prior), tuple(skipped),
@@ -535,14 +240,15 @@ def learning_check(knowledge, cases_dir, sets: Mapping[str, Sequence[DemoSet]],
         sum(1 for w in prior if w.isolated), sum(1 for w in learned if w.isolated))
 
 
-def _unwalkable(knowledge, case, sets) -> str:
+def _unwalkable(knowledge: Knowledge, case: CaseSummary,
+                sets: Mapping[str, Sequence[DemoSet]]) -> str:
     """Why a later case cannot be re-walked, or ''."""
     node = knowledge.nodes.get(case.fault or "")
     if not isinstance(node, Fault):
         return f"the fault '{case.fault}' is not in the knowledge"
-    if not _has_signature(node):
+    if not has_signature(node):
         return f"the fault '{case.fault}' has no signature"
-    if not _pair_applies(knowledge, case.symptom, case.family):
+    if not pair_applies(knowledge, case.symptom, case.family):
         return f"the symptom '{case.symptom}' has no walk for {case.family} sets"
     if case.fault not in knowledge.faults_for(case.symptom, case.family):
         return f"the walk for '{case.symptom}' cannot reach '{case.fault}'"

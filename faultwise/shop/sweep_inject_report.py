@@ -3,15 +3,19 @@
 from __future__ import annotations
 
 from html import escape
+from typing import TYPE_CHECKING
 
 from faultwise.core.safe_text import one_line as plain
 
+if TYPE_CHECKING:
+    from faultwise.shop.sweep_inject import InjectReport, InjectWalk
 
-def _r(x: float | None, nd: int = 2):
+
+def _r(x: float | None, nd: int = 2) -> float | None:
     return None if x is None else round(float(x), nd)
 
 
-def inject_to_dict(rep) -> dict:
+def inject_to_dict(rep: InjectReport) -> dict:
     """The ``sweep --inject --json`` document (DESIGN section 10)."""
     bw = rep.band_walks
     worst = max(rep.optimal, key=lambda r: r.ratio or 0.0, default=None)
@@ -55,7 +59,7 @@ def inject_to_dict(rep) -> dict:
     }
 
 
-def _result(w) -> str:
+def _result(w: InjectWalk) -> str:
     if w.error:
         return f"error: {w.error}"
     if w.found:
@@ -65,7 +69,7 @@ def _result(w) -> str:
     return f"missed: {w.escalate or 'cleared'}"
 
 
-def inject_text(rep) -> str:
+def inject_text(rep: InjectReport) -> str:
     lines = [f"Injected sweep: {rep.faults} of {rep.modelled_faults} modelled faults walked on "
              f"{len(rep.sets)} sets; {len(rep.walks)} walks, {rep.found} found, "
              f"{len(rep.wrong)} wrong, {len(rep.missed)} missed, {len(rep.explained)} explained "
@@ -113,7 +117,7 @@ def inject_text(rep) -> str:
 
 
 
-def failure_sentence(rep) -> str:
+def failure_sentence(rep: InjectReport) -> str:
     if rep.ok:
         return ""
     return (f"the injected sweep found {len(rep.wrong)} wrong conclusions, {len(rep.missed)} "
@@ -121,7 +125,7 @@ def failure_sentence(rep) -> str:
             "fix the graph (band, route, outcome) or the fault model")
 
 
-def inject_html(rep) -> str:
+def inject_html(rep: InjectReport) -> str:
     """One table per complaint: found %, mean minutes, optimum, ratio, per family."""
     if not rep.optimal:
         return ""

@@ -1,8 +1,9 @@
-"""Text and JSON forms of a :class:`faultwise.shop.sweep.SweepReport` (no printing here)."""
+"""Text and JSON forms of a :class:`faultwise.shop.sweep_results.SweepReport` (no printing here)."""
 
 from __future__ import annotations
 
-from faultwise.shop.sweep import BASELINES, LearningCheck, PairFigures, SweepReport, SweepWalk
+from faultwise.shop.sweep_orders import BASELINES
+from faultwise.shop.sweep_results import LearningCheck, PairFigures, SweepReport, SweepWalk
 
 
 def _r(x: float | None, digits: int = 3) -> float | None:

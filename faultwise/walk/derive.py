@@ -1,20 +1,31 @@
 """Deriving a walk's state from its events: the reducer and the graph routing.
 
-The walk (:mod:`faultwise.walk.state`) is the public API; this mixin replays events into
-a :class:`_State` and routes through checks, suspects lists and faults.
+The walk (:mod:`faultwise.walk.state`) is the public API; this base class replays events
+into a :class:`_State` and routes through checks, suspects lists and faults, and knows which
+verify and closing checks apply to the set. :class:`~faultwise.walk.view.WalkView` and then
+``Walk`` build on it; the attributes it reads (knowledge, family, symptom, counts, order and
+the applicability predicate) are set by ``Walk.__init__``.
 """
 
 from __future__ import annotations
 
 import copy
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 from faultwise.core.errors import InputError, KnowledgeError, WalkError
 from faultwise.graph.nodes import (CLEARED, Check, Fault,
                                    Suspects)
 
 from faultwise.walk.results import OUTCOMES, Step
+
+if TYPE_CHECKING:
+    from faultwise.expect.context import Expected
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.graph.nodes import Suspects
+    from faultwise.profile.model import Profile
+    from faultwise.walk.rank import Ranked
 
 _MOVE_LIMIT = 10_000          # routing steps in one move; the graph has no cycles (lint)
 
@@ -57,6 +68,16 @@ class _State:
 
 class WalkDerivation:
     """The event reducer and router that :class:`~faultwise.walk.state.Walk` builds on."""
+
+    # set by Walk.__init__
+    knowledge: Knowledge
+    profile: Profile
+    family: str
+    symptom: str
+    expectations: dict[str, Expected]
+    counts: dict[str, int]
+    order: Callable[[list[Ranked], Suspects], list[Ranked]] | None
+    _applies: Callable[[str], bool]
 
     def _derive(self, events: list[dict]) -> _State:
         st = _State()
@@ -260,7 +281,7 @@ class WalkDerivation:
                              f"{_MOVE_LIMIT} routes without asking anything",
                              node=st.node, hint="run 'faultwise lint' to find the loop")
 
-    def _ranked(self, frame, answers: Mapping[str, str]) -> list:
+    def _ranked(self, frame: _MFrame, answers: Mapping[str, str]) -> list[Ranked]:
         """The frame's not-cleared investigations, best first (p/c weighted by what the
         ``answers`` so far say of each fault, :mod:`faultwise.walk.evidence`; or the
         ``order`` hook)."""
@@ -286,3 +307,16 @@ class WalkDerivation:
             return frame.current
         st.stack.pop()
         return self.knowledge.node(frame.suspects).exhausted
+
+    def _closing_ids(self) -> list[str]:
+        return [c.id for c in self.knowledge.closing_checks(self.family) if self._applies(c.id)]
+
+    def _verify_ids(self, fault_id: str | None) -> list[str]:
+        fault = self.knowledge.nodes.get(fault_id) if fault_id else None
+        out = []
+        for cid in getattr(fault, "verify", ()):
+            node = self.knowledge.nodes.get(cid)
+            if (isinstance(node, Check) and self.family in node.families and self._applies(cid)
+                    and cid not in out):
+                out.append(cid)
+        return out

@@ -25,9 +25,14 @@ decide every conclusion. Physics uses the bundled tube table (only the class mat
 from __future__ import annotations
 
 from collections.abc import Iterable, Mapping
+from typing import TYPE_CHECKING
 
 from faultwise.expect.classify import classify
-from faultwise.graph.nodes import Check, Fault
+from faultwise.graph.nodes import Check, Fault, Node
+
+if TYPE_CHECKING:
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.profile.model import Profile
 
 AGREE = 1.0
 CONTRADICTED = 0.1
@@ -38,7 +43,7 @@ _CLASSES = ("absent", "low", "normal", "high")
 class Evidence:
     """Predictions of one set's faults for its checks, computed lazily and kept."""
 
-    def __init__(self, knowledge, profile, expectations: Mapping) -> None:
+    def __init__(self, knowledge: Knowledge, profile: Profile, expectations: Mapping) -> None:
         self.knowledge = knowledge
         self.profile = profile
         self.expectations = expectations
@@ -66,7 +71,7 @@ class Evidence:
                                                  self.knowledge.nodes.get(check_id))
         return self._predicted[key]
 
-    def _predict(self, fault, check) -> str | None:
+    def _predict(self, fault: Node | None, check: Node | None) -> str | None:
         if not isinstance(fault, Fault) or not isinstance(check, Check):
             return None
         sig = fault.signature

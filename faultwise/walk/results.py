@@ -1,17 +1,15 @@
-"""What a walk shows and returns: frames, steps, prompts, results (frozen data)."""
+"""What a walk shows: frames, explanations, steps and prompts (frozen data), and choice lookup.
+
+The result of an automatic walk, ``WalkResult``, is in :mod:`faultwise.walk.scripted`.
+"""
 
 from __future__ import annotations
-
-from typing import TYPE_CHECKING
 
 from collections.abc import Mapping
 from dataclasses import dataclass
 
 from faultwise.core.errors import InputError
-from faultwise.graph.nodes import (Caution, Fault)
-
-if TYPE_CHECKING:                      # the walk itself, for the annotation only
-    from faultwise.walk.state import Walk
+from faultwise.graph.nodes import Caution
 
 PHASES = ("diagnose", "repair", "verify", "closing", "done")
 OUTCOMES = ("repaired", "returned-unrepaired", "waiting-parts")
@@ -82,19 +80,6 @@ class Prompt:
     @property
     def is_measurement(self) -> bool:
         return self.kind == "check" and self.expected is not None
-
-
-@dataclass(frozen=True)
-class WalkResult:
-    """An automatic walk (``walk --answers``, replay, sweep)."""
-
-    conclusion: Fault | None
-    escalate: str | None
-    steps: tuple[Step, ...]
-    checks: int
-    minutes: float
-    walk: Walk
-    missing: object | None = None     # errors.MissingAnswerError where an answer was missing
 
 
 # --------------------------------------------------------------------------- helpers

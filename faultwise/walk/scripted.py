@@ -2,18 +2,42 @@
 
 from __future__ import annotations
 
+import os
 from collections.abc import Callable, Mapping
+from dataclasses import dataclass
 from datetime import datetime
+from typing import TYPE_CHECKING, Any
 
 from faultwise.core.errors import InputError
-from faultwise.graph.nodes import (CLEARED, MEASURE_OUTCOMES)
+from faultwise.graph.nodes import CLEARED, MEASURE_OUTCOMES, Fault
 
 from faultwise.expect.classify import representative_value
-from faultwise.walk.results import WalkResult
+from faultwise.walk.results import Step
 from faultwise.walk.state import Walk
 
+if TYPE_CHECKING:
+    from faultwise.expect.context import Expected
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.graph.nodes import Suspects
+    from faultwise.profile.model import Profile
+    from faultwise.walk.rank import Ranked
 
-def walk_from_case(knowledge, data: Mapping, *, knowledge_dir=None, **kwargs) -> Walk:
+
+@dataclass(frozen=True)
+class WalkResult:
+    """An automatic walk (``walk --answers``, replay, sweep)."""
+
+    conclusion: Fault | None
+    escalate: str | None
+    steps: tuple[Step, ...]
+    checks: int
+    minutes: float
+    walk: Walk
+    missing: object | None = None     # errors.MissingAnswerError where an answer was missing
+
+
+def walk_from_case(knowledge: Knowledge, data: Mapping[str, Any], *,
+                   knowledge_dir: str | os.PathLike[str] | None = None, **kwargs: Any) -> Walk:
     """Rebuild the walk recorded in a case file's data (profile copied into the case).
 
     ``knowledge_dir``: the workspace's knowledge, whose own tube table (if any) the
@@ -96,11 +120,14 @@ def auto_answer(walk: Walk, readings: Mapping | None = None,
     return walk.answer(choice, assumed=mark)
 
 
-def auto_walk(knowledge, profile, symptom: str, readings: Mapping | None = None,
-              observations: Mapping | None = None, *, expectations: Mapping | None = None,
+def auto_walk(knowledge: Knowledge, profile: Profile, symptom: str,
+              readings: Mapping[str, Any] | None = None,
+              observations: Mapping[str, str] | None = None, *,
+              expectations: Mapping[str, Expected] | None = None,
               counts: Mapping[str, int] | None = None, through: bool = False,
               clock: Callable[[], datetime] | None = None,
-              order: Callable | None = None, missing: str = "normal") -> WalkResult:
+              order: Callable[[list[Ranked], Suspects], list[Ranked]] | None = None,
+              missing: str = "normal") -> WalkResult:
     """Walk with readings by expectation name and observations by check id.
 
     ``missing`` says what a check without an answer gets (see :func:`auto_answer`); with

@@ -12,7 +12,10 @@ from the mapping).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Iterable
+from typing import TYPE_CHECKING, Iterable
+
+if TYPE_CHECKING:
+    from faultwise.walk.state import Walk
 
 __all__ = ["UNTESTED", "SUSPECT", "CLEARED", "FAULTY", "NOT_NEEDED", "STAGE_STATES",
            "StepView", "stage_states", "walk_stage_states"]
@@ -49,7 +52,7 @@ def stage_states(steps: Iterable[StepView], fault_stage: str | None) -> dict[str
     return states
 
 
-def walk_stage_states(walk) -> dict[str, str]:
+def walk_stage_states(walk: Walk) -> dict[str, str]:
     """Stage states of a live :class:`faultwise.walk.state.Walk` (its steps and conclusion)."""
     nodes = walk.knowledge.nodes
     views = [StepView(stage=getattr(nodes.get(s.node), "stage", ""), outcome=s.outcome,

@@ -7,7 +7,7 @@ stages after it a resistive load with nothing to draw on), a shorted second capa
 resistor limits the current) and a shorted first capacitor (replaced by SHORT_OHM; the surge
 resistor limits it). Bias faults run the healthy bias netlist with one resistor open (10 Mohm
 for the emitter resistor: the meter is then the only path; 1e12 ohm for a divider resistor)
-and compare with :func:`faultwise.expect.fault_physics.stage_point` at ngspice's own Vbe, and check
+and compare with :func:`faultwise.expect.fault_state.stage_point` at ngspice's own Vbe, and check
 that both readings fall in the same outcome class of the healthy band.
 """
 
@@ -17,9 +17,9 @@ import pytest
 
 from faultwise.expect import expect
 from faultwise.expect.fault_models import OPEN_OHM, SHORT_OHM
-from faultwise.expect.fault_physics import inject, stage_point
+from faultwise.expect.fault_physics import inject
 from faultwise.expect.fault_physics_line import _circuit
-from faultwise.expect.fault_physics import fold
+from faultwise.expect.fault_state import fold, stage_point
 from faultwise.expect.fault_models import parse_model
 from faultwise.profile import load_profile
 from faultwise.walk import classify

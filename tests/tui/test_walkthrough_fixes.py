@@ -176,7 +176,7 @@ async def test_start_screen_names_the_symptom(make_app, workspace):
 
 def test_share_lines_fit_the_screen():
     """A fault share line (label, bar, percentage, count) fits in 80 columns."""
-    from faultwise.shop.review import FaultShare
+    from faultwise.shop.review_results import FaultShare
     from faultwise.tui.screens.review import chart_widths, share_chart
 
     class Pair:
