@@ -126,3 +126,21 @@ def test_inseparable_faults_are_reported_not_counted():
     sol = optimal_minutes(Problem(ws, {"c": 2.0}, outs))
     assert math.isclose(sol.minutes, 2.0)
     assert sol.inseparable == (("a", "b"),)
+
+
+def test_a_fault_left_alone_still_needs_its_confirming_check():
+    # By hand: faults f1, f2 (weight 1 each) and the healthy set. Check t (1 min) tells all
+    # three apart but routes to neither fault; c1 and c2 (3 min each) each route to one.
+    # Without confirming checks the optimum is t alone: 1 min. With them, t then the
+    # confirming check of whichever fault is left: 1 + 3 = 4 min; c1 first costs
+    # 3 + 1/2 x 3 (c2 for f2 or the healthy set) = 4.5. So 4.0, first t.
+    ws = {"f1": 1.0, "f2": 1.0, HEALTHY: 0.0}
+    outs = {"t": {"f1": "x", "f2": "y", HEALTHY: "n"},
+            "c1": {"f1": "bad", "f2": "ok", HEALTHY: "ok"},
+            "c2": {"f1": "ok", "f2": "bad", HEALTHY: "ok"}}
+    minutes = {"t": 1.0, "c1": 3.0, "c2": 3.0}
+    assert math.isclose(optimal_minutes(Problem(ws, minutes, outs)).minutes, 1.0)
+    sol = optimal_minutes(Problem(ws, minutes, outs, {"f1": frozenset({"c1"}),
+                                                      "f2": frozenset({"c2"})}))
+    assert math.isclose(sol.minutes, 4.0)
+    assert sol.first == "t"

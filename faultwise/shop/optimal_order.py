@@ -19,6 +19,13 @@ possible (memoised on the set):
 where g runs over the groups of S with the same outcome of c and w is the prior weight (a
 set of zero weight -- only the healthy set -- costs nothing). A check that splits nothing
 is never worth asking. Hypotheses no check separates are left together (``inseparable``).
+A fault is concluded the way the walk concludes it: on a check whose outcome routes to it
+(its *confirming* checks, ``Problem.confirms``). When a check leaves one fault that it does
+not itself route to, the policy still pays for the cheapest of that fault's confirming checks
+(a fault named by elimination among the listed ones is not yet proven; the walk's graph asks
+for that proof, so the bound asks for it too). A fault with no confirming check listed is
+concluded as soon as it is alone.
+
 The number of distinct sets reached is what bounds the work, and checks that confirm a
 single fault each (most of a graph's confirming checks) make it grow as 2^n: the exhaustive
 search is exact but is practical to about 25 hypotheses. ``restrict_singles=True`` tries, at
@@ -33,7 +40,7 @@ the restricted one beyond it, and says which (``exact``).
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from functools import lru_cache
 
 HEALTHY = "(healthy)"
@@ -46,6 +53,13 @@ class Problem:
     weights: Mapping[str, float]
     minutes: Mapping[str, float]
     outcomes: Mapping[str, Mapping[str, str]]      # check -> hypothesis -> outcome
+    confirms: Mapping[str, frozenset] = field(default_factory=dict)   # hypothesis -> checks
+
+    def confirm_minutes(self, hypothesis: str) -> float:
+        """The cheapest confirming check of a hypothesis (0 with none listed)."""
+        costs = [float(self.minutes[c]) for c in self.confirms.get(hypothesis, ())
+                 if c in self.minutes]
+        return min(costs) if costs else 0.0
 
 
 @dataclass(frozen=True)
@@ -81,41 +95,60 @@ def optimal_minutes(problem: Problem, *, restrict_singles: bool = False,
     hyps = tuple(sorted(problem.weights))
     w = [float(problem.weights[h]) for h in hyps]
     checks = sorted(problem.minutes)
-    # per check: the outcome of every hypothesis as a small int, and its cost
+    # per check: its cost and, per outcome, the bitmask of the hypotheses giving it
     table = []
     for c in checks:
         outs = problem.outcomes[c]
-        codes: dict[str, int] = {}
-        row = tuple(codes.setdefault(str(outs.get(h, "")), len(codes)) for h in hyps)
-        if len(codes) > 1:
-            table.append((c, float(problem.minutes[c]), row))
+        by_outcome: dict[str, int] = {}
+        for i, h in enumerate(hyps):
+            key = str(outs.get(h, ""))
+            by_outcome[key] = by_outcome.get(key, 0) | (1 << i)
+        if len(by_outcome) > 1:
+            table.append((c, float(problem.minutes[c]), tuple(by_outcome.values())))
     stuck: list[tuple[str, ...]] = []
+    # per hypothesis: the checks that conclude it, and the cheapest of them
+    proof = [(frozenset(problem.confirms.get(h, ())), problem.confirm_minutes(h)) for h in hyps]
+    weight_of: dict[int, float] = {}
+
+    def weight(mask: int) -> float:
+        if mask not in weight_of:
+            total, m = 0.0, mask
+            while m:
+                low = m & -m
+                total += w[low.bit_length() - 1]
+                m ^= low
+            weight_of[mask] = total
+        return weight_of[mask]
+
+    def left_alone(i: int, check: str) -> float:
+        """Minutes still owed for hypothesis i left alone by ``check``."""
+        confirmers, cheapest = proof[i]
+        return 0.0 if not confirmers or check in confirmers else cheapest
 
     @lru_cache(maxsize=None)
-    def solve(state: frozenset) -> tuple[float, str | None]:
+    def solve(state: int) -> tuple[float, str | None]:
         if budget is not None and solve.cache_info().currsize > budget:
             raise TooLarge
-        if len(state) <= 1:
+        if state & (state - 1) == 0:         # one hypothesis (or none) left
             return 0.0, None
-        total = sum(w[i] for i in state)
+        total = weight(state)
         if total <= 0:
             return 0.0, None
         best, best_c = float("inf"), None
         candidates = []
         single_best = None         # (w/c, -cost, check) of the best single-fault test
-        for c, cost, row in table:
-            groups: dict[int, list[int]] = {}
-            for i in state:
-                groups.setdefault(row[i], []).append(i)
+        for c, cost, masks in table:
+            groups = [g for g in (state & m for m in masks) if g]
             if len(groups) < 2:
                 continue
-            singles = [g[0] for g in groups.values() if len(g) == 1 and w[g[0]] > 0]
-            if restrict_singles and len(groups) == 2 and singles:
-                f = max(singles, key=lambda i: w[i])
-                key = (w[f] / cost if cost > 0 else float("inf"), -cost, c)
-                if single_best is None or key > single_best[0]:
-                    single_best = (key, c, cost, groups)
-                continue
+            if restrict_singles and len(groups) == 2:
+                singles = [g for g in groups if g & (g - 1) == 0 and weight(g) > 0]
+                if singles:
+                    f = max(singles, key=weight)
+                    key = (weight(f) / cost if cost > 0 else float("inf"), -cost, c)
+                    if single_best is None or key > single_best[0]:
+                        single_best = (key, c, cost, groups)
+                    continue
             candidates.append((c, cost, groups))
         if single_best is not None:
             candidates.append(single_best[1:])
@@ -123,20 +156,21 @@ def optimal_minutes(problem: Problem, *, restrict_singles: bool = False,
             if cost >= best:
                 continue
             value = cost
-            for members in groups.values():
-                gw = sum(w[i] for i in members)
+            for g in groups:
+                gw = weight(g)
                 if gw > 0:
-                    value += gw / total * solve(frozenset(members))[0]
+                    owed = left_alone(g.bit_length() - 1, c) if g & (g - 1) == 0 else 0.0
+                    value += gw / total * (solve(g)[0] + owed)
                     if value >= best:
                         break
             if value < best:
                 best, best_c = value, c
         if best_c is None:
-            stuck.append(tuple(sorted(hyps[i] for i in state)))
+            stuck.append(tuple(sorted(hyps[i] for i in range(len(hyps)) if state >> i & 1)))
             return 0.0, None
         return best, best_c
 
-    start = frozenset(range(len(hyps)))
+    start = (1 << len(hyps)) - 1
     value, first = solve(start)
     states = solve.cache_info().currsize
     return Solution(value, first, states, tuple(sorted(set(stuck))), exact=not restrict_singles)

@@ -252,21 +252,42 @@ def reachable_checks(knowledge, symptom: str, family: str) -> list[str]:
     return sorted(n for n in reach if isinstance(knowledge.nodes[n], Check))
 
 
-def check_outcome(check: Check, fault: Fault | None, faulty: Mapping | None, healthy: Mapping) -> str:
-    """The outcome a check gives on the broken set (fault None: the healthy set)."""
+def check_outcome(check: Check, fault: Fault | None, readings: Mapping | None,
+                  healthy: Mapping) -> str:
+    """The outcome a check gives on the broken set (fault None: the healthy set).
+
+    ``readings``: the broken set's readings by expectation name, numbers (classified against
+    the healthy band) or class words; a name it lacks reads normal.
+    """
     from faultwise.expect.classify import classify
 
     if check.is_measurement:
-        if fault is None:
+        value = (readings or {}).get(check.expect) if fault is not None else None
+        if value is None or check.expect not in healthy:
             return "normal"
-        return classify(faulty[check.expect].nominal, healthy[check.expect])
+        return value if isinstance(value, str) else classify(float(value), healthy[check.expect])
     if fault is None:
         return check.normal
     return fault.signature.observations.get(check.id, check.normal)
 
 
-def set_problem(knowledge, demo, symptom: str, fault_ids: Sequence[str], faulty_by: Mapping):
-    """The optimal-order problem of one complaint on one set (weights from the walk's ranking)."""
+def pair_faults(knowledge, demo, symptom: str) -> list[str]:
+    """Every fault the complaint's walk weighs on this set: reachable, naming the complaint in
+    its priors, and applying to the set (family and ``when``)."""
+    from faultwise.graph.applicability import node_applies
+
+    return [f for f in sorted(knowledge.faults_for(symptom, demo.family))
+            if symptom in knowledge.nodes[f].priors
+            and node_applies(knowledge.nodes[f], demo.profile, demo.expectations)]
+
+
+def set_problem(knowledge, demo, symptom: str, fault_ids: Sequence[str], readings_by: Mapping):
+    """The optimal-order problem of one complaint on one set (weights from the walk's ranking).
+
+    ``readings_by``: per fault, its readings (the injected physics for a modelled fault, the
+    signature's for the others). A check confirms a fault when the outcome the fault gives
+    routes straight to it (see :mod:`faultwise.shop.optimal_order`).
+    """
     from faultwise.graph.applicability import applies_predicate
     from faultwise.shop.optimal_order import HEALTHY, Problem
     from faultwise.walk.rank import fault_probabilities
@@ -276,21 +297,30 @@ def set_problem(knowledge, demo, symptom: str, fault_ids: Sequence[str], faulty_
     weights = renormalised(probs, fault_ids)
     applies = applies_predicate(knowledge, demo.profile, demo.expectations)
     minutes, outcomes = {}, {}
+    confirms: dict[str, set] = {f: set() for f in fault_ids}
     for cid in reachable_checks(knowledge, symptom, demo.family):
         check = knowledge.nodes[cid]
         if check.closing or not applies(cid):
             continue
-        row = {f: check_outcome(check, knowledge.nodes[f], faulty_by[f], demo.expectations)
+        row = {f: check_outcome(check, knowledge.nodes[f], readings_by.get(f), demo.expectations)
                for f in fault_ids}
+        for f, outcome in row.items():
+            if check.outcomes.get(outcome) == f:
+                confirms[f].add(cid)
         row[HEALTHY] = check_outcome(check, None, None, demo.expectations)
         minutes[cid] = float(check.minutes)
         outcomes[cid] = row
-    return Problem({**weights, HEALTHY: 0.0}, minutes, outcomes), weights
+    return Problem({**weights, HEALTHY: 0.0}, minutes, outcomes,
+                   {f: frozenset(c) for f, c in confirms.items()}), weights
 
 
 def optimal_rows(knowledge, demos, walks, faulty_by_set) -> list[OptimalRow]:
+    """Per complaint and family: the p/c walk's mean minutes against the bound, over every
+    fault the walk weighs (a fault without a model, or whose model does not fit the set, is
+    walked and judged on its signature, as the plain sweep does)."""
     from faultwise.shop.optimal_order import bound
     from faultwise.shop.sweep import entropy_bits, weighted_mean
+    from faultwise.shop.sweep_walk import synthesise_readings
 
     by_set = {d.name: d for d in demos}
     groups: dict = {}
@@ -299,18 +329,29 @@ def optimal_rows(knowledge, demos, walks, faulty_by_set) -> list[OptimalRow]:
     rows = []
     for (sym, fam), per_set in sorted(groups.items()):
         acc = {"m": [], "o": [], "h": [], "k": [], "f": [], "x": [], "n": 0}
-        for set_name, ws in sorted(per_set.items()):
+        for set_name, injected in sorted(per_set.items()):
             demo = by_set[set_name]
-            ids = sorted({w.fault for w in ws})
-            problem, weights = set_problem(knowledge, demo, sym, ids, faulty_by_set[set_name])
+            physics = faulty_by_set[set_name]
+            ws = {w.fault: w for w in injected}
+            readings_by = {}
+            for f in pair_faults(knowledge, demo, sym):
+                node = knowledge.nodes[f]
+                if f in physics:
+                    readings_by[f] = {n: e.nominal for n, e in physics[f].items()}
+                else:
+                    readings_by[f] = synthesise_readings(node.signature, demo.expectations)
+                if f not in ws:
+                    ws[f] = walk_fault(knowledge, demo, node, sym, readings_by[f])
+            ids = sorted(readings_by)
+            problem, weights = set_problem(knowledge, demo, sym, ids, readings_by)
             sol = bound(problem)
             acc["x"].append(sol.exact)
-            acc["m"].append(weighted_mean({w.fault: w.minutes for w in ws}, weights))
+            acc["m"].append(weighted_mean({f: ws[f].minutes for f in ids}, weights))
             acc["o"].append(sol.minutes)
             acc["h"].append(entropy_bits(weights.values()))
-            acc["k"].append(weighted_mean({w.fault: (w.path[-1][2] if w.path else 0.0)
-                                           for w in ws}, weights))
-            acc["f"].append(sum(1 for w in ws if w.found) / len(ws))
+            acc["k"].append(weighted_mean({f: (ws[f].path[-1][2] if ws[f].path else 0.0)
+                                           for f in ids}, weights))
+            acc["f"].append(sum(1 for w in injected if w.found) / len(injected))
             acc["n"] = max(acc["n"], len(ids))
         mean = lambda xs: sum(xs) / len(xs)
         rows.append(OptimalRow(sym, fam, len(per_set), acc["n"], mean(acc["m"]), mean(acc["o"]),
