@@ -37,6 +37,10 @@ _WHAT = {"plate_v": ("plate", "V"), "screen_v": ("screen", "V"), "cathode_v": ("
          "grid_v": ("control grid", "V"), "cathode_ma": ("cathode current", "mA")}
 
 
+# How a role is written at the start of a title (IF is an abbreviation, not a word).
+_ROLE_WORD = {"if": "IF"}
+
+
 def role_kind(role: str, op: TypicalOperation) -> str:
     """converter | if | triode-audio | pentode-audio | output, from the role and the section."""
     if role in ("converter", "mixer", "oscillator"):
@@ -245,7 +249,8 @@ def _add_stage(ctx: Context, tube: Tube, op: TypicalOperation, op_typical: bool,
         lo, hi, n = sorted((abs(b.low), abs(b.high))) + [abs(b.nominal)]
         what, unit = _WHAT[field]
         zero_ok = field in ("grid_v",) or (field == "cathode_v" and not circuit.cathode_ohm)
-        ctx.add(f"stage.{tube.role}.{field}", f"{tube.role.capitalize()} tube {what} ({tube.type})",
+        role = _ROLE_WORD.get(tube.role, tube.role.capitalize())
+        ctx.add(f"stage.{tube.role}.{field}", f"{role} tube {what} ({tube.type})",
                 stage_name, n, lo, hi, unit, f"{head}; {tails[field]}; {band}", keys=keys,
                 absent=0.0 if zero_ok and n < 1e-9 else None,
                 typical=typical or ctx.typical(*keys))
