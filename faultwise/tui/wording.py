@@ -68,3 +68,9 @@ def caution_title(knowledge, caution_id) -> str:
     cautions = getattr(knowledge, "cautions", None) or {}
     caution = cautions.get(caution_id) if caution_id else None
     return getattr(caution, "title", None) or str(caution_id or "")
+
+
+def internal_error(exc: BaseException) -> str:
+    """The sentence shown for an unexpected exception (never a traceback)."""
+    return (f"Internal error ({type(exc).__name__}: {exc}). Nothing saved was lost; the step "
+            "was not recorded. Please report it.")

@@ -14,6 +14,11 @@ until N steps (default 20) are timed. Two clocks:
   driver writes nothing, so the terminal text of each frame is built here as a real
   terminal would get it (that cost is counted). Textual has no public "frame painted"
   hook, so the app's ``_display`` is wrapped on this instance (the one private name here).
+Between steps the bench waits :data:`READ_S` seconds, outside the timing, as a technician
+reads the next check or holds the probe: the app runs its full garbage collections in such
+pauses (:mod:`faultwise.tui.collector`). Every full collection is recorded; the output says
+how many ran and how many fell inside a timed step.
+
 - **pilot press + pause**: ``pilot.press`` then ``pilot.pause`` until the app is idle, as
   the pilot tests wait. It includes the work after the frame (the footer, the history's
   column widths) and Textual's idle polling: each ``wait_for_idle`` sleeps in 20 ms slices
@@ -27,6 +32,7 @@ until N steps (default 20) are timed. Two clocks:
 from __future__ import annotations
 
 import asyncio
+import gc
 import json
 import statistics
 import sys
@@ -34,6 +40,8 @@ import tempfile
 import time
 from dataclasses import dataclass, field
 from pathlib import Path
+
+READ_S = 1.5           # the technician reads the next check; not timed
 
 # (set search, complaint): walks with many checks on the bundled knowledge; cycled.
 WALKS = (("5 tube", "hums"), ("transformer", "dead"), ("portable", "weak"),
@@ -120,6 +128,13 @@ class Timings:
     pilot: list[float] = field(default_factory=list)     # pilot press + pause
     idle: list[float] = field(default_factory=list)      # the same for an unbound key
     cautions: int = 0                                    # steps that ended on a caution
+    steps: list[tuple[float, float]] = field(default_factory=list)   # (start, end) of each
+    full_gc: list[tuple[float, float]] = field(default_factory=list)  # full collections
+
+    def full_gc_in_steps(self) -> int:
+        """Full collections that overlapped a timed step."""
+        return sum(1 for g0, g1 in self.full_gc
+                   if any(g0 < s1 and s0 < g1 for s0, s1 in self.steps))
 
 
 async def measure(n: int, workspace) -> Timings:
@@ -128,57 +143,77 @@ async def measure(n: int, workspace) -> Timings:
 
     app = build_app(workspace, settings=Settings(None, safety_acknowledged="2026-01-01T00:00"))
     out = Timings()
-    async with app.run_test(size=(120, 40)) as pilot:
-        clock = FrameClock(app)
-        walk_no = 0
-        while len(out.shown) < n and walk_no < 4 * len(WALKS):
-            search, complaint = WALKS[walk_no % len(WALKS)]
-            walk_no += 1
-            if not await _new_case(pilot, search, complaint):
-                await pilot.press("escape")
-                continue
-            while len(out.shown) < n and app.screen.id == "walk":
-                screen = app.screen
-                walk = clock.walk = screen.walk
-                prompt = walk.prompt()
-                if prompt is None or prompt.kind != "check":
-                    break
-                keys = _answer_keys(prompt)
-                if len(keys) > 1:
-                    await pilot.press(*keys[:-1])          # typing is not the step
-                    await pilot.pause()
-                t0 = time.perf_counter()
-                await pilot.press("f19")                    # bound to nothing: the harness
-                await pilot.pause()
-                out.idle.append(time.perf_counter() - t0)
-                before = len(walk.events)
-                clock.frames.clear()
-                t0 = time.perf_counter()
-                await pilot.press(keys[-1])
-                await pilot.pause()                         # handled, refreshed, idle
-                elapsed = time.perf_counter() - t0
-                if len(walk.events) == before:
-                    break                                   # refused: not a step
-                saved = json.loads(screen.case.path.read_text(encoding="utf-8"))
-                assert len(saved["events"]) == len(walk.events), "case not saved"
-                nxt = walk.prompt()
-                if app.screen is screen and nxt is not None and nxt.node is not None:
-                    shown = str(screen.query_one("#check-title").render())
-                    assert nxt.node.title in shown or nxt.kind != "check", shown
-                at = clock.shown_at(t0, before, app.screen)
-                assert at is not None, f"no frame of {app.screen.id} after the answer"
-                out.shown.append(at)
-                out.pilot.append(elapsed)
-                out.cautions += app.screen.id == "caution"
-                await _acknowledge(pilot)
-            # leave the case (it stays open on disk) and start the next walk
-            clock.walk = None
-            while app.screen.id not in ("start",) and len(app.screen_stack) > 1:
-                await pilot.press("escape")
-                await _settle(pilot)
-                if app.screen.id in ("walk", "conclusion"):
-                    break
+    started: list[float] = []
+
+    def full_collection(phase: str, info: dict) -> None:
+        if info["generation"] == 2:
+            if phase == "start":
+                started.append(time.perf_counter())
+            elif started:
+                out.full_gc.append((started.pop(), time.perf_counter()))
+
+    gc.callbacks.append(full_collection)
+    try:
+        async with app.run_test(size=(120, 40)) as pilot:
+            await _steps(app, pilot, n, out)
+    finally:
+        gc.callbacks.remove(full_collection)
     return out
+
+
+async def _steps(app, pilot, n: int, out: Timings) -> None:
+    """New walks one after another until ``n`` steps are timed."""
+    clock = FrameClock(app)
+    walk_no = 0
+    while len(out.shown) < n and walk_no < 4 * len(WALKS):
+        search, complaint = WALKS[walk_no % len(WALKS)]
+        walk_no += 1
+        if not await _new_case(pilot, search, complaint):
+            await pilot.press("escape")
+            continue
+        while len(out.shown) < n and app.screen.id == "walk":
+            screen = app.screen
+            walk = clock.walk = screen.walk
+            prompt = walk.prompt()
+            if prompt is None or prompt.kind != "check":
+                break
+            keys = _answer_keys(prompt)
+            if len(keys) > 1:
+                await pilot.press(*keys[:-1])          # typing is not the step
+                await pilot.pause()
+            t0 = time.perf_counter()
+            await pilot.press("f19")                    # bound to nothing: the harness
+            await pilot.pause()
+            out.idle.append(time.perf_counter() - t0)
+            before = len(walk.events)
+            clock.frames.clear()
+            t0 = time.perf_counter()
+            await pilot.press(keys[-1])
+            await pilot.pause()                         # handled, refreshed, idle
+            elapsed = time.perf_counter() - t0
+            if len(walk.events) == before:
+                break                                   # refused: not a step
+            saved = json.loads(screen.case.path.read_text(encoding="utf-8"))
+            assert len(saved["events"]) == len(walk.events), "case not saved"
+            nxt = walk.prompt()
+            if app.screen is screen and nxt is not None and nxt.node is not None:
+                shown = str(screen.query_one("#check-title").render())
+                assert nxt.node.title in shown or nxt.kind != "check", shown
+            at = clock.shown_at(t0, before, app.screen)
+            assert at is not None, f"no frame of {app.screen.id} after the answer"
+            out.shown.append(at)
+            out.pilot.append(elapsed)
+            out.steps.append((t0, t0 + elapsed))
+            out.cautions += app.screen.id == "caution"
+            await _acknowledge(pilot)
+            await pilot.pause(READ_S)                   # reading the next check
+        # leave the case (it stays open on disk) and start the next walk
+        clock.walk = None
+        while app.screen.id not in ("start",) and len(app.screen_stack) > 1:
+            await pilot.press("escape")
+            await _settle(pilot)
+            if app.screen.id in ("walk", "conclusion"):
+                break
 
 
 def _ms(seconds: list[float]) -> tuple[float, float, float]:
@@ -212,6 +247,8 @@ def main(n: int) -> None:
     print(f"pilot press+pause of an unbound key (harness floor): median {floor:.1f} ms")
     print(f"pilot step minus the floor: median {pm - floor:.1f} ms, "
           f"95th percentile {pp - floor:.1f} ms")
+    print(f"full garbage collections: {len(out.full_gc)}, inside a timed step: "
+          f"{out.full_gc_in_steps()}")
 
 
 if __name__ == "__main__":

@@ -21,7 +21,7 @@ from textual.widgets.option_list import Option
 
 from faultwise.tui.context import Bench
 from faultwise.tui.widgets.bench_input import BenchInput
-from faultwise.tui.wording import printable
+from faultwise.tui.wording import internal_error, printable
 
 
 @dataclass(frozen=True)
@@ -331,10 +331,6 @@ class NewCaseScreen(Screen):
             self._error(str(exc))
             return
         except Exception as exc:  # never a traceback on the bench screen
-            from faultwise.tui.screens.case_screen import internal_error
-
             self._error(internal_error(exc))
             return
-        from faultwise.tui.screens.walk import WalkScreen
-
-        self.app.switch_screen(WalkScreen(self.bench, case, walk))
+        self.app.switch_screen(self.app.case_screen("walk", case, walk))

@@ -276,15 +276,15 @@ class StartScreen(Screen):
     def resume(self, case_id: str) -> None:
         """Open the case for writing (takes the lock) and continue its walk."""
         from faultwise.core.errors import FaultwiseError
-        from faultwise.tui.screens.walk import WalkScreen, open_walk
 
         try:
-            case, walk = open_walk(self.bench, case_id)
+            case, walk = self.bench.open_walk(case_id)
         except FaultwiseError as exc:
             self.notify(str(exc), severity="error", markup=False, timeout=8)
             self.refresh_cases()
             return
-        self.app.push_screen(WalkScreen(self.bench, case, walk))
+        # the walk screen moves on to the conclusion by itself when the case is that far
+        self.app.push_screen(self.app.case_screen("walk", case, walk))
 
     def on_screen_resume(self) -> None:
         self.refresh_cases()

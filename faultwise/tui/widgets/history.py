@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from typing import Iterable, Mapping
 
+from rich.text import Text
 from textual.widgets import DataTable
 
 from faultwise.tui.wording import node_title, printable
@@ -65,7 +66,11 @@ def event_rows(events, steps, knowledge=None) -> list[tuple[str, tuple[str, str,
 
 
 class History(DataTable):
-    """Read-only table of the case's events; ``show(events, steps, knowledge)`` refills it."""
+    """Read-only table of the case's events; ``show(events, steps, knowledge)`` refills it.
+
+    A step adds rows at the end: only those are added (an undo, which takes rows away,
+    refills the table).
+    """
 
     DEFAULT_CSS = """
     History { height: 1fr; overflow-x: hidden; }
@@ -73,6 +78,7 @@ class History(DataTable):
 
     def __init__(self, *, id: str | None = None) -> None:
         super().__init__(id=id, cursor_type="row", zebra_stripes=True, show_cursor=False)
+        self._rows: list[tuple[str, tuple[str, str, str, str]]] = []    # as shown
 
     def on_mount(self) -> None:
         self.add_column("#", key="n", width=3)
@@ -80,16 +86,22 @@ class History(DataTable):
         self.add_column("Input", key="reading", width=12)
         self.add_column("Step", key="what")
 
-    def show(self, events, steps, knowledge=None) -> None:
-        from rich.text import Text
-
-        self.clear()
-        for key, (number, result, reading, what) in event_rows(events, steps, knowledge):
+    def show(self, events: Iterable[Mapping], steps: Iterable, knowledge: object = None
+             ) -> None:
+        rows = event_rows(events, steps, knowledge)
+        if rows == self._rows:
+            return
+        kept = len(self._rows)
+        if rows[:kept] != self._rows:
+            self.clear()
+            kept = 0
+        for key, (number, result, reading, what) in rows[kept:]:
             if not number:
                 style = "italic"
             else:
                 style = "bold" if result.startswith("!") else ""
             self.add_row(Text(number, justify="right"), Text(printable(result), style=style),
                          Text(printable(reading)), Text(printable(what)), key=key)
+        self._rows = rows
         if self.row_count:
             self.move_cursor(row=self.row_count - 1)
