@@ -19,11 +19,16 @@ import argparse
 import json
 import sys
 from pathlib import Path
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from faultwise.core.errors import MissingAnswerError
+    from faultwise.walk.results import Step
 
 ANSWER_KEYS = ("readings", "observations")
 
 
-def register(subparsers) -> None:
+def register(subparsers: argparse._SubParsersAction) -> None:
     from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser("walk", help="walk the graph with answers from a file",
@@ -109,14 +114,14 @@ def load_answers(path, knowledge, expectations) -> tuple[dict, dict]:
     return readings, observations
 
 
-def _step_json(step) -> dict:
+def _step_json(step: Step) -> dict:
     return {"n": step.n, "node": step.node, "title": step.title, "expect": step.expect,
             "raw": step.raw, "value": step.value, "outcome": step.outcome,
             "band": dict(step.band) if step.band else None, "minutes": step.minutes,
             "assumed": step.assumed}
 
 
-def _missing_json(exc) -> dict:
+def _missing_json(exc: MissingAnswerError) -> dict:
     return {"node": exc.node, "title": exc.title, "section": exc.section, "key": exc.key,
             "accepts": list(exc.accepts), "message": str(exc)}
 

@@ -8,6 +8,7 @@ highlighted entry and moves on; F10 starts the walk.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 from pathlib import Path
 
 from textual import on, work
@@ -22,6 +23,9 @@ from textual.widgets.option_list import Option
 from faultwise.tui.context import Bench
 from faultwise.tui.widgets.bench_input import BenchInput
 from faultwise.tui.wording import internal_error, printable
+
+if TYPE_CHECKING:
+    from faultwise.profile.model import Profile
 
 
 @dataclass(frozen=True)
@@ -286,7 +290,7 @@ class NewCaseScreen(Screen):
     def action_template(self) -> None:
         from faultwise.tui.screens.template_form import TemplateFormScreen
 
-        def done(result) -> None:
+        def done(result: tuple[Profile, dict] | None) -> None:
             if result is None:
                 return
             profile, _data = result

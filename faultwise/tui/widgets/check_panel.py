@@ -18,6 +18,7 @@ from textual.widgets import Input, Static
 
 from faultwise.core.units import format_reading
 from faultwise.expect.context import Expected
+from faultwise.graph.knowledge import Knowledge
 from faultwise.tui.meter_state import meter_hint
 from faultwise.tui.widgets.bench_input import BenchInput, choices_hint
 from faultwise.tui.widgets.in_place import set_text
@@ -115,7 +116,7 @@ class CheckPanel(Vertical):
         """The answer field."""
         return self._input
 
-    def show(self, prompt: Prompt, knowledge: object = None) -> None:
+    def show(self, prompt: Prompt, knowledge: Knowledge | None = None) -> None:
         """Display a check prompt (kind 'check') and clear the field and the error;
         ``knowledge`` puts node titles in place of ids in the warning. Only the lines that
         differ from the check shown before are redrawn."""

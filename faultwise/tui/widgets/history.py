@@ -7,7 +7,8 @@ word in the result column, in italics.
 
 from __future__ import annotations
 
-from typing import Iterable, Mapping
+from collections.abc import Iterable, Mapping
+from typing import TYPE_CHECKING
 
 from rich.style import Style
 from rich.text import Text
@@ -16,6 +17,10 @@ from textual.scroll_view import ScrollView
 from textual.strip import Strip
 
 from faultwise.tui.wording import node_title, printable
+
+if TYPE_CHECKING:
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.walk.results import Step
 
 MARKS = {True: "✓", False: "!"}
 CHECK_EVENTS = ("answer", "skip")
@@ -30,7 +35,8 @@ def check_numbers(events: Iterable[Mapping]) -> dict[int, int]:
     return numbers
 
 
-def event_rows(events, steps, knowledge=None) -> list[tuple[str, tuple[str, str, str, str]]]:
+def event_rows(events: Iterable[Mapping], steps: Iterable[Step], knowledge: Knowledge | None = None
+               ) -> list[tuple[str, tuple[str, str, str, str]]]:
     """(row key, (step number, result, reading, what)) for each event worth showing, oldest
     first; the key is the event's n, the step number is empty for non-check events."""
     by_n = {s.n: s for s in steps}
@@ -120,8 +126,8 @@ class History(ScrollView, can_focus=True):
         """The cells of the row for event ``key``."""
         return self.rows[key]
 
-    def show(self, events: Iterable[Mapping], steps: Iterable, knowledge: object = None
-             ) -> None:
+    def show(self, events: Iterable[Mapping], steps: Iterable[Step],
+             knowledge: Knowledge | None = None) -> None:
         """Show the rows for ``events``: the new ones are added at the end (an undo, which
         takes rows away, refills the table) and the newest is scrolled into view."""
         rows = event_rows(events, steps, knowledge)
