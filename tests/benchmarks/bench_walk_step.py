@@ -3,9 +3,13 @@
 A Textual pilot (headless) runs the bench app on the bundled knowledge and the demo sets, in
 a throwaway cases folder. Each timed step starts at the key that gives the answer (Enter
 after a typed reading, or a choice's number). In between, the walk moves and the case file
-is replaced atomically (fsync of the temp and of the folder, :mod:`faultwise.core.atomic`).
-Caution notices are acknowledged outside the timing. Walks are started one after another
-until N steps (default 20) are timed. Two clocks:
+is replaced atomically (fsync of the temp and of the folder, :mod:`faultwise.core.atomic`);
+the bench reads the file back after each step. Caution notices are acknowledged outside the
+timing. Walks are started one after another until N steps (default 20) are timed. Between
+steps the bench waits :data:`READ_S` seconds, outside the timing, as a technician reads the
+next check or holds the probe: the app runs its full garbage collections in such pauses
+(:mod:`faultwise.tui.collector`); every full collection is recorded, and the output says how
+many ran and how many fell inside a timed step. Two clocks:
 
 - **key to screen** (the figure with the target, under 50 ms at the 95th percentile): from
   the key to the first frame the app paints after the answer is recorded, on the screen
@@ -14,14 +18,10 @@ until N steps (default 20) are timed. Two clocks:
   driver writes nothing, so the terminal text of each frame is built here as a real
   terminal would get it (that cost is counted). Textual has no public "frame painted"
   hook, so the app's ``_display`` is wrapped on this instance (the one private name here).
-Between steps the bench waits :data:`READ_S` seconds, outside the timing, as a technician
-reads the next check or holds the probe: the app runs its full garbage collections in such
-pauses (:mod:`faultwise.tui.collector`). Every full collection is recorded; the output says
-how many ran and how many fell inside a timed step.
-
+  The five slowest steps are listed with what came next.
 - **pilot press + pause**: ``pilot.press`` then ``pilot.pause`` until the app is idle, as
-  the pilot tests wait. It includes the work after the frame (the footer, the history's
-  column widths) and Textual's idle polling: each ``wait_for_idle`` sleeps in 20 ms slices
+  the pilot tests wait. It includes the work after the frame (the key bar, a dialog's
+  later frames) and Textual's idle polling: each ``wait_for_idle`` sleeps in 20 ms slices
   until a slice passes with under 1 ms of CPU, and a press plus a pause runs three of them,
   so even a key bound to nothing costs at least 60 ms (printed as the harness floor; the
   step minus that floor is printed too).
@@ -128,6 +128,7 @@ class Timings:
     pilot: list[float] = field(default_factory=list)     # pilot press + pause
     idle: list[float] = field(default_factory=list)      # the same for an unbound key
     cautions: int = 0                                    # steps that ended on a caution
+    ended_on: list[str] = field(default_factory=list)    # the screen each step ended on
     steps: list[tuple[float, float]] = field(default_factory=list)   # (start, end) of each
     full_gc: list[tuple[float, float]] = field(default_factory=list)  # full collections
 
@@ -205,6 +206,7 @@ async def _steps(app, pilot, n: int, out: Timings) -> None:
             out.pilot.append(elapsed)
             out.steps.append((t0, t0 + elapsed))
             out.cautions += app.screen.id == "caution"
+            out.ended_on.append(app.screen.id or "?")
             await _acknowledge(pilot)
             await pilot.pause(READ_S)                   # reading the next check
         # leave the case (it stays open on disk) and start the next walk
@@ -240,6 +242,9 @@ def main(n: int) -> None:
     print(f"median: {median:.1f} ms")
     print(f"95th percentile: {p95:.1f} ms (target < 50 ms)")
     print(f"slowest: {slowest:.1f} ms")
+    worst = sorted(zip(out.shown, out.ended_on), reverse=True)[:5]
+    print("slowest steps (what came next): " + ", ".join(f"{t * 1000:.1f} ms ({what})"
+                                                        for t, what in worst))
     pm, pp, ps = _ms(out.pilot)
     floor = statistics.median(out.idle) * 1000
     print(f"pilot press+pause until idle: median {pm:.1f} ms, 95th percentile {pp:.1f} ms, "
