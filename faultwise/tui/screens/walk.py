@@ -105,7 +105,9 @@ class WalkScreen(MeterKeys, CaseScreen):
         self.query_one("#guidance").display = self.guidance_open
         self.show_prompt()
         # The first answer ranks the suspects; the family's graph it needs is built once per
-        # run (about 0.1 s): build it now, beside the first check, not after the key press.
+        # run (about 0.1 s with the networkx import): build it now, beside the first check,
+        # not after the key press. The knowledge caches each graph by one assignment of the
+        # finished object, so the walk reading it meanwhile at worst builds it a second time.
         walk = self.walk
         self.run_worker(lambda: fault_probabilities(walk.knowledge, walk.symptom, walk.family),
                         thread=True, exit_on_error=False, group="warm-up", name="warm-up")
