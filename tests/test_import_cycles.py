@@ -65,21 +65,10 @@ def _describe(cycles: list[dict]) -> str:
     return "\n".join(lines)
 
 
-# The one circle still open (issue "The house"): the bench screens and the meter keys reach
-# each other through function-body imports. It is listed exactly, so a new circle, a module
-# joining this one, or this one closing all fail the test (the last: delete this entry).
-KNOWN_OPEN = [["faultwise.tui.meter_keys", "faultwise.tui.screens.case_screen",
-               "faultwise.tui.screens.conclusion", "faultwise.tui.screens.readings",
-               "faultwise.tui.screens.walk", "faultwise.tui.widgets.check_panel"]]
-
-
 def test_no_module_imports_itself_through_others():
     found = _cycles(ROOT)
     assert found["modules"] > 100          # the whole package was read, not a stub of it
-    new = [c for c in found["cycles"] if c["modules"] not in KNOWN_OPEN]
-    assert not new, _describe(new)
-    still = [c["modules"] for c in found["cycles"]]
-    assert still == KNOWN_OPEN, "a listed circle is closed: remove it from KNOWN_OPEN"
+    assert not found["cycles"], _describe(found["cycles"])
 
 
 def test_a_deliberate_circle_is_found(tmp_path):

@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+import argparse
 
-def register(sub) -> None:
+
+def register(sub: argparse._SubParsersAction) -> None:
     from faultwise.commands import add_workspace_options
 
     p = sub.add_parser("demo", help="generate the invented demo cases (seeded)",
@@ -16,7 +18,7 @@ def register(sub) -> None:
     p.set_defaults(func=run)
 
 
-def run(args) -> int:
+def run(args: argparse.Namespace) -> int:
     from faultwise.shop.demo import generate
     from faultwise.core.workspace import workspace_from_args
 

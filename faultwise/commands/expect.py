@@ -6,13 +6,20 @@ from __future__ import annotations
 
 import argparse
 import json
+from collections.abc import Mapping
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from faultwise.expect.context import Expected
+    from faultwise.profile.model import Profile
+    from faultwise.profile.tubes import TubeTable
 
 TYPICAL_MARK = "*"
 LEGEND = (f"{TYPICAL_MARK} rests on a typical value the profile did not give (or on a trade range): "
           "confirm it on the set where you can.")
 
 
-def register(subparsers) -> None:
+def register(subparsers: argparse._SubParsersAction) -> None:
     from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser("expect", help="expected readings for a set profile",
@@ -58,7 +65,8 @@ def run(args: argparse.Namespace) -> int:
     return 0
 
 
-def _chart(args, profile, expectations, table) -> int:
+def _chart(args: argparse.Namespace, profile: Profile, expectations: Mapping[str, Expected],
+           table: TubeTable | None) -> int:
     from pathlib import Path
 
     from faultwise.expect.chart import chart_rows, render_chart
@@ -79,14 +87,15 @@ def _chart(args, profile, expectations, table) -> int:
     return 0
 
 
-def _json_entry(e) -> dict:
+def _json_entry(e: Expected) -> dict:
     """The contract keys first, then title, stage and absent_below."""
     out = e.to_json()
     out.update({"title": e.title, "stage": e.stage, "absent_below": e.absent_below})
     return out
 
 
-def render_table(profile, expectations: dict, width: int | None = None) -> list[str]:
+def render_table(profile: Profile, expectations: Mapping[str, Expected],
+                 width: int | None = None) -> list[str]:
     """Plain-text table grouped by stage: name, nominal, band, unit, marker; basis beneath."""
     import shutil
     import textwrap

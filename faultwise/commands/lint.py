@@ -7,7 +7,7 @@ import json
 import sys
 
 
-def register(subparsers) -> None:
+def register(subparsers: argparse._SubParsersAction) -> None:
     from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser("lint", help="validate the knowledge; exit 1 with located errors",

@@ -8,7 +8,7 @@ import json
 SHOWN = 5   # lines in the plain-text output; --json lists every symptom
 
 
-def register(subparsers) -> None:
+def register(subparsers: argparse._SubParsersAction) -> None:
     from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser("match", help="rank symptom ids for a free-text complaint",

@@ -14,9 +14,13 @@ import argparse
 import json
 import sys
 import time
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from faultwise.meter.base import Quantity, Sample
 
 
-def register(subparsers) -> None:
+def register(subparsers: argparse._SubParsersAction) -> None:
     from faultwise.meter.base import QUANTITIES
 
     p = subparsers.add_parser("meter", help="show what the bench meter reads",
@@ -34,7 +38,7 @@ def register(subparsers) -> None:
     p.set_defaults(func=run)
 
 
-def sample_line(n: int, sample) -> str:
+def sample_line(n: int, sample: Sample) -> str:
     """'  1  146.2 V DC   Demo DMM-45 SIM0001   2026-12-02T06:10:02+00:00'."""
     from faultwise.core.safe_text import one_line
 
@@ -81,7 +85,7 @@ def run(args: argparse.Namespace) -> int:
     return 0
 
 
-def _check_dial(sample, quantity) -> None:
+def _check_dial(sample: Sample, quantity: Quantity) -> None:
     """A meter whose function is set on its dial (sigrok) must read what --quantity asks."""
     from faultwise.meter import MeterRefused
 

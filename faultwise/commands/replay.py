@@ -7,7 +7,7 @@ import json
 from pathlib import Path
 
 
-def register(subparsers) -> None:
+def register(subparsers: argparse._SubParsersAction) -> None:
     from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser("replay", help="re-walk cases against the current knowledge",

@@ -11,7 +11,7 @@ import argparse
 import sys
 
 
-def register(subparsers) -> None:
+def register(subparsers: argparse._SubParsersAction) -> None:
     from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser(

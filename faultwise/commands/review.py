@@ -5,9 +5,17 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from pathlib import Path
+    
+    from faultwise.core.workspace import Workspace
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.shop.learn import Learning, PairChange
 
 
-def register(subparsers) -> None:
+def register(subparsers: argparse._SubParsersAction) -> None:
     from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser(
@@ -36,7 +44,8 @@ def register(subparsers) -> None:
     p.set_defaults(func=run)
 
 
-def _learn_dict(learning, changes, path, dry_run: bool) -> dict:
+def _learn_dict(learning: Learning, changes: list[PairChange], path: Path, dry_run: bool
+                ) -> dict:
     return {
         "file": str(path), "written": not dry_run, "cases": learning.cases,
         "counts": learning.counts,
@@ -50,7 +59,8 @@ def _learn_dict(learning, changes, path, dry_run: bool) -> dict:
     }
 
 
-def _learn_text(learning, changes, path, dry_run: bool) -> str:
+def _learn_text(learning: Learning, changes: list[PairChange], path: Path, dry_run: bool
+                ) -> str:
     verb = "would write" if dry_run else "wrote"
     lines = ["", f"Learned counts: {verb} {learning.cases} case(s) to {path}"]
     for c in changes:
@@ -68,7 +78,7 @@ def _learn_text(learning, changes, path, dry_run: bool) -> str:
     return "\n".join(lines) + "\n"
 
 
-def _with_inject(page: str, ws, knowledge) -> str:
+def _with_inject(page: str, ws: Workspace, knowledge: Knowledge) -> str:
     """The review page with the injected sweep's tables before its safety section."""
     from faultwise.commands.sweep import _sets_dir, _tube_table
     from faultwise.shop.sweep import load_demo_sets

@@ -5,9 +5,18 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from pathlib import Path
+    
+    from faultwise.core.workspace import Workspace
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.profile.tubes import TubeTable
+    from faultwise.shop.sweep import DemoSet
 
 
-def register(subparsers) -> None:
+def register(subparsers: argparse._SubParsersAction) -> None:
     from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser(
@@ -38,7 +47,7 @@ def register(subparsers) -> None:
     p.set_defaults(func=run)
 
 
-def _sets_dir(ws, given):
+def _sets_dir(ws: Workspace, given: str | None) -> Path:
     from pathlib import Path
 
     from faultwise.core.errors import FaultwiseError
@@ -90,7 +99,8 @@ def run(args: argparse.Namespace) -> int:
     return 0
 
 
-def run_inject_command(args, ws, knowledge, sets) -> int:
+def run_inject_command(args: argparse.Namespace, ws: Workspace, knowledge: Knowledge,
+                       sets: dict[str, list[DemoSet]]) -> int:
     """``sweep --inject``: the injected sweep and the optimal-order bound."""
     from faultwise.core.errors import FaultwiseError
     from faultwise.shop.sweep_inject import SEED, run_inject
@@ -118,7 +128,7 @@ def run_inject_command(args, ws, knowledge, sets) -> int:
     return 0
 
 
-def _tube_table(ws):
+def _tube_table(ws: Workspace) -> TubeTable | None:
     from faultwise.profile.tubes import workspace_tube_table
 
     return workspace_tube_table(ws.knowledge_dir)

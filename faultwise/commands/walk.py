@@ -19,9 +19,14 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from faultwise.core.errors import MissingAnswerError
+    from faultwise.walk.results import Step
 
 
-def register(subparsers) -> None:
+def register(subparsers: argparse._SubParsersAction) -> None:
     from faultwise.commands import add_workspace_options
 
     p = subparsers.add_parser("walk", help="walk the graph with answers from a file",
@@ -39,14 +44,14 @@ def register(subparsers) -> None:
     p.set_defaults(func=run)
 
 
-def _step_json(step) -> dict:
+def _step_json(step: Step) -> dict:
     return {"n": step.n, "node": step.node, "title": step.title, "expect": step.expect,
             "raw": step.raw, "value": step.value, "outcome": step.outcome,
             "band": dict(step.band) if step.band else None, "minutes": step.minutes,
             "assumed": step.assumed}
 
 
-def _missing_json(exc) -> dict:
+def _missing_json(exc: MissingAnswerError) -> dict:
     return {"node": exc.node, "title": exc.title, "section": exc.section, "key": exc.key,
             "accepts": list(exc.accepts), "message": str(exc)}
 

@@ -33,7 +33,15 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 
 from faultwise.core.errors import FaultwiseError
+from typing import TYPE_CHECKING, Any
+
 from faultwise.graph.nodes import Check, Fault
+
+if TYPE_CHECKING:
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.shop.optimal_order import Problem
+    from faultwise.shop.sweep_results import DemoSet
+    from faultwise.walk.scripted import WalkResult
 
 SEED = 1962
 
@@ -134,19 +142,20 @@ class InjectReport:
 
 # ------------------------------------------------------------------------------- walking
 
-def _walk(knowledge, demo, symptom, readings, observations):
+def _walk(knowledge: Knowledge, demo: DemoSet, symptom: str, readings: Mapping,
+          observations: Mapping) -> WalkResult:
     from faultwise.walk.scripted import auto_walk
 
     return auto_walk(knowledge, demo.profile, symptom, readings, observations,
                      expectations=demo.expectations)
 
 
-def _diag_path(result) -> tuple:
+def _diag_path(result: WalkResult) -> tuple:
     return tuple((s.node, s.outcome, s.minutes) for s in result.steps
                  if s.phase == "diagnose" and s.outcome != "skipped")
 
 
-def walk_fault(knowledge, demo, fault: Fault, symptom: str, readings: Mapping) -> InjectWalk:
+def walk_fault(knowledge: Knowledge, demo: DemoSet, fault: Fault, symptom: str, readings: Mapping) -> InjectWalk:
     try:
         r = _walk(knowledge, demo, symptom, readings, dict(fault.signature.observations))
     except FaultwiseError as exc:
@@ -162,18 +171,19 @@ def band_readings(faulty: Mapping, rng: random.Random) -> dict[str, float]:
     return {n: rng.uniform(faulty[n].low, faulty[n].high) for n in sorted(faulty)}
 
 
-def complaints(knowledge, family: str) -> list[str]:
+def complaints(knowledge: Knowledge, family: str) -> list[str]:
     return sorted(s.id for s in knowledge.symptoms.values()
                   if family in s.families and family in s.entry)
 
 
-def modelled_faults(knowledge) -> list[Fault]:
+def modelled_faults(knowledge: Knowledge) -> list[Fault]:
     return [n for n in knowledge.nodes.values() if isinstance(n, Fault) and n.model]
 
 
 # ------------------------------------------------------------------------------ sweeping
 
-def run_inject(knowledge, sets: Mapping[str, Sequence], *, seed: int = SEED, tube_table=None,
+def run_inject(knowledge: Knowledge, sets: Mapping[str, Sequence], *, seed: int = SEED,
+               tube_table: Any = None,
                band_pass: bool = True, optimal: bool = True,
                known: Mapping | None = None) -> InjectReport:
     """Inject, walk and bound (see the module doc)."""
@@ -229,7 +239,7 @@ def run_inject(knowledge, sets: Mapping[str, Sequence], *, seed: int = SEED, tub
                         dict(known or {}))
 
 
-def _healthy_walk(knowledge, demo, sym: str) -> HealthyWalk:
+def _healthy_walk(knowledge: Knowledge, demo: DemoSet, sym: str) -> HealthyWalk:
     readings = {n: e.nominal for n, e in demo.expectations.items()}
     try:
         r = _walk(knowledge, demo, sym, readings, {})
@@ -241,7 +251,7 @@ def _healthy_walk(knowledge, demo, sym: str) -> HealthyWalk:
 
 # --------------------------------------------------------------------------- the bound
 
-def reachable_checks(knowledge, symptom: str, family: str) -> list[str]:
+def reachable_checks(knowledge: Knowledge, symptom: str, family: str) -> list[str]:
     import networkx as nx
 
     entry = knowledge.entry(symptom, family)
@@ -271,7 +281,7 @@ def check_outcome(check: Check, fault: Fault | None, readings: Mapping | None,
     return fault.signature.observations.get(check.id, check.normal)
 
 
-def pair_faults(knowledge, demo, symptom: str) -> list[str]:
+def pair_faults(knowledge: Knowledge, demo: DemoSet, symptom: str) -> list[str]:
     """Every fault the complaint's walk weighs on this set: reachable, naming the complaint in
     its priors, and applying to the set (family and ``when``)."""
     from faultwise.graph.applicability import node_applies
@@ -281,7 +291,7 @@ def pair_faults(knowledge, demo, symptom: str) -> list[str]:
             and node_applies(knowledge.nodes[f], demo.profile, demo.expectations)]
 
 
-def set_problem(knowledge, demo, symptom: str, fault_ids: Sequence[str], readings_by: Mapping):
+def set_problem(knowledge: Knowledge, demo: DemoSet, symptom: str, fault_ids: Sequence[str], readings_by: Mapping) -> tuple[Problem, dict]:
     """The optimal-order problem of one complaint on one set (weights from the walk's ranking).
 
     ``readings_by``: per fault, its readings (the injected physics for a modelled fault, the
@@ -314,7 +324,8 @@ def set_problem(knowledge, demo, symptom: str, fault_ids: Sequence[str], reading
                    {f: frozenset(c) for f, c in confirms.items()}), weights
 
 
-def optimal_rows(knowledge, demos, walks, faulty_by_set) -> list[OptimalRow]:
+def optimal_rows(knowledge: Knowledge, demos: Sequence[DemoSet], walks: Sequence[InjectWalk],
+                 faulty_by_set: Mapping) -> list[OptimalRow]:
     """Per complaint and family: the p/c walk's mean minutes against the bound, over every
     fault the walk weighs (a fault without a model, or whose model does not fit the set, is
     walked and judged on its signature, as the plain sweep does)."""

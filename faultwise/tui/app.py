@@ -7,18 +7,24 @@ holds domain logic.
 
 from __future__ import annotations
 
-from typing import Callable, Iterable
+from typing import TYPE_CHECKING, Callable, Iterable
 
+from textual import events
 from textual.app import App, SystemCommand
 from textual.binding import Binding
 from textual.screen import Screen
 from textual.theme import Theme
 from textual.worker import Worker, WorkerState
 
+from faultwise.tui.collector import IDLE_S, IdleCollector, freeze_long_lived
 from faultwise.tui.context import Bench, Clock, system_clock
 from faultwise.tui.messages import KnowledgeReady
 from faultwise.tui.settings import Settings
 from faultwise.core.workspace import Workspace
+
+if TYPE_CHECKING:        # the start screen paints before the case code is imported
+    from faultwise.cases.store import OpenCase
+    from faultwise.walk.state import Walk
 
 BENCH_THEME = Theme(
     name="bench-lamp",
@@ -52,6 +58,7 @@ class FaultwiseApp(App[None]):
         self.bench = bench
         self._waiting: list[Callable[[], None]] = []
         self._knowledge_started = False
+        self.collector = IdleCollector()
         self.register_theme(BENCH_THEME)
         self.theme = BENCH_THEME.name
 
@@ -64,6 +71,9 @@ class FaultwiseApp(App[None]):
 
     def on_mount(self) -> None:
         self.sub_title = f"bench {self.bench.workspace.bench}"
+        # full garbage collections wait for a pause in the keys (tui.collector)
+        self.collector.start()
+        self.set_interval(IDLE_S / 2, self.collector.tick, name="idle-collector")
         if not self.bench.settings.safety_acknowledged:
             self.show_safety(first_run=True)
         # After the first paint; the timer is a backstop: on a busy machine an
@@ -71,6 +81,14 @@ class FaultwiseApp(App[None]):
         # and then nothing would ever load (seen under load in tmux).
         self.call_after_refresh(self._start_knowledge_load)
         self.set_timer(0.5, self._start_knowledge_load)
+
+    def on_unmount(self) -> None:
+        self.collector.stop()
+
+    async def on_event(self, event: events.Event) -> None:
+        if isinstance(event, events.Key):
+            self.collector.key_pressed()
+        await super().on_event(event)
 
     def show_safety(self, *, first_run: bool = False) -> None:
         from faultwise.tui.screens.safety import SafetyScreen
@@ -104,6 +122,7 @@ class FaultwiseApp(App[None]):
             return
         if event.state == WorkerState.SUCCESS:
             self.bench.knowledge = event.worker.result
+            freeze_long_lived()
             waiting, self._waiting = self._waiting, []
             for callback in waiting:
                 callback()
@@ -131,6 +150,18 @@ class FaultwiseApp(App[None]):
         self._waiting.append(callback)
         self._start_knowledge_load()
         self.notify("Loading the knowledge...", timeout=2)
+
+    def case_screen(self, screen_id: str, case: OpenCase, walk: Walk) -> Screen:
+        """The screen that shows an open case: "conclusion" (repair, verify, close) or
+        "walk" (the diagnosis). The case screens switch between each other through this
+        factory, so neither imports the other."""
+        if screen_id == "conclusion":
+            from faultwise.tui.screens.conclusion import ConclusionScreen
+
+            return ConclusionScreen(self.bench, case, walk)
+        from faultwise.tui.screens.walk import WalkScreen
+
+        return WalkScreen(self.bench, case, walk)
 
     def action_bench_help(self) -> None:
         from faultwise.tui.screens.help import HelpScreen

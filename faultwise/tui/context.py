@@ -1,15 +1,21 @@
 """What every screen is given: the workspace, the clock, the settings and (once loaded) the
-knowledge. Built by :func:`faultwise.tui.app.build_app`; screens never reach for globals.
+knowledge; and the one way a screen opens a case and replays its walk
+(:meth:`Bench.open_walk`). Built by :func:`faultwise.tui.app.build_app`; screens never
+reach for globals.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
 from datetime import datetime, timezone
-from typing import Any, Callable
+from typing import TYPE_CHECKING, Any, Callable
 
 from faultwise.tui.settings import Settings
 from faultwise.core.workspace import Workspace
+
+if TYPE_CHECKING:        # the app paints its first screen before these are imported
+    from faultwise.cases.store import CaseStore, OpenCase
+    from faultwise.walk.state import Walk
 
 Clock = Callable[[], datetime]
 
@@ -31,7 +37,7 @@ class Bench:
     _store: Any = field(default=None, repr=False)
 
     @property
-    def store(self):
+    def store(self) -> CaseStore:
         """The case store for this bench's cases folder (imported on first use)."""
         if self._store is None:
             from faultwise.cases.store import CaseStore
@@ -40,4 +46,22 @@ class Bench:
         return self._store
 
     def now_iso(self) -> str:
+        """The clock's time, to the second, as the case files write it."""
         return self.clock().isoformat(timespec="seconds")
+
+    def open_walk(self, case_id: str) -> tuple[OpenCase, Walk]:
+        """(OpenCase, Walk) for an open case: takes the lock and replays its events.
+
+        FaultwiseError (locked, damaged, events that no longer fit the knowledge) leaves the
+        case unlocked.
+        """
+        from faultwise.walk.scripted import walk_from_case   # not before a case is opened
+
+        case = self.store.open(case_id)
+        try:
+            walk = walk_from_case(self.knowledge, case.data, clock=self.clock,
+                                  knowledge_dir=self.workspace.knowledge_dir)
+        except BaseException:
+            case.close()
+            raise
+        return case, walk

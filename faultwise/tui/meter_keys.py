@@ -18,67 +18,19 @@ logic.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-from typing import Any
-
 from textual.binding import Binding
+
+from faultwise.core.errors import FaultwiseError
+from faultwise.meter import MeterTimeout, Quantity, Sample, read_stable
+from faultwise.meter.fit import answer_from_meter, quantity_for
+from faultwise.tui.meter_state import MeterState, meter_can_take, meter_hint, meter_state
+from faultwise.tui.screens.caution import CautionScreen
+from faultwise.tui.widgets.check_panel import CheckPanel
+from faultwise.tui.wording import internal_error
 
 CAUTION_ID = "meter-link"
 
-
-@dataclass
-class MeterState:
-    """The bench's meter for this run (on ``Bench.meter``): the opened source and the mode."""
-
-    meter: Any
-    hold: bool = False
-    busy: bool = False
-    identity: str | None = None       # the meter's own name, once it has answered
-
-
-def meter_state(bench) -> MeterState | None:
-    """The bench's meter state, opened on first use; None when the bench has no meter."""
-    config = getattr(bench.workspace, "meter", None)
-    if config is None or config.is_manual:
-        return None
-    if bench.meter is None:
-        from faultwise.meter import open_meter
-
-        bench.meter = MeterState(open_meter(config, clock=bench.clock))
-    return bench.meter
-
-
-def meter_hint(app, prompt) -> str:
-    """The line under a reading check when the bench has a meter, else ''."""
-    bench = getattr(app, "bench", None)
-    if bench is None or prompt is None or not prompt.is_measurement:
-        return ""
-    state = meter_state(bench)
-    if state is None:
-        return ""
-    from faultwise.meter.fit import quantity_for
-    from faultwise.meter.base import MeterError
-
-    try:
-        quantity = quantity_for(prompt.expected)
-    except MeterError as exc:
-        return f"Meter: type this reading ({exc.message})."
-    name = state.identity or state.meter.spec
-    if state.hold:
-        return (f"Meter {name}: F10 reads {quantity.title} until three samples agree; "
-                "ctrl+t: one sample.")
-    return f"Meter {name}: F10 reads {quantity.title}; ctrl+t: hold until stable."
-
-
-def _meter_can_take(expected) -> bool:
-    from faultwise.meter.base import MeterError
-    from faultwise.meter.fit import quantity_for
-
-    try:
-        quantity_for(expected)
-    except MeterError:
-        return False
-    return True
+__all__ = ["CAUTION_ID", "MeterKeys", "MeterState", "meter_hint", "meter_state"]
 
 
 class MeterKeys:
@@ -96,7 +48,7 @@ class MeterKeys:
             prompt = self.walk.prompt()
             return (meter_state(self.bench) is not None and prompt is not None
                     and prompt.kind == "check" and prompt.is_measurement
-                    and _meter_can_take(prompt.expected))
+                    and meter_can_take(prompt.expected))
         return super().check_action(action, parameters)
 
     # ------------------------------------------------------------------ actions
@@ -111,9 +63,6 @@ class MeterKeys:
         self._meter_panel_hint()
 
     def action_meter_read(self) -> None:
-        from faultwise.core.errors import FaultwiseError
-        from faultwise.meter.fit import quantity_for
-
         state = meter_state(self.bench)
         prompt = self.walk.prompt()
         if state is None or prompt is None or not prompt.is_measurement:
@@ -134,24 +83,20 @@ class MeterKeys:
 
     # ------------------------------------------------------------------ steps
 
-    def _meter_panel(self):
-        from faultwise.tui.widgets.check_panel import CheckPanel
-
+    def _meter_panel(self) -> CheckPanel:
         return self.query_one(CheckPanel)
 
     def _meter_panel_hint(self, text: str | None = None) -> None:
         panel = self._meter_panel()
-        panel.show_meter(text if text is not None else meter_hint(self.app, panel.prompt))
+        panel.show_meter(text if text is not None else meter_hint(self.bench, panel.prompt))
 
-    def _meter_caution(self, quantity) -> None:
+    def _meter_caution(self, quantity: Quantity) -> None:
         caution = self.walk.knowledge.cautions.get(CAUTION_ID)
         if caution is None:
             self._meter_panel().show_error(
                 f"the knowledge has no '{CAUTION_ID}' caution, so the meter is not used; "
                 "copy it from the bundled cautions.yaml, or type the reading")
             return
-        from faultwise.tui.screens.caution import CautionScreen
-
         shown = self.bench.now_iso()
         modal = CautionScreen([caution], guard_s=self.bench.settings.caution_guard_s)
 
@@ -170,7 +115,7 @@ class MeterKeys:
 
         self.app.push_screen(modal, done)
 
-    def _meter_start(self, state: MeterState, quantity) -> None:
+    def _meter_start(self, state: MeterState, quantity: Quantity) -> None:
         prompt = self.walk.prompt()
         if prompt is None or not prompt.is_measurement:
             return
@@ -182,8 +127,6 @@ class MeterKeys:
         meter, hold = state.meter, state.hold
 
         def work() -> None:
-            from faultwise.meter import read_stable
-
             sample = error = None
             try:
                 if hold:
@@ -197,12 +140,8 @@ class MeterKeys:
         self.run_worker(work, thread=True, exit_on_error=False, group="meter",
                         name="meter-read")
 
-    def _meter_done(self, token, sample, error) -> None:
-        from faultwise.core.errors import FaultwiseError
-        from faultwise.meter import MeterTimeout
-        from faultwise.meter.fit import answer_from_meter
-        from faultwise.tui.screens.case_screen import internal_error
-
+    def _meter_done(self, token: tuple[str | None, int], sample: Sample | None,
+                    error: BaseException | None) -> None:
         state = meter_state(self.bench)
         if state is not None:
             state.busy = False

@@ -24,7 +24,12 @@ from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass, field
 
 from faultwise.core.errors import KnowledgeError
+from typing import TYPE_CHECKING
+
 from faultwise.graph.nodes import Check, Investigation, Suspects
+
+if TYPE_CHECKING:
+    from faultwise.graph.knowledge import Knowledge
 
 
 @dataclass(frozen=True)
@@ -48,7 +53,7 @@ class Ranked:
         return self.investigation.target
 
 
-def _counts(knowledge, symptom: str, family: str, counts: Mapping[str, int] | None) -> Mapping[str, int]:
+def _counts(knowledge: Knowledge, symptom: str, family: str, counts: Mapping[str, int] | None) -> Mapping[str, int]:
     if counts is not None:
         return counts
     return knowledge.learned.pair(symptom, family)
@@ -69,7 +74,7 @@ def dirichlet_means(weights: Mapping[str, float], counts: Mapping[str, int],
             for f, w in weights.items()}
 
 
-def fault_probabilities(knowledge, symptom: str, family: str,
+def fault_probabilities(knowledge: Knowledge, symptom: str, family: str,
                         counts: Mapping[str, int] | None = None) -> dict[str, float]:
     """Dirichlet posterior means over the faults reachable for (symptom, family), sorted by id."""
     faults = sorted(knowledge.faults_for(symptom, family))
@@ -81,7 +86,7 @@ def fault_probabilities(knowledge, symptom: str, family: str,
 Applies = Callable[[str], bool]
 
 
-def target_applies(knowledge, target: str, family: str, applies: Applies | None = None,
+def target_applies(knowledge: Knowledge, target: str, family: str, applies: Applies | None = None,
                    _depth: int = 0) -> bool:
     """Family, then ``applies``: a check or fault by the predicate, a suspects list when one of
     its investigations applies (recursively)."""
@@ -99,7 +104,7 @@ def target_applies(knowledge, target: str, family: str, applies: Applies | None 
     return bool(applies(target))
 
 
-def investigation_cost(knowledge, inv: Investigation, family: str, _depth: int = 0,
+def investigation_cost(knowledge: Knowledge, inv: Investigation, family: str, _depth: int = 0,
                        applies: Applies | None = None) -> float:
     """Minutes: the investigation's own, else its target check's, else the sum over a suspects
     target's investigations that apply."""
@@ -124,7 +129,7 @@ def _ratio(p: float, cost: float) -> float:
     return math.inf if p > 0 else 0.0
 
 
-def rank_investigations(knowledge, suspects_id: str, symptom: str, family: str,
+def rank_investigations(knowledge: Knowledge, suspects_id: str, symptom: str, family: str,
                         cleared: Iterable[str] = (), counts: Mapping[str, int] | None = None,
                         applies: Applies | None = None,
                         likelihood: Mapping[str, float] | None = None) -> list[Ranked]:

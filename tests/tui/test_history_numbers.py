@@ -11,7 +11,8 @@ from tui_helpers import acknowledge_cautions, answer, new_case, type_text
 
 def rows_by_event(table) -> dict[str, tuple[str, ...]]:
     """Row key (event n) -> the plain text of its cells."""
-    return {key.value: tuple(getattr(c, "plain", str(c)) for c in table.get_row(key))
+    return {getattr(key, "value", key): tuple(getattr(c, "plain", str(c))
+                                              for c in table.get_row(key))
             for key in table.rows}
 
 
@@ -75,3 +76,36 @@ async def test_viewer_numbers_checks_and_names_cautions(make_app, workspace, cas
         # The summary names the symptom by its title.
         summary = str(app.screen.query_one("#viewer-summary").render())
         assert app.bench.knowledge.symptoms[data["symptom"]].title in summary
+
+
+async def test_history_keeps_the_newest_row_in_view(make_app, cases_dir):
+    """More rows than the table has lines at 80x24: the header stays on top and the newest
+    row is on screen after each step; an undo takes its row away (the rows are those of the
+    case file's events, read back from disk)."""
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await new_case(pilot)
+        await acknowledge_cautions(pilot)
+        await pilot.press("1")
+        await pilot.pause()
+        await acknowledge_cautions(pilot)
+        history = app.screen.query_one("#history")
+        for i in range(1, 9):
+            await pilot.press("f3")
+            await pilot.pause()
+            await type_text(pilot, f"note {i}")
+            await pilot.press("enter")
+            await pilot.pause()
+            lines = [history.render_line(y).text for y in range(history.size.height)]
+            assert lines[0].split() == ["#", "Result", "Input", "Step"]
+            assert any(line.split()[-2:] == ["note", str(i)] for line in lines[1:]), lines
+        assert history.row_count > history.size.height - 1     # it had to scroll
+        events = read_case(cases_dir)["events"]
+        assert list(rows_by_event(history))[-1] == str(events[-1]["n"])
+
+        await pilot.press("ctrl+z")                 # undoes the answer (notes stay)
+        await pilot.pause()
+        shown = rows_by_event(history)
+        kept = {str(e["n"]) for e in read_case(cases_dir)["events"]}
+        assert set(shown) <= kept
+        assert not any(cells[1].endswith("glow") for cells in shown.values())

@@ -196,7 +196,7 @@ async def test_a_unit_that_does_not_fit_is_refused(meter_app, cases_dir):
         await pilot.pause()
         await acknowledge_cautions(pilot)
         await ready(pilot)
-        from faultwise.tui.meter_keys import meter_state
+        from faultwise.tui.meter_state import meter_state
 
         meter_state(app.bench).meter = DialOnOhms("sigrok:test")
         await pilot.press("f10")

@@ -74,12 +74,10 @@ async def test_bench_and_command_line_expect_the_same_b_plus(
         await ready(pilot)
 
     # The case opened again (a new app, its events replayed) expects the same B+.
-    from faultwise.tui.screens.case_screen import open_walk
-
     app = make_app()
     async with app.run_test(size=(100, 30)) as pilot:
         await ready(pilot)
-        case, resumed = open_walk(app.bench, case_id)
+        case, resumed = app.bench.open_walk(case_id)
         try:
             again = resumed.expectations[B_PLUS]
             assert (again.low, again.high) == (band["low"], band["high"])

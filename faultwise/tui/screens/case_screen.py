@@ -2,41 +2,39 @@
 
 Every change goes to the walk first, then to disk (``OpenCase.record``) before the screen
 shows the next prompt. A save that fails opens :class:`SaveFailedScreen`; the change stays
-in memory until a retry succeeds.
+in memory until a retry succeeds. When the walk's phase belongs on the other case screen,
+the app builds it (``FaultwiseApp.case_screen``): this module imports neither screen.
 """
 
 from __future__ import annotations
 
 from typing import Callable
 
+from textual import events
 from textual.binding import Binding
+from textual.css.query import NoMatches
 from textual.screen import Screen
+from textual.widgets import Input
 
+from faultwise.cases.store import OpenCase
+from faultwise.core.errors import FaultwiseError
+from faultwise.expect.chart import chart_rows, stage_chart_lines
 from faultwise.tui.context import Bench
+from faultwise.tui.screens.caution import CautionScreen
+from faultwise.tui.screens.readings import ReadingsScreen
+from faultwise.tui.screens.save_failed import SaveFailedScreen
+from faultwise.tui.screens.text_prompt import TextPromptScreen
+from faultwise.tui.widgets.check_panel import CheckPanel
+from faultwise.tui.wording import bench_sentence, internal_error, printable, readable
+from faultwise.walk.results import Prompt
+from faultwise.walk.state import Walk
 
 
-def internal_error(exc: BaseException) -> str:
-    """The sentence shown for an unexpected exception (never a traceback)."""
-    return (f"Internal error ({type(exc).__name__}: {exc}). Nothing saved was lost; the step "
-            "was not recorded. Please report it.")
-
-
-def open_walk(bench: Bench, case_id: str):
-    """(OpenCase, Walk) for an open case: takes the lock and replays its events.
-
-    FaultwiseError (locked, damaged, events that no longer fit the knowledge) leaves the
-    case unlocked.
-    """
-    from faultwise.walk.scripted import walk_from_case
-
-    case = bench.store.open(case_id)
-    try:
-        walk = walk_from_case(bench.knowledge, case.data, clock=bench.clock,
-                              knowledge_dir=bench.workspace.knowledge_dir)
-    except BaseException:
-        case.close()
-        raise
-    return case, walk
+def screen_for(prompt: Prompt) -> str:
+    """The id of the screen a prompt belongs on: "conclusion" from the repair on, else "walk"."""
+    if prompt.kind in ("repair", "close") or prompt.phase in ("repair", "verify", "closing"):
+        return "conclusion"
+    return "walk"
 
 
 class CaseScreen(Screen):
@@ -49,7 +47,7 @@ class CaseScreen(Screen):
     UNDO = Binding("ctrl+z", "undo", "Undo", priority=True)
     BACK = Binding("escape", "leave", "Back", priority=True)
 
-    def __init__(self, bench: Bench, case, walk, *, id: str) -> None:
+    def __init__(self, bench: Bench, case: OpenCase, walk: Walk, *, id: str) -> None:
         super().__init__(id=id)
         self.bench = bench
         self.case = case
@@ -60,8 +58,6 @@ class CaseScreen(Screen):
 
     def _try_save(self) -> str | None:
         """Save the walk into the case; None on success, else the error sentence."""
-        from faultwise.core.errors import FaultwiseError
-
         try:
             self.case.record(self.walk)
         except FaultwiseError as exc:
@@ -78,7 +74,6 @@ class CaseScreen(Screen):
         if problem is None:
             then()
             return
-        from faultwise.tui.screens.save_failed import SaveFailedScreen
 
         def done(result: str | None) -> None:
             if result == "saved":
@@ -94,8 +89,6 @@ class CaseScreen(Screen):
 
         Returns True when the walk changed (and the save was started).
         """
-        from faultwise.core.errors import FaultwiseError
-
         try:
             action()
         except FaultwiseError as exc:
@@ -107,10 +100,8 @@ class CaseScreen(Screen):
         self.commit(then or self.show_prompt)
         return True
 
-    def answer_text(self, text: str, panel) -> None:
+    def answer_text(self, text: str, panel: CheckPanel) -> None:
         """Give typed text to the walk; a refusal goes under the field, nothing recorded."""
-        from faultwise.core.errors import FaultwiseError
-
         try:
             self.walk.answer(text)
         except FaultwiseError as exc:
@@ -121,21 +112,18 @@ class CaseScreen(Screen):
             return
         self.commit(self.show_prompt)
 
-    def say(self, exc) -> str:
+    def say(self, exc: BaseException) -> str:
         """A walk refusal in the bench's words: no location, titles for node ids."""
-        from faultwise.tui.wording import bench_sentence, printable, readable
-
         return printable(readable(bench_sentence(exc), self.walk.knowledge))
 
     def readable(self, text: str | None) -> str:
         """Text from the walk with node ids replaced by their titles."""
-        from faultwise.tui.wording import readable
-
         return readable(text, self.walk.knowledge)
 
     # ------------------------------------------------------------------ prompts
 
     def show_prompt(self) -> None:  # pragma: no cover - each screen draws its own
+        """Draw the walk's current prompt (each case screen draws its own)."""
         raise NotImplementedError
 
     def next_screen(self) -> bool:
@@ -146,26 +134,17 @@ class CaseScreen(Screen):
             self.notify(f"Case {self.case.id} closed ({outcome}).", markup=False)
             self.leave_case(saved=True)
             return True
-        wants_conclusion = prompt.kind in ("repair", "close") or prompt.phase in (
-            "repair", "verify", "closing")
-        if wants_conclusion and self.id != "conclusion":
-            from faultwise.tui.screens.conclusion import ConclusionScreen
+        wanted = screen_for(prompt)
+        if wanted == self.id:
+            return False
+        # the app builds the other case screen (this module does not import them)
+        self.app.switch_screen(self.app.case_screen(wanted, self.case, self.walk))
+        return True
 
-            self.app.switch_screen(ConclusionScreen(self.bench, self.case, self.walk))
-            return True
-        if not wants_conclusion and self.id != "walk":
-            from faultwise.tui.screens.walk import WalkScreen
-
-            self.app.switch_screen(WalkScreen(self.bench, self.case, self.walk))
-            return True
-        return False
-
-    def ask_cautions(self, prompt) -> bool:
+    def ask_cautions(self, prompt: Prompt) -> bool:
         """Show the prompt's unacknowledged cautions first; True when a modal was opened."""
         if not prompt.unacknowledged or self._asking_cautions:
             return False
-        from faultwise.tui.screens.caution import CautionScreen
-
         pending = [c for c in prompt.cautions if c.id in prompt.unacknowledged]
         self._asking_cautions = True
         shown = self.bench.now_iso()
@@ -188,15 +167,13 @@ class CaseScreen(Screen):
 
     # ------------------------------------------------------------------ focus
 
-    def current_field(self):
+    def current_field(self) -> Input | None:
         """The Input the current step needs, or None (subclasses say which)."""
         return None
 
     def focus_field(self) -> None:
         """Give the focus back to the field the current step needs (only while this screen
         is the one shown: a resume can come after the screen was switched away)."""
-        from textual.css.query import NoMatches
-
         if not self.is_attached or self.app.screen is not self:
             return
         try:
@@ -212,21 +189,17 @@ class CaseScreen(Screen):
         self.focus_field()
         self.call_after_refresh(self.focus_field)
 
-    def on_key(self, event) -> None:
+    def on_key(self, event: events.Key) -> None:
         """A printable key while no field has the focus goes into the step's field (a key
         typed while a dialog was closing would otherwise go nowhere)."""
-        from textual.widgets import Input
-
         if not event.is_printable or isinstance(self.focused, Input):
             return
         if self.type_into_field(event.character or ""):
             event.stop()
             event.prevent_default()
 
-    def _focused_field(self):
+    def _focused_field(self) -> Input | None:
         """The current step's field, focused; None when the screen has none (or is gone)."""
-        from textual.css.query import NoMatches
-
         try:
             field = self.current_field() if self.is_attached else None
         except NoMatches:
@@ -276,8 +249,6 @@ class CaseScreen(Screen):
             self.show_prompt()
 
     def action_note(self) -> None:
-        from faultwise.tui.screens.text_prompt import TextPromptScreen
-
         def done(text: str | None) -> None:
             if text:
                 self.change(lambda: self.walk.note(text),
@@ -289,11 +260,6 @@ class CaseScreen(Screen):
             prompt_id="note-prompt"), done)
 
     def action_readings(self) -> None:
-        from faultwise.tui.screens.readings import ReadingsScreen
-
-        from faultwise.expect.chart import chart_rows, stage_chart_lines
-        from faultwise.core.errors import FaultwiseError
-
         prompt = self.walk.prompt()
         current = getattr(getattr(prompt, "expected", None), "name", None)
         try:
@@ -309,8 +275,6 @@ class CaseScreen(Screen):
         if prompt is None or not prompt.cautions:
             self.notify("No cautions for this step.", timeout=2)
             return
-        from faultwise.tui.screens.caution import CautionScreen
-
         self.app.push_screen(CautionScreen(prompt.cautions, reminder=True))
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:

@@ -15,13 +15,19 @@ acknowledged; the case records it with the acknowledgement.
 from __future__ import annotations
 
 import time
+from collections.abc import Iterable
+from typing import TYPE_CHECKING
 
+from textual import events
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.content import Content
 from textual.screen import ModalScreen
 from textual.widgets import Button, Static
+
+if TYPE_CHECKING:
+    from faultwise.graph.nodes import Caution
 
 GUARD_S = 1.5        # long enough to stop a habitual keystroke, short enough not to annoy
 
@@ -39,7 +45,8 @@ class CautionScreen(ModalScreen[bool]):
         Binding("pageup", "scroll_text(-10)", "Page", show=False),
     ]
 
-    def __init__(self, cautions, *, reminder: bool = False, guard_s: float = GUARD_S) -> None:
+    def __init__(self, cautions: Iterable[Caution], *, reminder: bool = False,
+                 guard_s: float = GUARD_S) -> None:
         super().__init__(id="caution")
         self.cautions = tuple(cautions)
         self.reminder = reminder
@@ -117,7 +124,7 @@ class CautionScreen(ModalScreen[bool]):
         i = stack.index(self) if self in stack else 0
         return stack[i - 1] if i > 0 else None
 
-    def on_key(self, event) -> None:
+    def on_key(self, event: events.Key) -> None:
         """Keys typed after the caution was answered, while the dialog is still closing,
         belong to the next check's field: they are handed on, never lost."""
         if self.read_s is None or self.read_s < 0 or not event.is_printable:

@@ -9,22 +9,33 @@ a whole number of 0 or more, refused in place otherwise.
 
 from __future__ import annotations
 
+from collections.abc import Iterator
+from datetime import datetime
+
 from textual import on
 from textual.app import ComposeResult, SystemCommand
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.content import Content
 from textual.validation import Integer
-from textual.widgets import Footer, Header, Input, Static
+from textual.widgets import Header, Input, Static
 
+from faultwise.cases.store import OpenCase
+from faultwise.core.errors import FaultwiseError
+from faultwise.tui.context import Bench
 from faultwise.tui.meter_keys import MeterKeys
 from faultwise.tui.screens.case_screen import CaseScreen
+from faultwise.tui.screens.confirm_repaired import ConfirmRepairedScreen
+from faultwise.tui.widgets.bench_footer import BenchFooter
 from faultwise.tui.widgets.bench_input import BenchInput
 from faultwise.tui.widgets.check_panel import CheckPanel
 from faultwise.tui.widgets.history import History
+from faultwise.tui.widgets.in_place import set_text
 from faultwise.tui.widgets.stage_map import StageMap
 from faultwise.tui.wording import printable
+from faultwise.walk.results import Prompt, resolve_choice
 from faultwise.walk.stages import walk_stage_states
+from faultwise.walk.state import Walk
 
 OUTCOME_CHOICES = (("repaired", "repaired"), ("returned-unrepaired", "returned unrepaired"),
                    ("waiting-parts", "waiting for parts"))
@@ -38,11 +49,9 @@ def split_parts(text: str) -> list[str]:
     return [p.strip() for p in text.replace(";", ",").split(",") if p.strip()]
 
 
-def whole_minutes_since(opened_iso, now) -> int:
+def whole_minutes_since(opened_iso: object, now: datetime) -> int:
     """Whole minutes from the case's ``opened`` stamp to ``now``, at least 1 (a case closed
     within its first minute still took some time); 1 when the stamp cannot be read."""
-    from datetime import datetime
-
     try:
         opened = datetime.fromisoformat(str(opened_iso))
         return max(1, int((now - opened).total_seconds() // 60))
@@ -50,7 +59,7 @@ def whole_minutes_since(opened_iso, now) -> int:
         return 1
 
 
-def failed_verify_lines(walk) -> list[str]:
+def failed_verify_lines(walk: Walk) -> list[str]:
     """'<check title>: read <outcome> (<typed>)' for each verify reading of the current
     repair that was not normal (after the last resume; skipped checks are not failures)."""
     resumed = [int(e.get("n", 0)) for e in walk.events if e.get("type") == "resume"]
@@ -84,7 +93,7 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         CaseScreen.BACK,
     ]
 
-    def __init__(self, bench, case, walk) -> None:
+    def __init__(self, bench: Bench, case: OpenCase, walk: Walk) -> None:
         super().__init__(bench, case, walk, id="conclusion")
         self.outcome: str | None = None
 
@@ -124,7 +133,7 @@ class ConclusionScreen(MeterKeys, CaseScreen):
                                                          failure_description=MINUTES_RULE)])
                 yield Static("", id="close-error", classes="field-error")
             yield History(id="history")
-        yield Footer(show_command_palette=False, compact=True)
+        yield BenchFooter(show_command_palette=False, compact=True)
 
     def on_mount(self) -> None:
         self.sub_title = f"case {self.case.id}"
@@ -133,9 +142,14 @@ class ConclusionScreen(MeterKeys, CaseScreen):
     # ------------------------------------------------------------------ drawing
 
     def show_prompt(self) -> None:
+        """Draw the current step (repair, verify or closing check, close form) in one batch."""
         if self.next_screen():
             return
-        prompt = self.walk.prompt()
+        with self.app.batch_update():
+            self._draw(self.walk.prompt())
+        self.refresh_bindings()
+
+    def _draw(self, prompt: Prompt) -> None:
         fault = self.walk.conclusion
         finding = self.walk.off_graph_finding
         stage = fault.stage if fault else None
@@ -144,27 +158,27 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         title = self.query_one("#conclusion-title", Static)
         steps = self.query_one("#repair-steps", Static)
         if fault is not None:
-            title.update(Content.from_markup("[b]✗ FAULT[/b]  $t  [dim]($s)[/dim]", t=fault.title,
+            set_text(title, Content.from_markup("[b]✗ FAULT[/b]  $t  [dim]($s)[/dim]", t=fault.title,
                                              s=fault.stage))
         elif finding:
-            title.update(Content.from_markup("[b]Off-graph finding[/b]  $f",
+            set_text(title, Content.from_markup("[b]Off-graph finding[/b]  $f",
                                              f=printable(finding)))
         else:
-            title.update("Returning the set")
+            set_text(title, "Returning the set")
         if prompt.kind == "close":
             # The repair is done: one line of what was fitted leaves room for the close form.
-            steps.update(Content.from_markup("[b]Parts replaced:[/b] $p",
+            set_text(steps, Content.from_markup("[b]Parts replaced:[/b] $p",
                                              p=printable(", ".join(self.walk.parts) or "none")))
         elif fault is not None:
             lines = [Content.from_markup("[dim]$i.[/dim] $r", i=str(i), r=r)
                      for i, r in enumerate(fault.repair, 1)]
             parts = ", ".join(fault.parts) or "none listed"
             lines.append(Content.from_markup("[b]Parts:[/b] $p", p=parts))
-            steps.update(Content("\n").join(lines))
+            set_text(steps, Content("\n").join(lines))
         elif finding:
-            steps.update("Repair as the finding needs; the graph has no steps for it.")
+            set_text(steps, "Repair as the finding needs; the graph has no steps for it.")
         else:
-            steps.update("")
+            set_text(steps, Content(""))
         phase = prompt.phase
         self.query_one("#parts-form").display = prompt.kind == "repair"
         self.query_one(CheckPanel).display = prompt.kind == "check"
@@ -189,9 +203,8 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         else:
             self._show_close_form(prompt)
         self.query_one("#repair-scroll").display = phase == "repair" or prompt.kind == "close"
-        self.refresh_bindings()
 
-    def _show_close_form(self, prompt) -> None:
+    def _show_close_form(self, prompt: Prompt) -> None:
         warn = f"\n! {self.readable(prompt.warning)}" if prompt.warning else ""
         self.query_one("#close-caption", Static).update(Content.from_markup(
             "[b]Close the case[/b]: choose the outcome, then type the minutes spent.$w",
@@ -205,7 +218,7 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         """Whole minutes since the case was opened, at least 1 (the tech may correct it)."""
         return whole_minutes_since(self.case.data.get("opened"), self.bench.clock())
 
-    def current_field(self):
+    def current_field(self) -> Input | None:
         if self.query_one("#parts-form").display:
             return self.query_one("#parts", Input)
         panel = self.query_one(CheckPanel)
@@ -239,9 +252,6 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         self._choose_outcome(event.value)
 
     def _choose_outcome(self, text: str) -> None:
-        from faultwise.core.errors import FaultwiseError
-        from faultwise.walk.results import resolve_choice
-
         error = self.query_one("#close-error", Static)
         if not str(text or "").strip():
             error.update("No outcome chosen yet: type 1, 2 or 3 (the field is empty).")
@@ -270,8 +280,6 @@ class ConclusionScreen(MeterKeys, CaseScreen):
 
     def _confirm_repaired(self) -> None:
         """Ask before a repaired close with a verify reading off; nothing is recorded here."""
-        from faultwise.tui.screens.confirm_repaired import ConfirmRepairedScreen
-
         def done(choice: str | None) -> None:
             if choice == "repaired":
                 self._take_outcome("repaired")
@@ -352,7 +360,8 @@ class ConclusionScreen(MeterKeys, CaseScreen):
     def action_to_closing(self) -> None:
         self.change(self.walk.to_closing)
 
-    def palette_commands(self):
+    def palette_commands(self) -> Iterator[SystemCommand]:
+        """The conclusion's rare commands, for the command palette."""
         yield SystemCommand("Not cured: resume the diagnosis",
                             "Clear this suspect and go on with the next one", self.action_resume)
         yield SystemCommand("Return the set unrepaired",

@@ -7,12 +7,18 @@ walk's sentence are shown as titles.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical, VerticalScroll
 from textual.content import Content
 from textual.screen import ModalScreen
 from textual.widgets import DataTable, Static
+
+if TYPE_CHECKING:
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.walk.results import Explanation
 
 # Cells of the table's columns other than the suspect's label, and their count.
 NUMBER_COLUMNS = (1, 4, 4, 6, 5)          # mark, p, min, p/c, cases
@@ -27,7 +33,7 @@ class ExplainScreen(ModalScreen[None]):
         Binding("pageup", "scroll_text(-6)", "Back", show=False),
     ]
 
-    def __init__(self, explanation, knowledge) -> None:
+    def __init__(self, explanation: Explanation, knowledge: Knowledge) -> None:
         super().__init__(id="explain")
         self.explanation = explanation
         self.knowledge = knowledge

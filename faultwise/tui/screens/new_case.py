@@ -8,6 +8,7 @@ highlighted entry and moves on; F10 starts the walk.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 from pathlib import Path
 
 from textual import on, work
@@ -21,7 +22,10 @@ from textual.widgets.option_list import Option
 
 from faultwise.tui.context import Bench
 from faultwise.tui.widgets.bench_input import BenchInput
-from faultwise.tui.wording import printable
+from faultwise.tui.wording import internal_error, printable
+
+if TYPE_CHECKING:
+    from faultwise.profile.model import Profile
 
 
 @dataclass(frozen=True)
@@ -286,7 +290,7 @@ class NewCaseScreen(Screen):
     def action_template(self) -> None:
         from faultwise.tui.screens.template_form import TemplateFormScreen
 
-        def done(result) -> None:
+        def done(result: tuple[Profile, dict] | None) -> None:
             if result is None:
                 return
             profile, _data = result
@@ -331,10 +335,6 @@ class NewCaseScreen(Screen):
             self._error(str(exc))
             return
         except Exception as exc:  # never a traceback on the bench screen
-            from faultwise.tui.screens.case_screen import internal_error
-
             self._error(internal_error(exc))
             return
-        from faultwise.tui.screens.walk import WalkScreen
-
-        self.app.switch_screen(WalkScreen(self.bench, case, walk))
+        self.app.switch_screen(self.app.case_screen("walk", case, walk))

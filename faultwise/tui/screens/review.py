@@ -10,6 +10,9 @@ per job by month. Every piece of case text is shown as plain text, never as mark
 
 from __future__ import annotations
 
+from collections.abc import Iterable
+from typing import TYPE_CHECKING
+
 from rich.text import Text
 from textual import work
 from textual.app import ComposeResult
@@ -21,8 +24,13 @@ from textual.widgets import DataTable, Footer, Header, ProgressBar, Static
 from faultwise.report.job import num, pct
 from faultwise.tui.wording import printable
 
+if TYPE_CHECKING:
+    from faultwise.core.workspace import Workspace
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.shop.review import MonthMinutes, PairReview, Review
 
-def cell(text) -> Text:
+
+def cell(text: object) -> Text:
     """A table cell of case or knowledge text: literal, control characters made visible."""
     return Text(printable(text))
 
@@ -45,7 +53,7 @@ def _clip(text: str, width: int) -> str:
     return text if len(text) <= width else text[: max(1, width - 1)] + "\u2026"
 
 
-def share_chart(pair, width: int = 30, label_width: int = 38) -> str:
+def share_chart(pair: PairReview, width: int = 30, label_width: int = 38) -> str:
     """The pair's smoothed fault shares as bars, one line per fault (raw count after)."""
     lines = []
     for f in pair.faults:
@@ -64,7 +72,7 @@ def chart_widths(screen_width: int) -> tuple[int, int]:
     return max(8, room - label - 14), label
 
 
-def month_chart(months, width: int = 40) -> str:
+def month_chart(months: Iterable[MonthMinutes], width: int = 40) -> str:
     """Mean minutes per job by month, as bars."""
     peak = max((m.mean_minutes for m in months), default=0.0) or 1.0
     return "\n".join(f"{m.month}  {block_bar(m.mean_minutes / peak, width)} "
@@ -87,7 +95,8 @@ class ReviewScreen(Screen):
     ReviewScreen #review-progress { margin: 0 0 1 0; }
     """
 
-    def __init__(self, workspace, *, knowledge=None, name: str | None = None) -> None:
+    def __init__(self, workspace: Workspace, *, knowledge: Knowledge | None = None,
+                 name: str | None = None) -> None:
         super().__init__(name=name, id="review")
         self.context = workspace
         self.workspace = getattr(workspace, "workspace", workspace)
@@ -184,7 +193,7 @@ class ReviewScreen(Screen):
 
     # showing ---------------------------------------------------------------------------
 
-    def _show_review(self, review) -> None:
+    def _show_review(self, review: Review) -> None:
         self.review = review
         status = f"{review.cases} closed case(s) reviewed"
         if review.damaged:
@@ -225,7 +234,7 @@ class ReviewScreen(Screen):
                              "-" if r.days is None else f"{r.days:.0f}", key=r.case)
         self.query_one("#review-months", Static).update(month_chart(review.months))
 
-    def _show_pair(self, pair) -> None:
+    def _show_pair(self, pair: PairReview) -> None:
         shares = self.query_one("#review-shares", Static)
         faults = self.query_one("#review-faults", DataTable)
         orders = self.query_one("#review-orders", Static)

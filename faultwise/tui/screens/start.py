@@ -5,10 +5,12 @@ It paints before the knowledge is loaded; the case listing is read in a worker.
 
 from __future__ import annotations
 
+from collections.abc import Iterable, Iterator
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from textual import work
-from textual.app import ComposeResult
+from textual.app import ComposeResult, SystemCommand
 from textual.binding import Binding
 from textual.containers import Vertical
 from textual.screen import Screen
@@ -17,6 +19,9 @@ from textual.widgets import DataTable, Footer, Header, Static
 from faultwise.tui.context import Bench
 from faultwise.tui.messages import KnowledgeReady
 from faultwise.tui.screens.safety import SAFETY_SHORT
+
+if TYPE_CHECKING:
+    from faultwise.cases.store import CaseSummary, DamagedFile, Listing
 
 RECENT_CLOSED = 30
 
@@ -29,7 +34,7 @@ def shown_path(path: Path) -> str:
         return str(path)
 
 
-def short_labels(labels) -> dict[str, str]:
+def short_labels(labels: Iterable[object]) -> dict[str, str]:
     """Each set label without what every label shown shares at its start: the part up to
     the last ': ' ('Demo bench set: 5-tube table set' -> '5-tube table set'), and the
     words all labels begin with ('Demo 5-tube ...', 'Demo 6-tube ...' -> '5-tube ...').
@@ -131,7 +136,7 @@ class StartScreen(Screen):
         self.query_one("#cases-caption", Static).update(
             f"The cases folder cannot be read: {exc}")
 
-    def _show_listing(self, listing) -> None:
+    def _show_listing(self, listing: Listing) -> None:
         self.listing = listing
         table = self.query_one(DataTable)
         chosen = self.selected()
@@ -174,7 +179,8 @@ class StartScreen(Screen):
 
         return symptom_title(self.bench.knowledge, symptom_id) if symptom_id else ""
 
-    def _add(self, table: DataTable, kind: str, item, cells) -> None:
+    def _add(self, table: DataTable, kind: str, item: CaseSummary | DamagedFile,
+             cells: Iterable[str | None]) -> None:
         key = f"{kind}:{getattr(item, 'id', None) or item.path}"
         self._rows[key] = (kind, item)
         from rich.text import Text
@@ -276,15 +282,15 @@ class StartScreen(Screen):
     def resume(self, case_id: str) -> None:
         """Open the case for writing (takes the lock) and continue its walk."""
         from faultwise.core.errors import FaultwiseError
-        from faultwise.tui.screens.walk import WalkScreen, open_walk
 
         try:
-            case, walk = open_walk(self.bench, case_id)
+            case, walk = self.bench.open_walk(case_id)
         except FaultwiseError as exc:
             self.notify(str(exc), severity="error", markup=False, timeout=8)
             self.refresh_cases()
             return
-        self.app.push_screen(WalkScreen(self.bench, case, walk))
+        # the walk screen moves on to the conclusion by itself when the case is that far
+        self.app.push_screen(self.app.case_screen("walk", case, walk))
 
     def on_screen_resume(self) -> None:
         self.refresh_cases()
@@ -294,7 +300,8 @@ class StartScreen(Screen):
         if self.listing is not None:
             self._show_listing(self.listing)      # symptom titles instead of ids
 
-    def palette_commands(self):
+    def palette_commands(self) -> Iterator[SystemCommand]:
+        """The start screen's rare commands, for the command palette."""
         from textual.app import SystemCommand
 
         yield SystemCommand("Refresh the case list", "Read the cases folder again",

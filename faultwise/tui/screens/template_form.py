@@ -187,7 +187,7 @@ class TemplateFormScreen(ModalScreen[tuple | None]):
 
     @on(Input.Submitted, "#tf-family")
     @on(Input.Changed, "#tf-family")
-    async def family_typed(self, event) -> None:
+    async def family_typed(self, event: Input.Changed | Input.Submitted) -> None:
         from faultwise.core.errors import FaultwiseError
         from faultwise.walk.results import resolve_choice
 

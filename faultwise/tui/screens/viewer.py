@@ -7,6 +7,9 @@ The "#" column numbers the checks (1, 2, 3...) as the walk's history does; other
 
 from __future__ import annotations
 
+from collections.abc import Iterable
+from typing import TYPE_CHECKING
+
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
@@ -18,11 +21,14 @@ from faultwise.tui.context import Bench
 from faultwise.tui.widgets.history import MARKS, check_numbers
 from faultwise.tui.wording import caution_title, node_title, printable, symptom_title
 
+if TYPE_CHECKING:
+    from faultwise.graph.knowledge import Knowledge
+
 INPUT_WIDTH = (6, 20)       # (least, most) cells of the input column
 RESULT_WIDTH = (6, 12)
 
 
-def column_width(cells, heading: str, limits: tuple[int, int]) -> int:
+def column_width(cells: Iterable[str], heading: str, limits: tuple[int, int]) -> int:
     """The widest cell (or the heading), kept within ``limits``."""
     widest = max([len(heading), *(len(c) for c in cells)])
     return max(limits[0], min(limits[1], widest))
@@ -32,12 +38,12 @@ TYPE_WORDS = {"answer": "answer", "skip": "skipped", "note": "note", "acknowledg
               "to-closing": "to closing checks", "close": "closed", "reopen": "reopened"}
 
 
-def _when(iso) -> str:
+def _when(iso: object) -> str:
     """``2026-12-01T09:30:00+00:00`` -> ``2026-12-01 09:30``."""
     return str(iso or "")[:16].replace("T", " ")
 
 
-def summary_text(data: dict, knowledge=None) -> Content:
+def summary_text(data: dict, knowledge: Knowledge | None = None) -> Content:
     """Header lines of a case: id, set, complaint, conclusion, outcome (case text through
     printable: literal, and no control character reaches the terminal)."""
     conclusion = data.get("conclusion") or {}
@@ -58,7 +64,8 @@ def summary_text(data: dict, knowledge=None) -> Content:
         outcome=str(data.get("outcome") or "-"), minutes=str(data.get("minutes", "-")))
 
 
-def event_cells(event: dict, knowledge, number: int | None = None) -> tuple[str, str, str, str]:
+def event_cells(event: dict, knowledge: Knowledge | None, number: int | None = None
+                ) -> tuple[str, str, str, str]:
     """(step number, what, input, result) for one event of the case file; ``number`` is the
     check's step number (None for events that are not checks)."""
     kind = str(event.get("type", "?"))
@@ -90,7 +97,8 @@ def _safe_markup(template: str, **values: str) -> Content:
     return Content.from_markup(template, **{k: printable(v) for k, v in values.items()})
 
 
-def event_detail(event: dict, knowledge, number: int | None = None) -> Content:
+def event_detail(event: dict, knowledge: Knowledge | None, number: int | None = None
+                 ) -> Content:
     """Everything recorded for one event, as safe Content (``number``: the check's step)."""
     kind = str(event.get("type"))
     head = f"Check {number}: " if number is not None else ""

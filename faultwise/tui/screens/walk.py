@@ -7,25 +7,37 @@ it; the history of steps below. Every binding works while the answer field has f
 
 from __future__ import annotations
 
+from typing import Iterator
+
 from textual import on
 from textual.app import ComposeResult, SystemCommand
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.content import Content
-from textual.widgets import Footer, Header, Static
+from textual.widgets import Header, Input, Static
 
+from faultwise.cases.store import OpenCase
+from faultwise.graph.knowledge import Knowledge
+from faultwise.tui.context import Bench
 from faultwise.tui.meter_keys import MeterKeys
-from faultwise.tui.screens.case_screen import CaseScreen, open_walk
+from faultwise.tui.screens.case_screen import CaseScreen
+from faultwise.tui.screens.explain import ExplainScreen
+from faultwise.tui.screens.text_prompt import TextPromptScreen
+from faultwise.tui.widgets.bench_footer import BenchFooter
 from faultwise.tui.widgets.check_panel import CheckPanel
 from faultwise.tui.widgets.history import History
+from faultwise.tui.widgets.in_place import set_text
 from faultwise.tui.widgets.stage_map import StageMap
 from faultwise.tui.wording import printable
+from faultwise.walk.rank import fault_probabilities
+from faultwise.walk.results import Prompt
 from faultwise.walk.stages import walk_stage_states
+from faultwise.walk.state import Walk
 
-__all__ = ["WalkScreen", "open_walk", "guidance_for"]
+__all__ = ["WalkScreen", "guidance_for"]
 
 
-def guidance_for(prompt, knowledge) -> Content:
+def guidance_for(prompt: Prompt, knowledge: Knowledge) -> Content:
     """How and why of the current step, and its cautions, as safe Content."""
     node = prompt.node
     parts: list[Content] = []
@@ -65,7 +77,7 @@ class WalkScreen(MeterKeys, CaseScreen):
         CaseScreen.BACK,
     ]
 
-    def __init__(self, bench, case, walk) -> None:
+    def __init__(self, bench: Bench, case: OpenCase, walk: Walk) -> None:
         super().__init__(bench, case, walk, id="walk")
         self.guidance_open = bool(case.data.get("apprentice"))
 
@@ -80,53 +92,71 @@ class WalkScreen(MeterKeys, CaseScreen):
                 yield History(id="history")
             with VerticalScroll(id="guidance"):
                 yield Static("", id="guidance-text")
-        yield Footer(show_command_palette=False, compact=True)
+        yield BenchFooter(show_command_palette=False, compact=True)
 
     def on_mount(self) -> None:
         self.sub_title = f"case {self.case.id}"
+        self._check_panel = self.query_one(CheckPanel)
+        self._escalate_box = self.query_one("#escalate", Static)
+        self._stage_map = self.query_one(StageMap)
+        self._history_table = self.query_one(History)
+        self._guidance_text = self.query_one("#guidance-text", Static)
+        self._context_line = self.query_one("#walk-context", Static)
         self.query_one("#guidance").display = self.guidance_open
         self.show_prompt()
+        # The first answer ranks the suspects; the family's graph it needs is built once per
+        # run (about 0.1 s with the networkx import): build it now, beside the first check,
+        # not after the key press. The knowledge caches each graph by one assignment of the
+        # finished object, so the walk reading it meanwhile at worst builds it a second time.
+        walk = self.walk
+        self.run_worker(lambda: fault_probabilities(walk.knowledge, walk.symptom, walk.family),
+                        thread=True, exit_on_error=False, group="warm-up", name="warm-up")
 
     # ------------------------------------------------------------------ drawing
 
     def show_prompt(self) -> None:
+        """Draw the current check in place: only what changed since the last step is
+        updated, all in one batch (one repaint)."""
         if self.next_screen():
             return
-        prompt = self.walk.prompt()
-        panel = self.query_one(CheckPanel)
-        escalate = self.query_one("#escalate", Static)
-        self.query_one(StageMap).show(walk_stage_states(self.walk), prompt.stage)
-        self.query_one(History).show(self.walk.events, self.walk.steps, self.walk.knowledge)
-        self.query_one("#guidance-text", Static).update(guidance_for(prompt, self.walk.knowledge))
+        with self.app.batch_update():
+            self._draw(self.walk.prompt())
+        self.refresh_bindings()
+
+    def _draw(self, prompt: Prompt) -> None:
+        walk = self.walk
+        panel, escalate = self._check_panel, self._escalate_box
+        self._stage_map.show(walk_stage_states(walk), prompt.stage)
+        self._history_table.show(walk.events, walk.steps, walk.knowledge)
+        set_text(self._guidance_text, guidance_for(prompt, walk.knowledge))
         context = " › ".join(f.current_label or f.title for f in prompt.context)
-        self.query_one("#walk-context", Static).update(
-            Content.from_markup("[dim]Following:[/dim] $c", c=context) if context else
-            Content.from_markup("[dim]Complaint:[/dim] $c", c=printable(
-                self.case.data.get("complaint") or self.walk.symptom)))
+        set_text(self._context_line,
+                 Content.from_markup("[dim]Following:[/dim] $c", c=context) if context else
+                 Content.from_markup("[dim]Complaint:[/dim] $c", c=printable(
+                     self.case.data.get("complaint") or walk.symptom)))
         if prompt.kind == "check":
-            panel.display = True
-            escalate.display = False
             if self.ask_cautions(prompt):
                 panel.display = False
                 escalate.display = True
-                escalate.update("Read and acknowledge the caution before this check.")
+                set_text(escalate, "Read and acknowledge the caution before this check.")
                 return
-            panel.show(prompt, self.walk.knowledge)
+            panel.display = True
+            escalate.display = False
+            panel.show(prompt, walk.knowledge)
             panel.input.focus()
         else:
             panel.display = False
             escalate.display = True
             node = prompt.node
             title = getattr(node, "title", None) or "No suspect is left"
-            escalate.update(Content.from_markup(
+            set_text(escalate, Content.from_markup(
                 "[b]$t[/b]\n$w\nThe graph has nothing more to check here. Press F5 to record "
                 "what you found (an off-graph finding), F3 for a note, ctrl+z to undo.",
                 t=title, w=self.readable(prompt.warning) or getattr(node, "advice", "") or ""))
             self.set_focus(None)
-        self.refresh_bindings()
 
-    def current_field(self):
-        panel = self.query_one(CheckPanel)
+    def current_field(self) -> Input | None:
+        panel = self._check_panel
         prompt = self.walk.prompt()
         if prompt is None or prompt.kind != "check" or not panel.display:
             return None
@@ -136,7 +166,7 @@ class WalkScreen(MeterKeys, CaseScreen):
 
     @on(CheckPanel.Answered)
     def answered(self, event: CheckPanel.Answered) -> None:
-        self.answer_text(event.text, self.query_one(CheckPanel))
+        self.answer_text(event.text, self._check_panel)
 
     # ------------------------------------------------------------------ actions
 
@@ -160,13 +190,9 @@ class WalkScreen(MeterKeys, CaseScreen):
         if explanation is None:
             self.notify("No ranking applies to this step.", timeout=3)
             return
-        from faultwise.tui.screens.explain import ExplainScreen
-
         self.app.push_screen(ExplainScreen(explanation, self.walk.knowledge))
 
     def action_skip(self) -> None:
-        from faultwise.tui.screens.text_prompt import TextPromptScreen
-
         def done(reason: str | None) -> None:
             if reason:
                 self.change(lambda: self.walk.skip(reason))
@@ -176,8 +202,6 @@ class WalkScreen(MeterKeys, CaseScreen):
             placeholder="e.g. no ESR meter at this bench", prompt_id="skip-prompt"), done)
 
     def action_off_graph(self) -> None:
-        from faultwise.tui.screens.text_prompt import TextPromptScreen
-
         def done(finding: str | None) -> None:
             if finding:
                 self.change(lambda: self.walk.off_graph(finding))
@@ -190,7 +214,8 @@ class WalkScreen(MeterKeys, CaseScreen):
     def action_to_closing(self) -> None:
         self.change(self.walk.to_closing)
 
-    def palette_commands(self):
+    def palette_commands(self) -> Iterator[SystemCommand]:
+        """The walk's rare commands, for the command palette."""
         yield SystemCommand("Return the set unrepaired",
                             "Skip to the closing checks (the leakage check) and close",
                             self.action_to_closing)

@@ -7,11 +7,20 @@ word in the result column, in italics.
 
 from __future__ import annotations
 
-from typing import Iterable, Mapping
+from collections.abc import Iterable, Mapping
+from typing import TYPE_CHECKING
 
-from textual.widgets import DataTable
+from rich.style import Style
+from rich.text import Text
+from textual.geometry import Size
+from textual.scroll_view import ScrollView
+from textual.strip import Strip
 
 from faultwise.tui.wording import node_title, printable
+
+if TYPE_CHECKING:
+    from faultwise.graph.knowledge import Knowledge
+    from faultwise.walk.results import Step
 
 MARKS = {True: "✓", False: "!"}
 CHECK_EVENTS = ("answer", "skip")
@@ -26,7 +35,8 @@ def check_numbers(events: Iterable[Mapping]) -> dict[int, int]:
     return numbers
 
 
-def event_rows(events, steps, knowledge=None) -> list[tuple[str, tuple[str, str, str, str]]]:
+def event_rows(events: Iterable[Mapping], steps: Iterable[Step], knowledge: Knowledge | None = None
+               ) -> list[tuple[str, tuple[str, str, str, str]]]:
     """(row key, (step number, result, reading, what)) for each event worth showing, oldest
     first; the key is the event's n, the step number is empty for non-check events."""
     by_n = {s.n: s for s in steps}
@@ -64,32 +74,123 @@ def event_rows(events, steps, knowledge=None) -> list[tuple[str, tuple[str, str,
     return rows
 
 
-class History(DataTable):
-    """Read-only table of the case's events; ``show(events, steps, knowledge)`` refills it."""
+#: (title, width, justify); width 0 takes what the others leave
+COLUMNS = (("#", 3, "right"), ("Result", 10, "left"), ("Input", 12, "left"), ("Step", 0, "left"))
+PAD = 1         # a blank column each side of a cell
+
+
+def cell_texts(cells: tuple[str, str, str, str]) -> tuple[Text, Text, Text, Text]:
+    """The four cells of a row as shown: a check refused ('!') in bold, other events in
+    italics, every file text made printable."""
+    number, result, reading, what = cells
+    marked = Text(printable(result))
+    marked.stylize("italic" if not number else ("bold" if result.startswith("!") else ""))
+    return (Text(number), marked, Text(printable(reading)), Text(printable(what)))
+
+
+class History(ScrollView, can_focus=True):
+    """Read-only table of the case's events, the newest at the bottom, its header fixed.
+
+    ``show(events, steps, knowledge)`` brings it up to date. Drawn with Textual's line API:
+    a row is rendered once, when it is added (again only if the width changes), so a step
+    repaints the row it adds and not the whole table. ``rows`` maps each row's key (the
+    event's n) to its cells; ``get_row(key)`` gives them.
+    """
+
+    COMPONENT_CLASSES = {"history--header", "history--even-row"}
 
     DEFAULT_CSS = """
-    History { height: 1fr; overflow-x: hidden; }
+    History {
+        background: $surface;
+        color: $foreground;
+        height: 1fr;
+        overflow-x: hidden;
+        & > .history--header { text-style: bold; background: $panel; color: $foreground; }
+        & > .history--even-row { background: $surface-lighten-1 50%; }
+        &:dark > .history--even-row { background: $surface-darken-1 40%; }
+    }
     """
 
     def __init__(self, *, id: str | None = None) -> None:
-        super().__init__(id=id, cursor_type="row", zebra_stripes=True, show_cursor=False)
+        super().__init__(id=id)
+        self._given: list[tuple[str, tuple[str, str, str, str]]] = []   # event_rows shown
+        self.rows: dict[str, tuple[Text, Text, Text, Text]] = {}
+        self._order: list[str] = []
+        self._strips: dict[tuple[int, int], Strip] = {}      # (row index, width) -> line
 
-    def on_mount(self) -> None:
-        self.add_column("#", key="n", width=3)
-        self.add_column("Result", key="result", width=10)
-        self.add_column("Input", key="reading", width=12)
-        self.add_column("Step", key="what")
+    @property
+    def row_count(self) -> int:
+        return len(self._order)
 
-    def show(self, events, steps, knowledge=None) -> None:
-        from rich.text import Text
+    def get_row(self, key: str) -> tuple[Text, Text, Text, Text]:
+        """The cells of the row for event ``key``."""
+        return self.rows[key]
 
-        self.clear()
-        for key, (number, result, reading, what) in event_rows(events, steps, knowledge):
-            if not number:
-                style = "italic"
+    def show(self, events: Iterable[Mapping], steps: Iterable[Step],
+             knowledge: Knowledge | None = None) -> None:
+        """Show the rows for ``events``: the new ones are added at the end (an undo, which
+        takes rows away, refills the table) and the newest is scrolled into view."""
+        rows = event_rows(events, steps, knowledge)
+        if rows == self._given:
+            return
+        kept = len(self._given)
+        if rows[:kept] != self._given:
+            self.rows.clear()
+            self._order.clear()
+            self._strips.clear()
+            kept = 0
+        for key, cells in rows[kept:]:
+            self.rows[key] = cell_texts(cells)
+            self._order.append(key)
+        self._given = rows
+        self.virtual_size = Size(self.size.width, len(self._order) + 1)
+        # now, in this frame (force: the scrollbar that allows it comes with the next layout)
+        self.scroll_end(animate=False, immediate=True, force=True)
+        self.refresh()
+
+    def on_resize(self) -> None:
+        self.virtual_size = Size(self.size.width, len(self._order) + 1)
+        self.scroll_end(animate=False)
+
+    def notify_style_update(self) -> None:
+        super().notify_style_update()
+        self._strips.clear()                 # colours changed: render the rows again
+
+    def render_line(self, y: int) -> Strip:
+        width = self.size.width
+        if y == 0:
+            return self._line(-1, width)
+        index = int(self.scroll_offset.y) + y - 1
+        if index >= len(self._order):
+            return Strip.blank(width, self.rich_style)
+        return self._line(index, width)
+
+    def _line(self, index: int, width: int) -> Strip:
+        """Row ``index`` (-1: the header) rendered at ``width``, cached."""
+        strip = self._strips.get((index, width))
+        if strip is None:
+            if index < 0:          # titles to the left, as over any table
+                cells = tuple(Text(title, justify="left") for title, _, _ in COLUMNS)
+                style = self.get_component_rich_style("history--header")
             else:
-                style = "bold" if result.startswith("!") else ""
-            self.add_row(Text(number, justify="right"), Text(printable(result), style=style),
-                         Text(printable(reading)), Text(printable(what)), key=key)
-        if self.row_count:
-            self.move_cursor(row=self.row_count - 1)
+                cells = self.rows[self._order[index]]
+                style = (self.get_component_rich_style("history--even-row") if index % 2 == 0
+                         else Style())
+            strip = self._render_row(cells, width, self.rich_style + style)
+            self._strips[(index, width)] = strip
+        return strip
+
+    def _render_row(self, cells: tuple[Text, ...], width: int, style: Style) -> Strip:
+        fixed = sum(w + 2 * PAD for _, w, _ in COLUMNS if w)
+        line = Text(no_wrap=True, end="")
+        for cell, (_, w, justify) in zip(cells, COLUMNS):
+            w = w or max(1, width - fixed - 2 * PAD)
+            text = cell.copy()
+            text.plain = text.plain.replace("\n", " ")
+            text.truncate(w, overflow="crop")
+            text.align(text.justify or justify, w)
+            line.append(" " * PAD)
+            line.append_text(text)
+            line.append(" " * PAD)
+        segments = line.render(self.app.console)
+        return Strip(segments).crop_extend(0, width, None).apply_style(style)

@@ -54,11 +54,14 @@ class StageBox(Static):
                                    state=STATE_TEXT[state])
 
     def show(self, state: str, current: bool) -> None:
-        self.state = state
-        self.update(self._text(state))
-        for name in STATE_TEXT:
-            self.set_class(name == state, f"-{name}")
-        self.set_class(current, "-current")
+        """Repaint with ``state`` (a no-op when neither it nor ``current`` changed)."""
+        if state != self.state:
+            self.state = state
+            # two lines in a box of fixed height and width: no new layout needed
+            self.update(self._text(state), layout=False)
+        classes = {f"-{name}": name == state for name in STATE_TEXT}
+        classes["-current"] = current
+        self.update_classes(classes)          # one restyle, and none when unchanged
 
 
 class StageMap(Horizontal):
@@ -99,5 +102,7 @@ class StageMap(Horizontal):
             yield StageBox(box_id, label, stage)
 
     def show(self, states: dict[str, str], current_stage: str | None) -> None:
-        for box in self.query(StageBox):
-            box.show(states.get(box.stage, UNTESTED), box.stage == current_stage)
+        """Repaint the boxes whose state or current mark changed."""
+        for box in self.children:
+            if isinstance(box, StageBox):
+                box.show(states.get(box.stage, UNTESTED), box.stage == current_stage)
