@@ -322,3 +322,7 @@ def test_library_search_breaks_ties_on_whole_words():
                         ("230 V noval", "demo-230v-transformer"),
                         ("5 tube table", "demo-5-tube-table")):
         assert rank_sets(query, sets)[0].path.stem == stem, query
+    # 'portable' put the 5-tube table set first (the fuzzy score of 'table' inside it): a
+    # word typed in full now finds the sets that hold it, both portables before any other.
+    top = [s.path.stem for s in rank_sets("portable", sets)[:2]]
+    assert sorted(top) == ["demo-ge-pnp-portable", "demo-si-npn-portable"], top

@@ -75,11 +75,18 @@ def rank_sets(query: str, sets: list[LibrarySet]) -> list[LibrarySet]:
     texts = [s.search_text for s in sets]
     found = process.extract(query, texts, scorer=fuzz.WRatio,
                             processor=utils.default_process, limit=None, score_cutoff=40)
-    # WRatio ties often on short words ('6.3 V console' scored the 230 V set as high as the
-    # 6.3 V console): the whole words in common break the tie, then the file order.
+    # A word typed in full that a set's text holds as a whole word comes first: WRatio
+    # scores 'portable' against '... table set' as high as against '... portable' (the
+    # partial match), and a technician who types a word means that word. Then WRatio; its
+    # ties ('6.3 V console' scored the 230 V set as high as the 6.3 V console) go to the
+    # whole words in common, then the file order.
+    typed = utils.default_process(query).split()
+    whole = {index: sum(1 for word in typed
+                        if word in utils.default_process(texts[index]).split())
+             for _, _, index in found}
     tie = {index: fuzz.token_set_ratio(query, texts[index], processor=utils.default_process)
            for _, _, index in found}
-    found = sorted(found, key=lambda hit: (-hit[1], -tie[hit[2]], hit[2]))
+    found = sorted(found, key=lambda hit: (-whole[hit[2]], -hit[1], -tie[hit[2]], hit[2]))
     return [sets[index] for _, _, index in found]
 
 
