@@ -42,26 +42,6 @@ def synthesise_readings(signature: Signature,
     return out
 
 
-def physics_readings(fault: Fault, demo: DemoSet) -> dict[str, float]:
-    """The readings a fault's model puts out of their band on this set (none without a
-    model, or when the model does not fit the set).
-
-    A signature lists what its writer expected a fault to change; the set's physics may move
-    more. The sweep answers those readings as the broken set would read them, so a walk is
-    never fed a healthy value where the model says the meter reads otherwise; the
-    signature's own readings still come first.
-    """
-    from faultwise.expect.classify import classify
-    from faultwise.walk.evidence import injected
-
-    faulty = injected(demo.profile, fault, demo.expectations)
-    if faulty is None:
-        return {}
-    return {name: e.nominal for name, e in faulty.items()
-            if name in demo.expectations
-            and classify(e.nominal, demo.expectations[name]) != "normal"}
-
-
 def swept_faults(knowledge: Knowledge, symptom: str, family: str) -> list[str]:
     """Faults swept for a pair: reachable, with a signature, naming the symptom in their priors."""
     return sorted(f for f in knowledge.faults_for(symptom, family)
@@ -121,8 +101,7 @@ def walk_signature(knowledge: Knowledge, fault_id: str, symptom: str, demo: Demo
     from faultwise.walk.scripted import auto_walk
 
     fault = knowledge.node(fault_id)
-    readings = {**physics_readings(fault, demo),
-                **synthesise_readings(fault.signature, demo.expectations)}
+    readings = synthesise_readings(fault.signature, demo.expectations)
     kwargs = {"expectations": demo.expectations, "counts": counts}
     if order is not None:
         kwargs["order"] = order

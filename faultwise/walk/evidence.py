@@ -7,13 +7,10 @@ the first has already read it away, and the walk spends a check on it again. So 
 answered check is compared with what each fault predicts for it, and a fault the answers
 contradict keeps only a small part of its weight:
 
-- a reading check (``expect:``): the fault's signature gives a class (or a number,
-  classified against the set's band), and a fault that carries a ``model:`` fitting the set
-  gets the class its injected physics reads (:func:`faultwise.expect.fault_physics.inject`,
-  against the healthy band, the walk's own classification). Where the two differ both count
-  as predicted: the signature is written for a typical bench case, the model for one
-  severity (a leaky coupling capacitor at +2 V on the grid keeps the cathode in its band;
-  a worse leak takes it high);
+- a reading check (``expect:``): the fault's signature gives the class (or a number,
+  classified against the set's band); where the signature is silent and the fault carries a
+  ``model:``, the set's own physics gives it (:func:`faultwise.expect.fault_physics.inject`,
+  classified against the healthy band, the same classification the walk uses);
 - an observation check: the fault's signature gives the choice; silent means no prediction.
 
 The likelihood of the answers given a fault is the product over answered checks of
@@ -50,38 +47,47 @@ class Evidence:
         self.knowledge = knowledge
         self.profile = profile
         self.expectations = expectations
-        self._predicted: dict[tuple[str, str], frozenset[str] | None] = {}
+        self._physics: dict[str, Mapping | None] = {}
+        self._predicted: dict[tuple[str, str], str | None] = {}
 
     def _faulty(self, fault: Fault) -> Mapping | None:
-        return injected(self.profile, fault, self.expectations)
+        if fault.id not in self._physics:
+            faulty = None
+            if fault.model:
+                from faultwise.expect.fault_physics import inject
 
-    def predicted(self, fault_id: str, check_id: str) -> frozenset[str] | None:
-        """The outcomes the fault predicts for the check on this set, or None (no prediction)."""
+                try:
+                    faulty = inject(self.profile, fault.model, self.expectations)
+                except (ValueError, KeyError, ArithmeticError):
+                    faulty = None      # a model that does not fit this set predicts nothing
+            self._physics[fault.id] = faulty
+        return self._physics[fault.id]
+
+    def predicted(self, fault_id: str, check_id: str) -> str | None:
+        """The outcome the fault predicts for the check on this set, or None (no prediction)."""
         key = (fault_id, check_id)
         if key not in self._predicted:
             self._predicted[key] = self._predict(self.knowledge.nodes.get(fault_id),
                                                  self.knowledge.nodes.get(check_id))
         return self._predicted[key]
 
-    def _predict(self, fault: Node | None, check: Node | None) -> frozenset[str] | None:
+    def _predict(self, fault: Node | None, check: Node | None) -> str | None:
         if not isinstance(fault, Fault) or not isinstance(check, Check):
             return None
         sig = fault.signature
         if not check.is_measurement:
-            said = sig.observations.get(check.id)
-            return frozenset({said}) if said is not None else None
+            return sig.observations.get(check.id)
         name = check.expect
         band = self.expectations.get(name)
-        said = set()
         spec = sig.readings.get(name)
-        if isinstance(spec, str) and spec in _CLASSES:
-            said.add(spec)
-        elif isinstance(spec, (int, float)) and not isinstance(spec, bool) and band is not None:
-            said.add(classify(float(spec), band))
+        if isinstance(spec, str):
+            return spec if spec in _CLASSES else None
+        if isinstance(spec, (int, float)) and not isinstance(spec, bool) and band is not None:
+            return classify(float(spec), band)
         faulty = self._faulty(fault)
-        if faulty is not None and band is not None and name in faulty:
-            said.add(classify(faulty[name].nominal, band))
-        return frozenset(said) or None
+        if faulty is None or band is None or name not in faulty:
+            return None
+        return classify(faulty[name].nominal, band)
 
     def weights(self, faults: Iterable[str], answers: Mapping[str, str]) -> dict[str, float]:
         """Likelihood of the answers (check id -> outcome) for each fault (see the module doc)."""
@@ -98,30 +104,6 @@ class Evidence:
                         else getattr(check, "normal", "normal")
                     w *= 1.0 if outcome == normal else UNEXPLAINED
                 else:
-                    w *= AGREE if outcome in said else CONTRADICTED
+                    w *= AGREE if said == outcome else CONTRADICTED
             out[f] = w
         return out
-
-
-_INJECTED: dict[tuple, tuple] = {}
-
-
-def injected(profile: Profile, fault: Fault, expectations: Mapping) -> Mapping | None:
-    """The set's expectations with the fault's model injected, or None (no model, or one
-    that does not fit the set); kept per profile object (a sweep or a bench walk holds one
-    for its whole life; the entry keeps it, so its identity is not reused). A profile is read
-    once per case or sweep, with one tube table, so one object has one set of bands."""
-    if not fault.model:
-        return None
-    key = (id(profile), len(expectations), fault.id, repr(fault.model))
-    if key not in _INJECTED:
-        from faultwise.expect.fault_physics import inject
-
-        if len(_INJECTED) > 20_000:
-            _INJECTED.clear()
-        try:
-            faulty = inject(profile, fault.model, expectations)
-        except (ValueError, KeyError, ArithmeticError):
-            faulty = None      # a model that does not fit this set predicts nothing
-        _INJECTED[key] = (profile, faulty)
-    return _INJECTED[key][1]
