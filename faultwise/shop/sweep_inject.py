@@ -281,17 +281,8 @@ def check_outcome(check: Check, fault: Fault | None, readings: Mapping | None,
     return fault.signature.observations.get(check.id, check.normal)
 
 
-def pair_faults(knowledge: Knowledge, demo: DemoSet, symptom: str) -> list[str]:
-    """Every fault the complaint's walk weighs on this set: reachable, naming the complaint in
-    its priors, and applying to the set (family and ``when``)."""
-    from faultwise.graph.applicability import node_applies
-
-    return [f for f in sorted(knowledge.faults_for(symptom, demo.family))
-            if symptom in knowledge.nodes[f].priors
-            and node_applies(knowledge.nodes[f], demo.profile, demo.expectations)]
-
-
-def set_problem(knowledge: Knowledge, demo: DemoSet, symptom: str, fault_ids: Sequence[str], readings_by: Mapping) -> tuple[Problem, dict]:
+def set_problem(knowledge: Knowledge, demo: DemoSet, symptom: str, fault_ids: Sequence[str],
+                readings_by: Mapping) -> tuple[Problem, dict]:
     """The optimal-order problem of one complaint on one set (weights from the walk's ranking).
 
     ``readings_by``: per fault, its readings (the injected physics for a modelled fault, the
@@ -331,7 +322,7 @@ def optimal_rows(knowledge: Knowledge, demos: Sequence[DemoSet], walks: Sequence
     walked and judged on its signature, as the plain sweep does)."""
     from faultwise.shop.optimal_order import bound
     from faultwise.shop.sweep import entropy_bits, weighted_mean
-    from faultwise.shop.sweep_walk import synthesise_readings
+    from faultwise.shop.sweep_walk import pair_faults, synthesise_readings
 
     by_set = {d.name: d for d in demos}
     groups: dict = {}
@@ -345,7 +336,7 @@ def optimal_rows(knowledge: Knowledge, demos: Sequence[DemoSet], walks: Sequence
             physics = faulty_by_set[set_name]
             ws = {w.fault: w for w in injected}
             readings_by = {}
-            for f in pair_faults(knowledge, demo, sym):
+            for f in pair_faults(knowledge, sym, demo):
                 node = knowledge.nodes[f]
                 if f in physics:
                     readings_by[f] = {n: e.nominal for n, e in physics[f].items()}

@@ -80,6 +80,13 @@ def sweep_targets(knowledge: Knowledge, *, families: Iterable[str] = FAMILIES,
     return targets, unreachable
 
 
+def pair_faults(knowledge: Knowledge, symptom: str, demo: DemoSet) -> list[str]:
+    """Every fault the complaint's walk weighs on this set: swept for the pair and applying to
+    the set (family and ``when``)."""
+    return [f for f in swept_faults(knowledge, symptom, demo.family)
+            if fault_applies_on(knowledge, f, demo)]
+
+
 def fault_applies_on(knowledge: Knowledge, fault_id: str, demo: DemoSet) -> bool:
     """Whether the fault applies on this demo set (family and ``when``)."""
     from faultwise.graph.applicability import node_applies

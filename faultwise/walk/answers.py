@@ -51,11 +51,7 @@ def load_answers(path: str | os.PathLike[str], knowledge: Knowledge,
                              line=line_of(data, key), key=str(key),
                              hint="use only readings and observations")
     readings: dict[str, Any] = {}
-    raw = data.get("readings") or {}
-    if not isinstance(raw, dict):
-        raise InputError("'readings' must be a mapping", file=file,
-                         line=line_of(data, "readings"), key="readings",
-                         hint="write 'expectation.name: value' lines under it")
+    raw = _section(data, "readings", file, "write 'expectation.name: value' lines under it")
     for name, value in raw.items():
         line = line_of(raw, name)
         if name not in expectations:
@@ -74,11 +70,7 @@ def load_answers(path: str | os.PathLike[str], knowledge: Knowledge,
                                  hint=exc.hint) from None
         readings[str(name)] = value.strip() if isinstance(value, str) else value
     observations: dict[str, str] = {}
-    raw = data.get("observations") or {}
-    if not isinstance(raw, dict):
-        raise InputError("'observations' must be a mapping", file=file,
-                         line=line_of(data, "observations"), key="observations",
-                         hint="write 'check-id: choice' lines under it")
+    raw = _section(data, "observations", file, "write 'check-id: choice' lines under it")
     for check_id, choice in raw.items():
         line = line_of(raw, check_id)
         node = knowledge.nodes.get(check_id)
@@ -93,3 +85,12 @@ def load_answers(path: str | os.PathLike[str], knowledge: Knowledge,
                              key=str(check_id), hint="use one of " + ", ".join(node.choices))
         observations[str(check_id)] = choice
     return readings, observations
+
+
+def _section(data: dict, key: str, file: str, hint: str) -> dict:
+    """One section of the answers file (absent or empty: nothing); not a mapping: located error."""
+    raw = data.get(key) or {}
+    if not isinstance(raw, dict):
+        raise InputError(f"'{key}' must be a mapping", file=file, line=line_of(data, key),
+                         key=key, hint=hint)
+    return raw
