@@ -149,6 +149,25 @@ async def test_returned_unrepaired_is_not_asked(make_app, cases_dir, bands):
         assert app.screen.id == "conclusion" and app.focused.id == "close-minutes"
 
 
+async def test_minutes_typed_after_the_outcome_replace_the_prefilled_ones(make_app, cases_dir,
+                                                                          bands):
+    """At the bench the tech presses the outcome's number, then types the minutes: the typed
+    number replaces the prefilled elapsed minutes (a prefilled 1 with 25 typed was 125)."""
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await walk_to_capacitor_fault(pilot, bands)
+        await verify_low_then_leakage(pilot, bands)
+        await pilot.press("2")                       # returned unrepaired: no confirmation
+        await pilot.pause()
+        minutes = app.screen.query_one("#close-minutes")
+        assert app.focused is minutes and minutes.value != ""
+        await type_text(pilot, "25")
+        await pilot.press("enter")
+        await pilot.pause()
+        data = read_case(cases_dir)
+        assert (data["status"], data["minutes"]) == ("closed", 25)
+
+
 async def test_minutes_prefilled_and_checked(workspace, cases_dir, bands):
     clock = StepClock()
     app = clocked_app(workspace, clock)
