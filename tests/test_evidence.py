@@ -118,3 +118,22 @@ def test_the_walk_uses_the_answers(bundled):
                                         likelihood=like)
     assert [(r.target, round(r.p, 9)) for r in ex.ranked] == \
         [(r.target, round(r.p, 9)) for r in expected]
+
+
+def test_warm_computes_the_physics_ahead(bundled, monkeypatch):
+    # The bench warms a walk's evidence in a worker as the walk opens: afterwards a reading
+    # answered at the bench is weighed without computing any fault's physics again.
+    import faultwise.expect.fault_physics as physics
+
+    k, _ = bundled
+    ev = _evidence(bundled, "demo-5-tube-table.yaml")
+    faults = k.faults_for("weak-reception", "series-string")
+    calls = []
+    real = physics.inject
+    monkeypatch.setattr(physics, "inject", lambda *a, **kw: calls.append(1) or real(*a, **kw))
+    ev.warm(faults)
+    modelled = [f for f in faults if k.nodes[f].model]
+    assert len(calls) == len(modelled) > 10
+    calls.clear()
+    ev.weights(faults, {"if.if-plate-weak": "normal", "detector.avc-check": "low"})
+    assert calls == []

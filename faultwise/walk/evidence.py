@@ -63,6 +63,15 @@ class Evidence:
             self._physics[fault.id] = faulty
         return self._physics[fault.id]
 
+    def warm(self, faults: Iterable[str]) -> None:
+        """Compute these faults' physics now (the bench does it in a worker as a walk opens,
+        so no key press waits for it: about 1 ms a fault). Each result is stored by one
+        assignment, so a walk reading meanwhile at worst computes one a second time."""
+        for fault_id in faults:
+            node = self.knowledge.nodes.get(fault_id)
+            if isinstance(node, Fault):
+                self._faulty(node)
+
     def predicted(self, fault_id: str, check_id: str) -> str | None:
         """The outcome the fault predicts for the check on this set, or None (no prediction)."""
         key = (fault_id, check_id)

@@ -104,13 +104,19 @@ class WalkScreen(MeterKeys, CaseScreen):
         self._context_line = self.query_one("#walk-context", Static)
         self.query_one("#guidance").display = self.guidance_open
         self.show_prompt()
-        # The first answer ranks the suspects; the family's graph it needs is built once per
-        # run (about 0.1 s with the networkx import): build it now, beside the first check,
-        # not after the key press. The knowledge caches each graph by one assignment of the
-        # finished object, so the walk reading it meanwhile at worst builds it a second time.
+        # The first answers rank the suspects: the family's graph they need is built once per
+        # run (about 0.1 s with the networkx import), and the answers are weighed against each
+        # fault's physics (about 1 ms a fault): do both now, beside the first check, not after
+        # a key press. Each is cached by one assignment of a finished object, so the walk
+        # reading meanwhile at worst computes one a second time.
         walk = self.walk
-        self.run_worker(lambda: fault_probabilities(walk.knowledge, walk.symptom, walk.family),
-                        thread=True, exit_on_error=False, group="warm-up", name="warm-up")
+
+        def warm_up() -> None:
+            fault_probabilities(walk.knowledge, walk.symptom, walk.family)
+            walk.evidence.warm(walk.knowledge.faults_for(walk.symptom, walk.family))
+
+        self.run_worker(warm_up, thread=True, exit_on_error=False, group="warm-up",
+                        name="warm-up")
 
     # ------------------------------------------------------------------ drawing
 
