@@ -78,3 +78,24 @@ def test_open_bias_reads_absent_healthy_reads_normal(stage):
         if stage == "complementary":
             mid = exp["bias.output.midpoint_v"]
             assert mid.low < p.battery_v / 2 < mid.high
+
+
+@pytest.mark.parametrize("stage", ["push-pull-transformer", "complementary"])
+def test_an_underbiased_pair_reads_low_not_normal(stage):
+    """A pair idling at a tenth of its design current crosses over with a notch (Oliver's
+    condition, about Vt across each emitter resistor, HP Journal 1971, from memory): the
+    worst-case corners of a plain divider reach near zero, but the band must not call that
+    normal. The floor is Vt / 4 across the emitter resistor, at most half the nominal."""
+    from faultwise.calc.push_pull import THERMAL_V
+    from faultwise.expect.output_pair import UNDERBIAS_FRACTION
+
+    for name in ("demo-ge-pnp-portable.yaml", "demo-si-npn-portable.yaml"):
+        p = replace(load_profile(SETS / name), output_stage=stage)
+        exp = expect(p)
+        idle, ic = exp["bias.output.idle_ma"], exp["bias.output.ic_ma"]
+        assert classify(idle.nominal / 10.0, idle) in ("low", "absent")
+        assert classify(ic.nominal / 10.0, ic) in ("low", "absent")
+        re = p.transistor("output").bias.emitter_ohm
+        floor = min(UNDERBIAS_FRACTION * THERMAL_V / re * 1000.0, ic.nominal / 2.0)
+        assert ic.low == pytest.approx(floor)
+        assert "crossover" in idle.basis and "Vt / 4" in idle.basis

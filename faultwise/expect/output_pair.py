@@ -34,7 +34,13 @@ DRIVER_MA = 2.0
 """Driver collector current of a complementary stage when the profile gives no load: about
 2 mA (trade); the load resistor is sized for it."""
 ABSENT_FRACTION = 0.5
-"""A reading below half the band's low end counts as absent (no idle current at all)."""
+"""A reading below half the worst-case low end counts as absent (no idle current at all)."""
+UNDERBIAS_FRACTION = 0.25
+"""A class-B pair crosses over most smoothly with about the thermal voltage Vt (26 mV) across
+each emitter resistor at idle (B. M. Oliver, 1971, from memory); with under a quarter of that
+the crossover notch is audible on quiet passages (common practice, no source). A working set
+idles above that floor, however far the worst-case corners of a plain resistor divider reach
+(its exponential law puts the low corner near zero): below it the pair reads low."""
 
 
 def is_pair(profile: Profile) -> bool:
@@ -115,6 +121,26 @@ def faulty_pair_readings(ctx: Context, **changes) -> dict[str, float]:
     return out
 
 
+def _underbias_floor(ic_ma: float, emitter_ohm: float) -> tuple[float, str]:
+    """(the least idle current per transistor of a working pair, mA; the arithmetic shown):
+    a quarter of Vt across the emitter resistor, never above half the nominal."""
+    from faultwise.calc.push_pull import THERMAL_V
+
+    oliver = UNDERBIAS_FRACTION * THERMAL_V / max(emitter_ohm, 0.1) * 1000.0
+    floor = min(oliver, 0.5 * ic_ma)
+    text = (f"; a working pair idles at least {_n(floor)} mA a transistor (Vt / 4 across its "
+            f"{_n(emitter_ohm)} ohm emitter resistor = {_n(oliver)} mA, at most half the nominal; "
+            "less is underbiased: crossover distortion)")
+    return floor, text
+
+
+def _floored(b: Band, floor: float | None, text: str) -> tuple[float, str]:
+    """The band's low end raised to the underbias floor where the corners reach below it."""
+    if floor is None or floor <= b.low:
+        return b.low, ""
+    return floor, text
+
+
 def _half(b: Band) -> Band:
     from faultwise.calc.tolerance import Band
 
@@ -148,11 +174,16 @@ def add_output_pair(ctx: Context) -> tuple[float, float, float] | None:
     if comp:
         rows["midpoint_v"] = ("Output midpoint (emitters' junction) to common", "midpoint_v", "V",
                               f"Vcc / 2 = {_n(nom.midpoint_v)} V")
+    floor_ic, floor_text = _underbias_floor(nom.ic_ma, tr.bias.emitter_ohm)
+    per_pair = 1.0 if comp else 2.0
+    floors = {"idle_ma": floor_ic * per_pair, "ic_ma": floor_ic,
+              "ve_v": floor_ic / 1000.0 * tr.bias.emitter_ohm}
     for name, (title, attr, unit, tail) in rows.items():
         b = bands[attr]
-        ctx.add(f"bias.output.{name}", title, "audio", b.nominal, b.low, b.high, unit,
-                f"{head}; {tail}; {band}; none at all means the bias network is open or shorted "
-                "(crossover distortion) or the pair is open", keys=tuple(keys),
+        low, text = _floored(b, floors.get(attr), floor_text)
+        ctx.add(f"bias.output.{name}", title, "audio", b.nominal, low, b.high, unit,
+                f"{head}; {tail}; {band}{text}; none at all means the bias network is open or "
+                "shorted (crossover distortion) or the pair is open", keys=tuple(keys),
                 absent=ABSENT_FRACTION * b.low)
     ic, ve = bands["ic_ma"], bands["ve_v"]
     vcc = sp["vcc_v"]
@@ -164,8 +195,9 @@ def add_output_pair(ctx: Context) -> tuple[float, float, float] | None:
            "vc_v": ("collector", "V", bands["midpoint_v"] if comp else vcc,
                     "Vc = the midpoint" if comp else "Vc = the supply through half the primary")}
     for field, (what, unit, b, tail) in per.items():
+        low, text = _floored(b, floors.get(field), floor_text)
         ctx.add(f"bias.output.{field}", f"Output {tr.material} {tr.polarity.upper()} {what}",
-                "audio", b.nominal, b.low, b.high, unit, f"{head}; {tail}; {band}",
+                "audio", b.nominal, low, b.high, unit, f"{head}; {tail}; {band}{text}",
                 keys=tuple(keys), absent=ABSENT_FRACTION * b.low)
     idle = bands["idle_ma"]
     return idle.nominal, idle.low, idle.high

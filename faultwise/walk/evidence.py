@@ -7,10 +7,11 @@ the first has already read it away, and the walk spends a check on it again. So 
 answered check is compared with what each fault predicts for it, and a fault the answers
 contradict keeps only a small part of its weight:
 
-- a reading check (``expect:``): the fault's signature gives the class (or a number,
-  classified against the set's band); where the signature is silent and the fault carries a
-  ``model:``, the set's own physics gives it (:func:`faultwise.expect.fault_physics.inject`,
-  classified against the healthy band, the same classification the walk uses);
+- a reading check (``expect:``): a fault that carries a ``model:`` fitting the set predicts
+  what the set's own physics gives (:func:`faultwise.expect.fault_physics.inject`, classified
+  against the healthy band, the same classification the walk uses): the set on the bench,
+  not a general signature, is the oracle; otherwise its signature gives the class (or a
+  number, classified against the set's band);
 - an observation check: the fault's signature gives the choice; silent means no prediction.
 
 The likelihood of the answers given a fault is the product over answered checks of
@@ -88,15 +89,15 @@ class Evidence:
             return sig.observations.get(check.id)
         name = check.expect
         band = self.expectations.get(name)
+        faulty = self._faulty(fault)
+        if faulty is not None and band is not None and name in faulty:
+            return classify(faulty[name].nominal, band)
         spec = sig.readings.get(name)
         if isinstance(spec, str):
             return spec if spec in _CLASSES else None
         if isinstance(spec, (int, float)) and not isinstance(spec, bool) and band is not None:
             return classify(float(spec), band)
-        faulty = self._faulty(fault)
-        if faulty is None or band is None or name not in faulty:
-            return None
-        return classify(faulty[name].nominal, band)
+        return None
 
     def weights(self, faults: Iterable[str], answers: Mapping[str, str]) -> dict[str, float]:
         """Likelihood of the answers (check id -> outcome) for each fault (see the module doc)."""
