@@ -97,5 +97,6 @@ def test_an_underbiased_pair_reads_low_not_normal(stage):
         assert classify(ic.nominal / 10.0, ic) in ("low", "absent")
         re = p.transistor("output").bias.emitter_ohm
         floor = min(UNDERBIAS_FRACTION * THERMAL_V / re * 1000.0, ic.nominal / 2.0)
-        assert ic.low == pytest.approx(floor)
-        assert "crossover" in idle.basis and "Vt / 4" in idle.basis
+        assert ic.low >= floor * (1 - 1e-9)
+        if ic.low == pytest.approx(floor):          # the floor, not the corners, set it
+            assert "crossover" in idle.basis and "Vt / 4" in idle.basis
