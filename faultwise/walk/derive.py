@@ -291,9 +291,13 @@ class WalkDerivation:
         if answers and self.evidence is not None:
             faults = self.knowledge.faults_under(frame.suspects, self.family)
             likelihood = self.evidence.weights(faults, answers)
+        reach = None
+        if self.evidence is not None:
+            evidence, family = self.evidence, self.family
+            reach = lambda fault, target: evidence.reach(fault, target, family)  # noqa: E731
         ranked = rank_investigations(self.knowledge, frame.suspects, self.symptom, self.family,
                                      frame.cleared, self.counts, applies=self._applies,
-                                     likelihood=likelihood)
+                                     likelihood=likelihood, reach=reach)
         if self.order is not None:
             ranked = list(self.order(ranked, self.knowledge.node(frame.suspects)))
         return ranked

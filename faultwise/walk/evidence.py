@@ -21,6 +21,14 @@ changes, but not always everything: a weak converter need not pull the AVC line 
 fault is ever ruled out: a contradicted one only moves back in the order, because nominal
 predictions meet real parts with tolerances, and the graph's routes, not the weights,
 decide every conclusion. Physics uses the bundled tube table (only the class matters here).
+
+The same predictions say where a fault would be found: an investigation's check, asked of a
+set with this fault, gives the predicted outcome, and that outcome routes somewhere. A fault
+the check is predicted to clear (or to route away from it) is not found by that
+investigation, whatever sits under its routes (:meth:`Evidence.reach`): the leaky coupling
+capacitor sits under the output cathode reading's "high" route, but moves the cathode only
+within its band, so that reading's weight in the order is the faults it does move. With no
+prediction the investigation keeps the fault's whole weight.
 """
 
 from __future__ import annotations
@@ -50,6 +58,7 @@ class Evidence:
         self.expectations = expectations
         self._physics: dict[str, Mapping | None] = {}
         self._predicted: dict[tuple[str, str], str | None] = {}
+        self._reach: dict[tuple[str, str, str], float] = {}
 
     def _faulty(self, fault: Fault) -> Mapping | None:
         if fault.id not in self._physics:
@@ -98,6 +107,30 @@ class Evidence:
         if isinstance(spec, (int, float)) and not isinstance(spec, bool) and band is not None:
             return classify(float(spec), band)
         return None
+
+    def reach(self, fault_id: str, target: str, family: str) -> float:
+        """How much of a fault's weight an investigation of ``target`` carries: 1 when the
+        target's predicted outcome for the fault routes toward it (or there is no
+        prediction, or the target is not a check), ``CONTRADICTED`` when it routes away."""
+        key = (fault_id, target, family)
+        if key not in self._reach:
+            self._reach[key] = self._reach_of(fault_id, target, family)
+        return self._reach[key]
+
+    def _reach_of(self, fault_id: str, target: str, family: str) -> float:
+        from faultwise.graph.nodes import CLEARED
+
+        check = self.knowledge.nodes.get(target)
+        if not isinstance(check, Check):
+            return 1.0
+        said = self.predicted(fault_id, target)
+        if said is None:
+            return 1.0
+        route = check.outcomes.get(said, CLEARED)
+        if route == fault_id or (route in self.knowledge.nodes
+                                 and fault_id in self.knowledge.faults_under(route, family)):
+            return AGREE
+        return CONTRADICTED
 
     def weights(self, faults: Iterable[str], answers: Mapping[str, str]) -> dict[str, float]:
         """Likelihood of the answers (check id -> outcome) for each fault (see the module doc)."""

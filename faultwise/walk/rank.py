@@ -84,6 +84,7 @@ def fault_probabilities(knowledge: Knowledge, symptom: str, family: str,
 
 
 Applies = Callable[[str], bool]
+Reach = Callable[[str, str], float]
 
 
 def target_applies(knowledge: Knowledge, target: str, family: str, applies: Applies | None = None,
@@ -132,13 +133,18 @@ def _ratio(p: float, cost: float) -> float:
 def rank_investigations(knowledge: Knowledge, suspects_id: str, symptom: str, family: str,
                         cleared: Iterable[str] = (), counts: Mapping[str, int] | None = None,
                         applies: Applies | None = None,
-                        likelihood: Mapping[str, float] | None = None) -> list[Ranked]:
+                        likelihood: Mapping[str, float] | None = None,
+                        reach: Reach | None = None) -> list[Ranked]:
     """The not-cleared investigations of a suspects list, best p/c first, ties by written order.
 
     ``applies(node_id)``: drop investigations whose target does not apply to the set and sum
     each one's probability over the faults under it that apply (None: the family decides).
     ``likelihood``: per fault, how well the answers so far fit it
     (:mod:`faultwise.walk.evidence`); each fault's probability is multiplied by it (missing: 1).
+    ``reach(fault, target)``: how much of a fault's weight the investigation of ``target``
+    carries (the check is predicted to lead to the fault, or to clear it:
+    :meth:`faultwise.walk.evidence.Evidence.reach`); None: all of it. An investigation's p is
+    then the chance that it finds the fault, the p of Heckerman's p/c rule.
     """
     node = knowledge.node(suspects_id)
     if not isinstance(node, Suspects):
@@ -158,7 +164,11 @@ def rank_investigations(knowledge: Knowledge, suspects_id: str, symptom: str, fa
         faults = knowledge.faults_under(inv.target, family)
         if applies is not None:
             faults = frozenset(f for f in faults if applies(f))
-        rows.append((inv, sum(probs.get(f, 0.0) for f in faults), faults))
+        if reach is None:
+            p = sum(probs.get(f, 0.0) for f in faults)
+        else:
+            p = sum(probs.get(f, 0.0) * reach(f, inv.target) for f in faults)
+        rows.append((inv, p, faults))
     total = sum(p for _, p, _ in rows)
     ranked = []
     for inv, p, faults in rows:
