@@ -152,6 +152,10 @@ def optimal_minutes(problem: Problem, *, restrict_singles: bool = False,
             candidates.append((c, cost, groups))
         if single_best is not None:
             candidates.append(single_best[1:])
+        # the likeliest good check first: a low ``best`` early prunes the rest (exact: every
+        # candidate is still weighed, only in another order)
+        candidates.sort(key=lambda cand: cand[1] / max(
+            1e-9, 1.0 - max(weight(g) for g in cand[2]) / total))
         for c, cost, groups in candidates:
             if cost >= best:
                 continue

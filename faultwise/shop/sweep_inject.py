@@ -144,10 +144,11 @@ class InjectReport:
 
 def _walk(knowledge: Knowledge, demo: DemoSet, symptom: str, readings: Mapping,
           observations: Mapping) -> WalkResult:
+    from faultwise.shop.sweep_walk import set_evidence
     from faultwise.walk.scripted import auto_walk
 
     return auto_walk(knowledge, demo.profile, symptom, readings, observations,
-                     expectations=demo.expectations)
+                     expectations=demo.expectations, evidence=set_evidence(knowledge, demo))
 
 
 def _diag_path(result: WalkResult) -> tuple:

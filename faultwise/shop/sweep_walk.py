@@ -22,6 +22,7 @@ from faultwise.shop.sweep_results import DemoSet, PathStep, SweepWalk, Unreachab
 if TYPE_CHECKING:
     from faultwise.expect.context import Expected
     from faultwise.graph.knowledge import Knowledge
+    from faultwise.walk.evidence import Evidence
 
 
 def synthesise_readings(signature: Signature,
@@ -101,6 +102,25 @@ def sets_for_fault(knowledge: Knowledge, fault_id: str, demos: Sequence[DemoSet]
     return fitting if all_sets else fitting[:1]
 
 
+_EVIDENCE: dict[tuple[int, int], tuple] = {}
+
+
+def set_evidence(knowledge: Knowledge, demo: DemoSet) -> Evidence:
+    """One :class:`~faultwise.walk.evidence.Evidence` per knowledge and set, shared by every
+    walk the sweeps make of that set (its predictions do not depend on the complaint)."""
+    from faultwise.walk.evidence import Evidence
+
+    key = (id(knowledge), id(demo.profile))
+    hit = _EVIDENCE.get(key)
+    if hit is not None and hit[0] is knowledge and hit[1] is demo.profile:
+        return hit[2]
+    if len(_EVIDENCE) > 64:
+        _EVIDENCE.clear()
+    evidence = Evidence(knowledge, demo.profile, demo.expectations)
+    _EVIDENCE[key] = (knowledge, demo.profile, evidence)
+    return evidence
+
+
 def walk_signature(knowledge: Knowledge, fault_id: str, symptom: str, demo: DemoSet, *,
                    order: OrderFn | None = None,
                    counts: Mapping[str, int] | None = None) -> SweepWalk:
@@ -109,7 +129,8 @@ def walk_signature(knowledge: Knowledge, fault_id: str, symptom: str, demo: Demo
 
     fault = knowledge.node(fault_id)
     readings = synthesise_readings(fault.signature, demo.expectations)
-    kwargs = {"expectations": demo.expectations, "counts": counts}
+    kwargs = {"expectations": demo.expectations, "counts": counts,
+              "evidence": set_evidence(knowledge, demo)}
     if order is not None:
         kwargs["order"] = order
     try:

@@ -20,6 +20,7 @@ if TYPE_CHECKING:
     from faultwise.graph.knowledge import Knowledge
     from faultwise.graph.nodes import Suspects
     from faultwise.profile.model import Profile
+    from faultwise.walk.evidence import Evidence
     from faultwise.walk.rank import Ranked
 
 
@@ -127,17 +128,18 @@ def auto_walk(knowledge: Knowledge, profile: Profile, symptom: str,
               counts: Mapping[str, int] | None = None, through: bool = False,
               clock: Callable[[], datetime] | None = None,
               order: Callable[[list[Ranked], Suspects], list[Ranked]] | None = None,
-              missing: str = "normal") -> WalkResult:
+              missing: str = "normal", evidence: Evidence | None = None) -> WalkResult:
     """Walk with readings by expectation name and observations by check id.
 
     ``missing`` says what a check without an answer gets (see :func:`auto_answer`); with
     ``"stop"`` the result's ``missing`` holds the MissingAnswerError and the walk stands
-    at that check."""
+    at that check. ``evidence``: the set's fault predictions, shared by many walks of one set
+    (see :class:`~faultwise.walk.state.Walk`)."""
     from faultwise.core.errors import MissingAnswerError
 
     stopped = None
     walk = Walk(knowledge, profile, symptom, expectations=expectations, counts=counts,
-                clock=clock, order=order)
+                clock=clock, order=order, evidence=evidence)
     limit = 4 * len(knowledge.nodes) + 10
     for _ in range(limit):
         prompt = walk.prompt()

@@ -48,6 +48,7 @@ if TYPE_CHECKING:
     from faultwise.graph.knowledge import Knowledge
     from faultwise.graph.nodes import Suspects
     from faultwise.profile.model import Profile
+    from faultwise.walk.evidence import Evidence
     from faultwise.walk.rank import Ranked
 
 
@@ -64,11 +65,13 @@ class Walk(WalkView):
                  expectations: Mapping[str, Expected] | None = None,
                  counts: Mapping[str, int] | None = None,
                  clock: Callable[[], datetime] | None = None,
-                 order: Callable[[list[Ranked], Suspects], list[Ranked]] | None = None) -> None:
+                 order: Callable[[list[Ranked], Suspects], list[Ranked]] | None = None,
+                 evidence: Evidence | None = None) -> None:
         """``order(ranked, suspects) -> ranked`` re-orders a suspects list (None: p/c order).
 
         Only the sweep's baselines pass it (written order, speaker back, random), to measure
-        what the p/c ordering is worth.
+        what the p/c ordering is worth. ``evidence``: the set's fault predictions, shared by
+        the sweeps' many walks of one set (None: this walk computes its own).
         """
         self.knowledge = knowledge
         self.order = order
@@ -90,9 +93,11 @@ class Walk(WalkView):
         from faultwise.graph.applicability import applies_predicate
 
         self._applies = applies_predicate(knowledge, profile, self.expectations)
-        from faultwise.walk.evidence import Evidence
+        if evidence is None:
+            from faultwise.walk.evidence import Evidence
 
-        self.evidence = Evidence(knowledge, profile, self.expectations)
+            evidence = Evidence(knowledge, profile, self.expectations)
+        self.evidence = evidence
         self.counts = dict(counts if counts is not None
                            else knowledge.learned.pair(symptom, self.family))
         self.clock = clock or _utc_now
