@@ -113,9 +113,9 @@ def test_the_walk_uses_the_answers(bundled):
     faults = k.faults_under(frame.suspects, d.family)
     like = w.evidence.weights(faults, w._state.memory)
     assert min(like.values()) < 1.0        # some fault predicted a low AVC line
-    expected = rank.rank_investigations(k, frame.suspects, "weak-reception", d.family,
-                                        frame.cleared, {}, applies=w._applies,
-                                        likelihood=like)
+    expected = rank.rank_investigations(
+        k, frame.suspects, "weak-reception", d.family, frame.cleared, {}, applies=w._applies,
+        likelihood=like, reach=lambda f, t: w.evidence.reach(f, t, d.family))
     assert [(r.target, round(r.p, 9)) for r in ex.ranked] == \
         [(r.target, round(r.p, 9)) for r in expected]
 
@@ -137,3 +137,27 @@ def test_warm_computes_the_physics_ahead(bundled, monkeypatch):
     calls.clear()
     ev.weights(faults, {"if.if-plate-weak": "normal", "detector.avc-check": "low"})
     assert calls == []
+
+
+def test_an_investigation_carries_only_the_faults_its_check_would_find(bundled):
+    # Physics (the set's own chart engine): a leaky coupling capacitor puts a couple of volts
+    # on the output grid of a cathode-biased output tube, and the cathode resistor's feedback
+    # holds the cathode within its band (the stage's current rises by about gm Rk / (1 + gm Rk)
+    # of the grid's shift; textbook cathode degeneration). So the cathode reading does not
+    # find it and carries a tenth of its weight; the output grid reading does, and ranks
+    # above the cathode reading in the distortion list (Heckerman 1995: p is the chance the
+    # step finds the fault).
+    from faultwise.walk.evidence import CONTRADICTED, Evidence
+
+    k, demos = bundled
+    d = demos["demo-5-tube-table.yaml"]
+    ev = Evidence(k, d.profile, d.expectations)
+    assert ev.predicted("audio.leaky-coupling-cap", "audio.output-cathode") == "normal"
+    assert ev.reach("audio.leaky-coupling-cap", "audio.output-cathode", d.family) == CONTRADICTED
+    assert ev.predicted("audio.leaky-coupling-cap", "audio.output-grid-v") == "high"
+    assert ev.reach("audio.leaky-coupling-cap", "audio.output-grid-v", d.family) == 1.0
+    ranked = rank.rank_investigations(
+        k, "audio.distortion-suspects", "distorted-audio", d.family, counts={},
+        reach=lambda f, t: ev.reach(f, t, d.family))
+    order = [r.target for r in ranked]
+    assert order.index("audio.output-grid-v") < order.index("audio.output-cathode")

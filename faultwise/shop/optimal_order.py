@@ -41,7 +41,6 @@ from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
-from functools import lru_cache
 
 HEALTHY = "(healthy)"
 
@@ -125,22 +124,29 @@ def optimal_minutes(problem: Problem, *, restrict_singles: bool = False,
         confirmers, cheapest = proof[i]
         return 0.0 if not confirmers or check in confirmers else cheapest
 
-    @lru_cache(maxsize=None)
-    def solve(state: int) -> tuple[float, str | None]:
-        if budget is not None and solve.cache_info().currsize > budget:
+    memo: dict[int, tuple[float, str | None]] = {}
+
+    def solve(state: int, rows: list) -> tuple[float, str | None]:
+        """V(state); ``rows``: the checks that split the parent set (a check that does not
+        split a set splits none of its subsets, so the children weigh only these)."""
+        hit = memo.get(state)
+        if hit is not None:
+            return hit
+        if budget is not None and len(memo) > budget:
             raise TooLarge
-        if state & (state - 1) == 0:         # one hypothesis (or none) left
-            return 0.0, None
+        if state & (state - 1) == 0 or weight(state) <= 0:    # one hypothesis (or none) left
+            memo[state] = (0.0, None)
+            return memo[state]
         total = weight(state)
-        if total <= 0:
-            return 0.0, None
-        best, best_c = float("inf"), None
+        live = []                  # (row, groups) of the checks that split this set
+        for row in rows:
+            groups = [g for g in (state & m for m in row[2]) if g]
+            if len(groups) > 1:
+                live.append((row, groups))
+        child_rows = [row for row, _ in live]
         candidates = []
         single_best = None         # (w/c, -cost, check) of the best single-fault test
-        for c, cost, masks in table:
-            groups = [g for g in (state & m for m in masks) if g]
-            if len(groups) < 2:
-                continue
+        for (c, cost, _), groups in live:
             if restrict_singles and len(groups) == 2:
                 singles = [g for g in groups if g & (g - 1) == 0 and weight(g) > 0]
                 if singles:
@@ -152,10 +158,7 @@ def optimal_minutes(problem: Problem, *, restrict_singles: bool = False,
             candidates.append((c, cost, groups))
         if single_best is not None:
             candidates.append(single_best[1:])
-        # the likeliest good check first: a low ``best`` early prunes the rest (exact: every
-        # candidate is still weighed, only in another order)
-        candidates.sort(key=lambda cand: cand[1] / max(
-            1e-9, 1.0 - max(weight(g) for g in cand[2]) / total))
+        best, best_c = float("inf"), None
         for c, cost, groups in candidates:
             if cost >= best:
                 continue
@@ -164,19 +167,21 @@ def optimal_minutes(problem: Problem, *, restrict_singles: bool = False,
                 gw = weight(g)
                 if gw > 0:
                     owed = left_alone(g.bit_length() - 1, c) if g & (g - 1) == 0 else 0.0
-                    value += gw / total * (solve(g)[0] + owed)
+                    value += gw / total * (solve(g, child_rows)[0] + owed)
                     if value >= best:
                         break
             if value < best:
                 best, best_c = value, c
         if best_c is None:
             stuck.append(tuple(sorted(hyps[i] for i in range(len(hyps)) if state >> i & 1)))
-            return 0.0, None
-        return best, best_c
+            memo[state] = (0.0, None)
+        else:
+            memo[state] = (best, best_c)
+        return memo[state]
 
     start = (1 << len(hyps)) - 1
-    value, first = solve(start)
-    states = solve.cache_info().currsize
+    value, first = solve(start, table)
+    states = len(memo)
     return Solution(value, first, states, tuple(sorted(set(stuck))), exact=not restrict_singles)
 
 

@@ -321,7 +321,6 @@ def optimal_rows(knowledge: Knowledge, demos: Sequence[DemoSet], walks: Sequence
     """Per complaint and family: the p/c walk's mean minutes against the bound, over every
     fault the walk weighs (a fault without a model, or whose model does not fit the set, is
     walked and judged on its signature, as the plain sweep does)."""
-    from faultwise.shop.optimal_order import bound
     from faultwise.shop.sweep import entropy_bits, weighted_mean
     from faultwise.shop.sweep_walk import pair_faults, synthesise_readings
 
@@ -329,9 +328,8 @@ def optimal_rows(knowledge: Knowledge, demos: Sequence[DemoSet], walks: Sequence
     groups: dict = {}
     for w in walks:
         groups.setdefault((w.symptom, w.family), {}).setdefault(w.set_name, []).append(w)
-    rows = []
+    jobs = []           # (pair, set's walks by fault, injected walks, weights, problem)
     for (sym, fam), per_set in sorted(groups.items()):
-        acc = {"m": [], "o": [], "h": [], "k": [], "f": [], "x": [], "n": 0}
         for set_name, injected in sorted(per_set.items()):
             demo = by_set[set_name]
             physics = faulty_by_set[set_name]
@@ -345,18 +343,44 @@ def optimal_rows(knowledge: Knowledge, demos: Sequence[DemoSet], walks: Sequence
                     readings_by[f] = synthesise_readings(node.signature, demo.expectations)
                 if f not in ws:
                     ws[f] = walk_fault(knowledge, demo, node, sym, readings_by[f])
-            ids = sorted(readings_by)
-            problem, weights = set_problem(knowledge, demo, sym, ids, readings_by)
-            sol = bound(problem)
-            acc["x"].append(sol.exact)
-            acc["m"].append(weighted_mean({f: ws[f].minutes for f in ids}, weights))
-            acc["o"].append(sol.minutes)
-            acc["h"].append(entropy_bits(weights.values()))
-            acc["k"].append(weighted_mean({f: (ws[f].path[-1][2] if ws[f].path else 0.0)
-                                           for f in ids}, weights))
-            acc["f"].append(sum(1 for w in injected if w.found) / len(injected))
-            acc["n"] = max(acc["n"], len(ids))
-        mean = lambda xs: sum(xs) / len(xs)
-        rows.append(OptimalRow(sym, fam, len(per_set), acc["n"], mean(acc["m"]), mean(acc["o"]),
-                               mean(acc["h"]), mean(acc["k"]), mean(acc["f"]), all(acc["x"])))
-    return rows
+            problem, weights = set_problem(knowledge, demo, sym, sorted(readings_by), readings_by)
+            jobs.append(((sym, fam), ws, injected, weights, problem))
+    solutions = solve_bounds([job[4] for job in jobs])
+    acc: dict = {}
+    for ((sym, fam), ws, injected, weights, _), sol in zip(jobs, solutions):
+        a = acc.setdefault((sym, fam), {"m": [], "o": [], "h": [], "k": [], "f": [], "x": [],
+                                         "n": 0, "sets": 0})
+        ids = sorted(weights)
+        a["sets"] += 1
+        a["x"].append(sol.exact)
+        a["m"].append(weighted_mean({f: ws[f].minutes for f in ids}, weights))
+        a["o"].append(sol.minutes)
+        a["h"].append(entropy_bits(weights.values()))
+        a["k"].append(weighted_mean({f: (ws[f].path[-1][2] if ws[f].path else 0.0)
+                                     for f in ids}, weights))
+        a["f"].append(sum(1 for w in injected if w.found) / len(injected))
+        a["n"] = max(a["n"], len(ids))
+    mean = lambda xs: sum(xs) / len(xs)
+    return [OptimalRow(sym, fam, a["sets"], a["n"], mean(a["m"]), mean(a["o"]), mean(a["h"]),
+                       mean(a["k"]), mean(a["f"]), all(a["x"]))
+            for (sym, fam), a in sorted(acc.items())]
+
+
+PARALLEL_FROM = 16
+"""Bounds to solve before they are spread over the machine's cores (fewer: not worth a pool)."""
+
+
+def solve_bounds(problems: Sequence[Problem]) -> list:
+    """:func:`faultwise.shop.optimal_order.bound` of every problem, on every core when there
+    are many (each is independent; the results come back in order)."""
+    import os
+
+    from faultwise.shop.optimal_order import bound
+
+    cores = os.cpu_count() or 1
+    if cores < 2 or len(problems) < PARALLEL_FROM:
+        return [bound(p) for p in problems]
+    from concurrent.futures import ProcessPoolExecutor
+
+    with ProcessPoolExecutor(max_workers=cores) as pool:
+        return list(pool.map(bound, problems, chunksize=1))
