@@ -144,3 +144,26 @@ def test_a_fault_left_alone_still_needs_its_confirming_check():
                                                       "f2": frozenset({"c2"})}))
     assert math.isclose(sol.minutes, 4.0)
     assert sol.first == "t"
+
+
+def test_the_complaint_opening_is_asked_first_and_the_free_optimum_kept():
+    # Same three faults as the hand-worked case (free optimum 4.2, by hand). An opening that
+    # splits nothing (a listening test every fault answers alike) costs its 3 minutes on top:
+    # 3 + 4.2 = 7.2. An opening of 1 minute that names fault 0 apart from the others: 1 +
+    # (0.5 x 0 + 0.5 x V({f1, f2})), V({f1, f2}) = p/c over c1 (0.6/1) then c2: 1 + 0.4 x 2 = 1.8,
+    # so 1 + 0.5 x 1.8 = 1.9, while the free optimum stays 4.2 (by hand).
+    from dataclasses import replace
+
+    base = single_outcome_problem([5, 3, 2], [4, 1, 2])
+    flat = replace(base, minutes={**base.minutes, "open": 3.0},
+                   outcomes={**base.outcomes, "open": {h: "same" for h in base.weights}},
+                   opening="open")
+    sol = bound(flat)
+    assert math.isclose(sol.minutes, 7.2) and sol.first == "open"
+    assert math.isclose(sol.free_minutes, 4.2)
+    split = replace(base, minutes={**base.minutes, "open": 1.0},
+                    outcomes={**base.outcomes,
+                              "open": {h: ("a" if h == "f0" else "b") for h in base.weights}},
+                    opening="open")
+    sol = bound(split)
+    assert math.isclose(sol.minutes, 1.9) and sol.first == "open"

@@ -26,6 +26,12 @@ not itself route to, the policy still pays for the cheapest of that fault's conf
 for that proof, so the bound asks for it too). A fault with no confirming check listed is
 concluded as soon as it is alone.
 
+A complaint opens with a fixed check where its entry is one (``Problem.opening``): the
+listening test that names the branch, or the unpowered plug reading that must come before
+any powered one on a line set. Every order the walk may take starts there, so the bound
+asks it first too (its minutes count even where it splits nothing); ``Solution.free_minutes``
+is the optimum that may start anywhere, and shows what the opening itself costs.
+
 The number of distinct sets reached is what bounds the work, and checks that confirm a
 single fault each (most of a graph's confirming checks) make it grow as 2^n: the exhaustive
 search is exact but is practical to about 25 hypotheses. ``restrict_singles=True`` tries, at
@@ -39,7 +45,7 @@ the restricted one beyond it, and says which (``exact``).
 
 from __future__ import annotations
 
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 
 HEALTHY = "(healthy)"
@@ -53,6 +59,7 @@ class Problem:
     minutes: Mapping[str, float]
     outcomes: Mapping[str, Mapping[str, str]]      # check -> hypothesis -> outcome
     confirms: Mapping[str, frozenset] = field(default_factory=dict)   # hypothesis -> checks
+    opening: str | None = None     # a check every order asks first (the complaint's opening)
 
     def confirm_minutes(self, hypothesis: str) -> float:
         """The cheapest confirming check of a hypothesis (0 with none listed)."""
@@ -68,6 +75,7 @@ class Solution:
     states: int                           # distinct sets of hypotheses solved
     inseparable: tuple[tuple[str, ...], ...] = ()
     exact: bool = True
+    free_minutes: float | None = None     # the optimum without the opening check
 
 
 EXACT_BUDGET = 3000
@@ -76,12 +84,15 @@ EXACT_BUDGET = 3000
 
 def bound(problem: Problem, budget: int = EXACT_BUDGET) -> Solution:
     """The exact optimum when the exhaustive search fits in ``budget`` states; else the
-    restricted search (a real policy, so an upper bound on the optimum), marked not exact."""
+    restricted search (a real policy, so an upper bound on the optimum), marked not exact.
+    With an opening check, ``minutes`` opens with it and ``free_minutes`` is the optimum
+    that may start anywhere."""
     try:
         return optimal_minutes(problem, restrict_singles=False, budget=budget)
     except TooLarge:
         sol = optimal_minutes(problem, restrict_singles=True)
-        return Solution(sol.minutes, sol.first, sol.states, sol.inseparable, exact=False)
+        return Solution(sol.minutes, sol.first, sol.states, sol.inseparable, exact=False,
+                        free_minutes=sol.free_minutes)
 
 
 class TooLarge(Exception):
@@ -181,8 +192,30 @@ def optimal_minutes(problem: Problem, *, restrict_singles: bool = False,
 
     start = (1 << len(hyps)) - 1
     value, first = solve(start, table)
+    free = value
+    if problem.opening is not None and problem.opening in problem.minutes:
+        value, first = _opened(problem.opening, float(problem.minutes[problem.opening]),
+                               table, start, weight, left_alone, solve), problem.opening
     states = len(memo)
-    return Solution(value, first, states, tuple(sorted(set(stuck))), exact=not restrict_singles)
+    return Solution(value, first, states, tuple(sorted(set(stuck))), exact=not restrict_singles,
+                    free_minutes=free)
+
+
+def _opened(opening: str, cost: float, table: list, start: int, weight: Callable,
+            left_alone: Callable, solve: Callable) -> float:
+    """Minutes of the best order that asks ``opening`` first: its cost (asked even where it
+    splits nothing), then the best order within each group of its outcomes."""
+    masks = next((row[2] for row in table if row[0] == opening), (start,))
+    total = weight(start)
+    if total <= 0:
+        return cost
+    value = cost
+    for g in (start & m for m in masks):
+        gw = weight(g)
+        if g and gw > 0:
+            owed = left_alone(g.bit_length() - 1, opening) if g & (g - 1) == 0 else 0.0
+            value += gw / total * (solve(g, table)[0] + owed)
+    return value
 
 
 def policy_minutes(problem: Problem, order: Sequence[str]) -> float:

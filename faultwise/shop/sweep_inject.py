@@ -86,11 +86,12 @@ class OptimalRow:
     sets: int
     faults: int
     minutes: float               # p/c walk, prior-weighted mean
-    optimal_minutes: float
+    optimal_minutes: float       # the best order that opens as the complaint does
     entropy_bits: float
     known_cause_minutes: float
     found: float                 # share of the walks found
     exact: bool = True           # every set's optimum from the exhaustive search
+    free_minutes: float | None = None   # the best order that may open anywhere
 
     @property
     def ratio(self) -> float | None:
@@ -312,8 +313,10 @@ def set_problem(knowledge: Knowledge, demo: DemoSet, symptom: str, fault_ids: Se
         row[HEALTHY] = check_outcome(check, None, None, demo.expectations)
         minutes[cid] = float(check.minutes)
         outcomes[cid] = row
+    entry = knowledge.entry(symptom, demo.family)
+    opening = entry if entry in minutes else None
     return Problem({**weights, HEALTHY: 0.0}, minutes, outcomes,
-                   {f: frozenset(c) for f, c in confirms.items()}), weights
+                   {f: frozenset(c) for f, c in confirms.items()}, opening), weights
 
 
 def optimal_rows(knowledge: Knowledge, demos: Sequence[DemoSet], walks: Sequence[InjectWalk],
@@ -349,12 +352,13 @@ def optimal_rows(knowledge: Knowledge, demos: Sequence[DemoSet], walks: Sequence
     acc: dict = {}
     for ((sym, fam), ws, injected, weights, _), sol in zip(jobs, solutions):
         a = acc.setdefault((sym, fam), {"m": [], "o": [], "h": [], "k": [], "f": [], "x": [],
-                                         "n": 0, "sets": 0})
+                                         "free": [], "n": 0, "sets": 0})
         ids = sorted(weights)
         a["sets"] += 1
         a["x"].append(sol.exact)
         a["m"].append(weighted_mean({f: ws[f].minutes for f in ids}, weights))
         a["o"].append(sol.minutes)
+        a["free"].append(sol.minutes if sol.free_minutes is None else sol.free_minutes)
         a["h"].append(entropy_bits(weights.values()))
         a["k"].append(weighted_mean({f: (ws[f].path[-1][2] if ws[f].path else 0.0)
                                      for f in ids}, weights))
@@ -362,7 +366,7 @@ def optimal_rows(knowledge: Knowledge, demos: Sequence[DemoSet], walks: Sequence
         a["n"] = max(a["n"], len(ids))
     mean = lambda xs: sum(xs) / len(xs)
     return [OptimalRow(sym, fam, a["sets"], a["n"], mean(a["m"]), mean(a["o"]), mean(a["h"]),
-                       mean(a["k"]), mean(a["f"]), all(a["x"]))
+                       mean(a["k"]), mean(a["f"]), all(a["x"]), mean(a["free"]))
             for (sym, fam), a in sorted(acc.items())]
 
 
