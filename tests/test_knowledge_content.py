@@ -133,3 +133,20 @@ def test_conclusions_do_not_depend_on_the_order(kn):
     for name, walks in report.baseline_walks.items():
         wrong = [(w.symptom, w.family, w.fault) for w in walks if not w.isolated]
         assert not wrong, (name, wrong[:5])
+
+
+def test_a_transistor_set_is_never_shown_a_tube_caution(kn):
+    # A portable has no tubes, no line cord and no filament: a caution it is shown must speak
+    # of what it has (trade fact, common practice, no source). Every caution that concerns
+    # the transistor family, and so every caution a transistor check can show, is checked.
+    tube_words = ("tube", "line cord", "line-cord", "filament", "heater", "mains")
+    for caution in kn.cautions.values():
+        if "transistor" not in caution.families:
+            continue
+        text = f"{caution.title} {caution.text}".lower()
+        assert not any(w in text for w in tube_words), (caution.id, text)
+    for node in kn.nodes.values():
+        if isinstance(node, Check) and "transistor" in node.families:
+            for cid in node.cautions:
+                shown = kn.cautions[cid]
+                assert "transistor" in shown.families or len(node.families) > 1, (node.id, cid)
