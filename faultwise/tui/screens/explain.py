@@ -56,7 +56,8 @@ class ExplainScreen(ModalScreen[None]):
         ex = self.explanation
         with Vertical(classes="modal-box", id="explain-box"):
             yield Static("Why this check now", classes="modal-title", id="explain-title")
-            yield Static("[dim]p: share of this complaint's faults under the suspect; "
+            yield Static("[dim]p: the chance this check finds the fault, weighed by the "
+                         "answers so far (a fault it would read as normal counts a tenth); "
                          "min: its cost; p/c: the order; cases: closed cases that found a "
                          "fault under it. Escape closes.[/dim]", id="explain-legend")
             with VerticalScroll(id="explain-scroll", can_focus=False):
