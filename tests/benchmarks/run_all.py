@@ -70,6 +70,11 @@ EXTRACT = {
     "bench_expect.py": [
         ("slowest expect(), ms", rf"^slowest expect\(\): {_NUM} ms", "well under 100 ms"),
     ],
+    "bench_sweep_inject.py": [
+        ("injected walks, 10 sets, s", rf"^injected walks, 10 sets:\s+{_NUM} s", ""),
+        ("the same with the optimal bound, s", rf"^with the optimal bound:\s+{_NUM} s", ""),
+        ("'faultwise sweep --inject', s", rf"^faultwise sweep --inject:\s+{_NUM} s", "< 30 s"),
+    ],
     "bench_sweep.py": [
         ("sweep / load_knowledge", rf"^ratio sweep / load: {_NUM}", "none set"),
         ("sweep mean checks / entropy bits", rf"^mean checks .* ratio {_NUM}", "<= 1.5 (aim 1.3)"),
