@@ -94,3 +94,20 @@ def test_the_rule():
     assert stage_states(steps, None) == {"audio": SUSPECT, "detector": CLEARED}
     assert stage_states(steps, "supply") == {"audio": NOT_NEEDED, "detector": CLEARED,
                                               "supply": FAULTY}
+
+
+def test_a_triage_choice_clears_no_stage():
+    # "Distorted on every station and at any volume" is the complaint narrowed, not a healthy
+    # audio stage: its route is the audio distortion list. A technician must not see the audio
+    # stage marked cleared before a single audio part was tested (common practice, no source).
+    kb = load_knowledge(bundled_knowledge_dir())
+    sets = bundled_knowledge_dir() / "sets"
+    walk = Walk(kb, load_profile(sets / "demo-5-tube-table.yaml", knowledge_dir=bundled_knowledge_dir()),
+                "distorted-audio", counts={})
+    assert walk.current_node == "audio.distortion-kind"
+    walk.answer("all-volumes")
+    assert walk.steps[-1].normal
+    assert "audio" not in walk_stage_states(walk)
+    assert "audio" not in _report_states(walk)
+    # the same answer, routed to 'cleared', would clear it (the rule's other half)
+    assert stage_states([StepView("audio", "x", True)], None) == {"audio": CLEARED}

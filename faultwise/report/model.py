@@ -56,6 +56,7 @@ class Step:
     result: str               # the classification in words
     normal: bool
     skipped: bool = False
+    routes_on: bool = False   # a normal answer the graph routes onward (faultwise.walk.stages)
 
     @property
     def passed(self) -> str:
@@ -181,8 +182,10 @@ def _step(number: int, ev: Mapping, knowledge: Knowledge | None) -> Step:
     is_reading = bool(band) or bool(getattr(node, "expect", None))
     result = RESULT_WORDS.get(outcome, outcome) if is_reading else \
         ("normal" if normal else "not normal")
+    from faultwise.walk.stages import routes_on
+
     return Step(number, phase, node_id, title, _answer_words(ev, node, band, value, outcome),
-                band_text(band), result, normal)
+                band_text(band), result, normal, routes_on=routes_on(node, outcome))
 
 
 def _stage_of(knowledge: Knowledge | None, node_id: str) -> str:
@@ -200,7 +203,8 @@ def stage_states(checks: Iterable[Step], fault_stage: str,
     from faultwise.walk.stages import stage_states as rule
 
     return rule((StepView(_stage_of(knowledge, step.node),
-                          "skipped" if step.skipped else "answered", step.normal, step.phase)
+                          "skipped" if step.skipped else "answered", step.normal, step.phase,
+                          step.routes_on)
                  for step in checks), fault_stage or None)
 
 

@@ -18,7 +18,7 @@ if TYPE_CHECKING:
     from faultwise.walk.state import Walk
 
 __all__ = ["UNTESTED", "SUSPECT", "CLEARED", "FAULTY", "NOT_NEEDED", "STAGE_STATES",
-           "StepView", "stage_states", "walk_stage_states"]
+           "StepView", "routes_on", "stage_states", "walk_stage_states"]
 
 UNTESTED, SUSPECT, CLEARED, FAULTY = "untested", "suspect", "cleared", "faulty"
 NOT_NEEDED = "not-needed"
@@ -33,6 +33,7 @@ class StepView:
     outcome: str
     normal: bool
     phase: str = "diagnose"
+    routes_on: bool = False       # the answer's route is not 'cleared' (see the module doc)
 
 
 def stage_states(steps: Iterable[StepView], fault_stage: str | None) -> dict[str, str]:
@@ -43,6 +44,8 @@ def stage_states(steps: Iterable[StepView], fault_stage: str | None) -> dict[str
             continue
         if not step.normal:
             states[step.stage] = SUSPECT
+        elif step.routes_on:
+            continue
         elif states.get(step.stage) != SUSPECT:
             states[step.stage] = CLEARED
     if fault_stage:
@@ -52,10 +55,20 @@ def stage_states(steps: Iterable[StepView], fault_stage: str | None) -> dict[str
     return states
 
 
+def routes_on(node: object, outcome: str) -> bool:
+    """A check's answer whose route is another node, not ``cleared`` (False for anything else)."""
+    from faultwise.graph.nodes import CLEARED, Check
+
+    if not isinstance(node, Check):
+        return False
+    return node.outcomes.get(outcome, CLEARED) != CLEARED
+
+
 def walk_stage_states(walk: Walk) -> dict[str, str]:
     """Stage states of a live :class:`faultwise.walk.state.Walk` (its steps and conclusion)."""
     nodes = walk.knowledge.nodes
     views = [StepView(stage=getattr(nodes.get(s.node), "stage", ""), outcome=s.outcome,
-                      normal=s.normal, phase=s.phase) for s in walk.steps]
+                      normal=s.normal, phase=s.phase,
+                      routes_on=routes_on(nodes.get(s.node), s.outcome)) for s in walk.steps]
     fault = walk.conclusion
     return stage_states(views, fault.stage if fault is not None else None)
