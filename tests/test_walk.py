@@ -486,3 +486,40 @@ def test_undo_is_the_inverse_of_every_move(picks):
             w.undo()
         assert (w.phase, node_of(w), len(w.steps)) == state
     assert w.events == []
+
+
+def test_an_ohmmeter_over_range_reads_open_and_high():
+    # A digital ohmmeter shows "OL" past its top range and a needle meter rests at infinity:
+    # at the bench that is how an open winding reads (trade usage, common practice, no
+    # source). On a resistance check it is recorded as the high outcome with no number (JSON
+    # has no infinity); on a voltage check it is refused and nothing is recorded.
+    import json
+
+    from faultwise.core.errors import InputError
+    from faultwise.core.units import over_range
+    from faultwise.core.workspace import bundled_knowledge_dir
+    from faultwise.graph.knowledge import load_knowledge
+    from faultwise.profile.load import load_profile
+    from faultwise.walk.state import Walk
+
+    assert over_range("OL", "ohm") and over_range(" open ", "kohm") and over_range("∞", "Mohm")
+    assert not over_range("OL", "V") and not over_range("4k7", "ohm")
+    kd = bundled_knowledge_dir()
+    kb = load_knowledge(kd)
+    walk = Walk(kb, load_profile(kd / "sets" / "demo-ge-pnp-portable.yaml", knowledge_dir=kd),
+                "dead-nothing-lights", counts={})
+    while not kb.nodes[walk.current_node].is_measurement:
+        walk.answer(kb.nodes[walk.current_node].normal)
+    volts = walk.current_node
+    with pytest.raises(InputError):
+        walk.answer("OL")          # a battery reading past the range is no answer
+    assert walk.current_node == volts
+    for node, answer in (("supply.tr-battery-check", "8.7"), ("supply.tr-dead-current", "7"),
+                         ("audio.tr-click-dead", "none"), ("audio.tr-earphone-test", "earphone-only")):
+        assert walk.current_node == node
+        walk.answer(answer)
+    assert walk.current_node == "audio.tr-voice-coil"
+    event = walk.answer("OL")
+    assert event["outcome"] == "high" and event["value"] is None and "OL" in event["raw"]
+    json.dumps(walk.to_case_fields(), allow_nan=False)
+    assert walk.conclusion is not None and walk.conclusion.id == "audio.tr-speaker-open"

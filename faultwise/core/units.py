@@ -229,6 +229,23 @@ def _decimal_comma(raw: str, text: str) -> str:
     return text.replace(",", ".")
 
 
+OVER_RANGE_WORDS = frozenset({"ol", "o.l", "o.l.", "open", "inf", "infinite", "infinity", "\u221e",
+                              "over range", "over-range", "overrange"})
+"""What a technician types for an ohmmeter past its top range: a digital meter's "OL", a
+needle resting at infinity, or simply "open" (trade usage)."""
+
+
+def over_range(text: str, unit: str) -> bool:
+    """True when ``text`` is an over-range word (:data:`OVER_RANGE_WORDS`) and the reading is a
+    resistance: an open circuit, above any band. Other quantities keep asking for a number
+    (an over-range volts reading means the meter needs a higher range, not an answer)."""
+    try:
+        dimension = resolve_unit(unit).dimension
+    except ValueError:
+        return False
+    return dimension == "resistance" and str(text or "").strip().lower() in OVER_RANGE_WORDS
+
+
 def parse_reading(text: str, unit: str) -> float:
     """Parse what a technician typed into a float in ``unit``; InputError when it cannot."""
     target = resolve_unit(unit)

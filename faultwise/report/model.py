@@ -56,7 +56,7 @@ class Step:
     result: str               # the classification in words
     normal: bool
     skipped: bool = False
-    routes_on: bool = False   # a normal answer the graph routes onward (faultwise.walk.stages)
+    routes_on: bool = False   # the answer routes to a suspects list (faultwise.walk.stages)
 
     @property
     def passed(self) -> str:
@@ -185,7 +185,7 @@ def _step(number: int, ev: Mapping, knowledge: Knowledge | None) -> Step:
     from faultwise.walk.stages import routes_on
 
     return Step(number, phase, node_id, title, _answer_words(ev, node, band, value, outcome),
-                band_text(band), result, normal, routes_on=routes_on(node, outcome))
+                band_text(band), result, normal, routes_on=routes_on(node, outcome, knowledge))
 
 
 def _stage_of(knowledge: Knowledge | None, node_id: str) -> str:

@@ -15,6 +15,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, Iterable
 
 if TYPE_CHECKING:
+    from faultwise.graph.knowledge import Knowledge
     from faultwise.walk.state import Walk
 
 __all__ = ["UNTESTED", "SUSPECT", "CLEARED", "FAULTY", "NOT_NEEDED", "STAGE_STATES",
@@ -33,7 +34,7 @@ class StepView:
     outcome: str
     normal: bool
     phase: str = "diagnose"
-    routes_on: bool = False       # the answer's route is not 'cleared' (see the module doc)
+    routes_on: bool = False       # the answer routes to a suspects list (see the module doc)
 
 
 def stage_states(steps: Iterable[StepView], fault_stage: str | None) -> dict[str, str]:
@@ -55,13 +56,14 @@ def stage_states(steps: Iterable[StepView], fault_stage: str | None) -> dict[str
     return states
 
 
-def routes_on(node: object, outcome: str) -> bool:
-    """A check's answer whose route is another node, not ``cleared`` (False for anything else)."""
-    from faultwise.graph.nodes import CLEARED, Check
+def routes_on(node: object, outcome: str, knowledge: Knowledge | None) -> bool:
+    """A check's answer whose route is a suspects list: it names the branch to search (False
+    for anything else: ``cleared``, a next check in a chain, a fault)."""
+    from faultwise.graph.nodes import Check, Suspects
 
-    if not isinstance(node, Check):
+    if not isinstance(node, Check) or knowledge is None:
         return False
-    return node.outcomes.get(outcome, CLEARED) != CLEARED
+    return isinstance(knowledge.nodes.get(node.outcomes.get(outcome, "")), Suspects)
 
 
 def walk_stage_states(walk: Walk) -> dict[str, str]:
@@ -69,6 +71,7 @@ def walk_stage_states(walk: Walk) -> dict[str, str]:
     nodes = walk.knowledge.nodes
     views = [StepView(stage=getattr(nodes.get(s.node), "stage", ""), outcome=s.outcome,
                       normal=s.normal, phase=s.phase,
-                      routes_on=routes_on(nodes.get(s.node), s.outcome)) for s in walk.steps]
+                      routes_on=routes_on(nodes.get(s.node), s.outcome, walk.knowledge))
+             for s in walk.steps]
     fault = walk.conclusion
     return stage_states(views, fault.stage if fault is not None else None)

@@ -125,8 +125,15 @@ class Walk(WalkView):
         check, expected = self._asked_check()
         text = "" if text is None else str(text)
         if check.is_measurement and expected is not None:
-            from faultwise.core.units import parse_reading
+            from faultwise.core.units import over_range, parse_reading
 
+            if over_range(text, expected.unit):
+                # an open circuit: above every band; JSON has no infinity, so no value
+                mark = {"assumed": True} if assumed else {}
+                return self._push(self._event(
+                    "answer", node=check.id, expect=check.expect, band=band_of(expected),
+                    raw=f"{text.strip()} (over range: open)", value=None, outcome="high",
+                    **mark))
             try:
                 value = parse_reading(text, expected.unit)
             except InputError as exc:
