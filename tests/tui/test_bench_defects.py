@@ -326,3 +326,17 @@ def test_library_search_breaks_ties_on_whole_words():
     # word typed in full now finds the sets that hold it, both portables before any other.
     top = [s.path.stem for s in rank_sets("portable", sets)[:2]]
     assert sorted(top) == ["demo-ge-pnp-portable", "demo-si-npn-portable"], top
+
+
+def test_parts_text_splits_where_a_technician_means_it():
+    # The suggested parts carry their own commas ("8 ohm, 65 mm" inside brackets, "630 V, as
+    # the original"): ctrl+t puts them in the field separated by ';', and then only ';'
+    # separates. Typed by hand without ';', commas outside brackets separate.
+    from faultwise.tui.screens.conclusion import split_parts
+
+    assert split_parts("Loudspeaker of the same impedance and size (e.g. 8 ohm, 65 mm)") == \
+        ["Loudspeaker of the same impedance and size (e.g. 8 ohm, 65 mm)"]
+    assert split_parts("film capacitor 0.02 uF 630 V, as the original; 35W4") == \
+        ["film capacitor 0.02 uF 630 V, as the original", "35W4"]
+    assert split_parts("35W4 rectifier tube, fuse") == ["35W4 rectifier tube", "fuse"]
+    assert split_parts(" , ;") == []

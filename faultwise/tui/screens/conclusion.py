@@ -45,8 +45,21 @@ MINUTES_RULE = "a whole number of minutes, 0 or more"
 
 
 def split_parts(text: str) -> list[str]:
-    """'50 uF 160 V electrolytic; 35W4' -> two parts (separated by ';' or ',')."""
-    return [p.strip() for p in text.replace(";", ",").split(",") if p.strip()]
+    """'50 uF 160 V electrolytic; 35W4' -> two parts. With a ';' in the text only ';'
+    separates (the suggested parts are put in the field that way: their own words may hold
+    commas); without one, commas outside brackets do ('8 ohm speaker (65 mm, round), 35W4')."""
+    if ";" in text:
+        pieces = text.split(";")
+    else:
+        pieces, depth, start = [], 0, 0
+        for i, ch in enumerate(text):
+            depth += ch in "([{"
+            depth -= ch in ")]}" and depth > 0
+            if ch == "," and depth == 0:
+                pieces.append(text[start:i])
+                start = i + 1
+        pieces.append(text[start:])
+    return [p.strip(" \t,") for p in pieces if p.strip(" \t,")]
 
 
 def whole_minutes_since(opened_iso: object, now: datetime) -> int:
@@ -105,7 +118,7 @@ class ConclusionScreen(MeterKeys, CaseScreen):
             with VerticalScroll(id="repair-scroll", can_focus=False):
                 yield Static("", id="repair-steps")
             with Vertical(id="parts-form", classes="form-block"):
-                yield Static("Parts replaced, separated by commas (empty if none); Enter "
+                yield Static("Parts replaced, separated by commas or semicolons (empty if none); Enter "
                              "records them and starts the verify checks.",
                              classes="form-label")
                 yield Static("", id="parts-suggested")
@@ -346,7 +359,7 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         if fault is None or not fault.parts:
             return
         box = self.query_one("#parts", Input)
-        box.value = ", ".join(fault.parts)
+        box.value = "; ".join(fault.parts)
         box.cursor_position = len(box.value)
         box.focus()
 
