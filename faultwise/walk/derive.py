@@ -293,8 +293,9 @@ class WalkDerivation:
             likelihood = self.evidence.weights(faults, answers)
         reach = None
         if self.evidence is not None:
-            evidence, family = self.evidence, self.family
-            reach = lambda fault, target: evidence.reach(fault, target, family)  # noqa: E731
+            from functools import partial
+
+            reach = partial(self.evidence.reach, family=self.family)
         ranked = rank_investigations(self.knowledge, frame.suspects, self.symptom, self.family,
                                      frame.cleared, self.counts, applies=self._applies,
                                      likelihood=likelihood, reach=reach)
