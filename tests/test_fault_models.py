@@ -217,3 +217,33 @@ def test_flat_battery_lowers_the_pair_current():
 def test_lint_checks_the_chart_targets(model, families, why):
     (_, message, _), = model_problems(model, families)
     assert why in message
+
+
+def test_no_signature_reading_contradicts_its_model_on_every_set():
+    # The set's own physics is the oracle (the chart engine with the part broken): a fault's
+    # signature may say more than its model computes, and may differ on one set whose supply
+    # or stage is stiffer, but a reading class that the model contradicts on every demo set it
+    # applies to is a wrong signature (the walk would then look for a cathode that never moves).
+    from faultwise.expect.fault_models import applies_to, parse_model
+    from faultwise.graph.applicability import node_applies
+    from faultwise.shop.sweep import load_demo_sets
+
+    kb = load_knowledge(KNOWLEDGE)
+    demos = [d for ds in load_demo_sets(SETS, KNOWLEDGE).values() for d in ds]
+    verdicts: dict[tuple[str, str], list[bool]] = {}
+    for fault in (n for n in kb.nodes.values() if isinstance(n, Fault) and n.model):
+        for d in demos:
+            if d.family not in fault.families or not node_applies(fault, d.profile, d.expectations) \
+                    or applies_to(parse_model(fault.model), d.profile):
+                continue
+            faulty = inject(d.profile, fault.model, d.expectations)
+            for name, spec in fault.signature.readings.items():
+                if name not in faulty or name not in d.expectations:
+                    continue
+                band = d.expectations[name]
+                said = spec if isinstance(spec, str) else classify(float(spec), band)
+                verdicts.setdefault((fault.id, name), []).append(
+                    said == classify(faulty[name].nominal, band))
+    assert len(verdicts) > 100          # 122 (fault, reading) pairs when written
+    wrong = sorted(key for key, agree in verdicts.items() if not any(agree))
+    assert wrong == []
