@@ -384,7 +384,11 @@ def solve_bounds(problems: Sequence[Problem]) -> list:
     cores = os.cpu_count() or 1
     if cores < 2 or len(problems) < PARALLEL_FROM:
         return [bound(p) for p in problems]
+    import multiprocessing
     from concurrent.futures import ProcessPoolExecutor
 
-    with ProcessPoolExecutor(max_workers=cores) as pool:
+    # forkserver, not fork: a forked child of a process with threads (the bench, a test run)
+    # can inherit a lock held mid-operation and hang
+    context = multiprocessing.get_context("forkserver")
+    with ProcessPoolExecutor(max_workers=cores, mp_context=context) as pool:
         return list(pool.map(bound, problems, chunksize=1))
