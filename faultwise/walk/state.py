@@ -130,10 +130,11 @@ class Walk(WalkView):
             if over_range(text, expected.unit):
                 # an open circuit: above every band; JSON has no infinity, so no value
                 mark = {"assumed": True} if assumed else {}
+                typed = text.strip()
+                said = "over range" if typed.lower() == "open" else "over range: open"
                 return self._push(self._event(
                     "answer", node=check.id, expect=check.expect, band=band_of(expected),
-                    raw=f"{text.strip()} (over range: open)", value=None, outcome="high",
-                    **mark))
+                    raw=f"{typed} ({said})", value=None, outcome="high", **mark))
             try:
                 value = parse_reading(text, expected.unit)
             except InputError as exc:
