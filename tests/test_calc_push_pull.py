@@ -100,3 +100,23 @@ def test_an_underbiased_pair_reads_low_not_normal(stage):
         assert ic.low >= floor * (1 - 1e-9)
         if ic.low == pytest.approx(floor):          # the floor, not the corners, set it
             assert "crossover" in idle.basis and "Vt / 4" in idle.basis
+
+
+def test_the_standby_current_floor_counts_the_pair_idling_at_least_its_floor(monkeypatch):
+    # The set's no-signal current sums each stage's collector current (common practice, no
+    # source); a working pair idles at least the underbias floor, so the standby band's low end
+    # counts the pair at that floor, not at the near-zero worst-case corner. Without the floor
+    # (fraction 0) the same sum is taken with the corner: the two low ends differ by exactly
+    # floor - corner.
+    from faultwise.expect import output_pair
+
+    for name in ("demo-ge-pnp-portable.yaml", "demo-si-npn-portable.yaml"):
+        profile = load_profile(SETS / name)
+        floored = expect(profile)
+        with monkeypatch.context() as m:
+            m.setattr(output_pair, "UNDERBIAS_FRACTION", 0.0)
+            corner = expect(profile)
+        floor, low = floored["bias.output.idle_ma"].low, corner["bias.output.idle_ma"].low
+        assert floor > low
+        assert floored["supply.standby_ma"].low == pytest.approx(
+            corner["supply.standby_ma"].low - low + floor)

@@ -200,4 +200,4 @@ def add_output_pair(ctx: Context) -> tuple[float, float, float] | None:
                 "audio", b.nominal, low, b.high, unit, f"{head}; {tail}; {band}{text}",
                 keys=tuple(keys), absent=ABSENT_FRACTION * b.low)
     idle = bands["idle_ma"]
-    return idle.nominal, idle.low, idle.high
+    return idle.nominal, _floored(idle, floors["idle_ma"], "")[0], idle.high
