@@ -141,3 +141,16 @@ def test_match_imports_nothing_heavy():
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          check=True).stdout.split()
     assert out == ["False", "False"]
+
+
+def test_distorted_on_every_station_is_distortion_not_weak_reception():
+    # Found at the bench: the complaint "distorted on every station" matched weak reception
+    # first ("weak on every station" shares two of its three words). Trade usage (common
+    # practice, no source): the customer is describing the sound, not the reception.
+    from faultwise.core.workspace import bundled_knowledge_dir
+    from faultwise.graph.knowledge import load_knowledge
+
+    kb = load_knowledge(bundled_knowledge_dir())
+    for text in ("distorted on every station", "sounds distorted on all the stations"):
+        assert match(text, kb)[0].id == "distorted-audio", text
+    assert match("weak on every station", kb)[0].id == "weak-reception"
