@@ -161,3 +161,36 @@ def test_an_investigation_carries_only_the_faults_its_check_would_find(bundled):
         reach=lambda f, t: ev.reach(f, t, d.family))
     order = [r.target for r in ranked]
     assert order.index("audio.output-grid-v") < order.index("audio.output-cathode")
+
+
+def test_physics_uses_the_workspace_tube_table(tmp_path):
+    # One tube table per workspace (the project's rule): a knowledge copy whose 35W4 drops
+    # 40 V instead of the bundled 15 V computes a lower B+ for the 5-tube set, its bands and
+    # the broken set's readings alike. The walk's predictions must come from that same table,
+    # or a reading the set's own bands call normal could be predicted otherwise.
+    import re
+    import shutil
+
+    from faultwise.expect.expected import expect
+    from faultwise.expect.fault_physics import inject
+    from faultwise.profile.load import load_profile
+    from faultwise.profile.tubes import workspace_tube_table
+
+    root = tmp_path / "knowledge"
+    shutil.copytree(bundled_knowledge_dir(), root)
+    text = (root / "tubes.yaml").read_text(encoding="utf-8")
+    start = text.index("  - type: 35W4\n")
+    end = text.index("  - type:", start + 5)
+    entry, count = re.subn(r"drop_v: 15,", "drop_v: 40,", text[start:end])
+    assert count == 1
+    (root / "tubes.yaml").write_text(text[:start] + entry + text[end:], encoding="utf-8")
+    kb = load_knowledge(root)
+    table = workspace_tube_table(root)
+    profile = load_profile(root / "sets" / "demo-5-tube-table.yaml")
+    bands = expect(profile, tube_table=table)
+    model = kb.nodes["supply.open-first-filter-cap"].model
+    own = inject(profile, model, bands, tube_table=table)["supply.rectifier_out_v"].nominal
+    bundled = inject(profile, model, bands)["supply.rectifier_out_v"].nominal
+    assert own < bundled - 10.0          # the table matters (25 V more across the rectifier)
+    got = evidence.Evidence(kb, profile, bands).physics("supply.open-first-filter-cap")
+    assert got["supply.rectifier_out_v"].nominal == pytest.approx(own)

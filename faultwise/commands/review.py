@@ -80,7 +80,7 @@ def _learn_text(learning: Learning, changes: list[PairChange], path: Path, dry_r
 
 def _with_inject(page: str, ws: Workspace, knowledge: Knowledge) -> str:
     """The review page with the injected sweep's tables before its safety section."""
-    from faultwise.commands.sweep import _sets_dir, _tube_table
+    from faultwise.commands.sweep import _sets_dir
     from faultwise.shop.sweep import load_demo_sets
     from faultwise.shop.sweep_inject import run_inject
     from faultwise.shop.sweep_inject_report import inject_html
@@ -88,7 +88,7 @@ def _with_inject(page: str, ws: Workspace, knowledge: Knowledge) -> str:
     sets = load_demo_sets(_sets_dir(ws, None), ws.knowledge_dir)
     from faultwise.graph.inject_known import load_known
 
-    section = inject_html(run_inject(knowledge, sets, band_pass=False, tube_table=_tube_table(ws),
+    section = inject_html(run_inject(knowledge, sets, band_pass=False,
                                      known=load_known(knowledge, ws.knowledge_dir)))
     mark = "<h2>Safety</h2>"
     return page.replace(mark, section + mark, 1) if mark in page else page + section

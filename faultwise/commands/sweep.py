@@ -12,7 +12,6 @@ if TYPE_CHECKING:
     
     from faultwise.core.workspace import Workspace
     from faultwise.graph.knowledge import Knowledge
-    from faultwise.profile.tubes import TubeTable
     from faultwise.shop.sweep import DemoSet
 
 
@@ -111,7 +110,7 @@ def run_inject_command(args: argparse.Namespace, ws: Workspace, knowledge: Knowl
     seed = SEED if args.seed is None else args.seed
     from faultwise.graph.inject_known import load_known
 
-    report = run_inject(knowledge, sets, seed=seed, tube_table=_tube_table(ws),
+    report = run_inject(knowledge, sets, seed=seed,
                         known=load_known(knowledge, ws.knowledge_dir))
     if not report.walks:
         raise FaultwiseError("no modelled fault could be injected", file=str(ws.knowledge_dir),
@@ -126,9 +125,3 @@ def run_inject_command(args: argparse.Namespace, ws: Workspace, knowledge: Knowl
         print(f"faultwise: {sentence}", file=sys.stderr)
         return 1
     return 0
-
-
-def _tube_table(ws: Workspace) -> TubeTable | None:
-    from faultwise.profile.tubes import workspace_tube_table
-
-    return workspace_tube_table(ws.knowledge_dir)

@@ -33,7 +33,7 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 
 from faultwise.core.errors import FaultwiseError
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
 
 from faultwise.graph.nodes import Check, Fault
 
@@ -185,13 +185,14 @@ def modelled_faults(knowledge: Knowledge) -> list[Fault]:
 # ------------------------------------------------------------------------------ sweeping
 
 def run_inject(knowledge: Knowledge, sets: Mapping[str, Sequence], *, seed: int = SEED,
-               tube_table: Any = None,
                band_pass: bool = True, optimal: bool = True,
                known: Mapping | None = None) -> InjectReport:
-    """Inject, walk and bound (see the module doc)."""
+    """Inject, walk and bound (see the module doc). The broken sets' readings are the ones
+    the walks weigh their answers with (:meth:`faultwise.walk.evidence.Evidence.physics`, the
+    workspace's tube table): each fault is computed once per set."""
     from faultwise.graph.applicability import node_applies
     from faultwise.expect.fault_models import applies_to, parse_model
-    from faultwise.expect.fault_physics import inject
+    from faultwise.shop.sweep_walk import set_evidence
 
     faults = modelled_faults(knowledge)
     parsed = {}
@@ -207,6 +208,7 @@ def run_inject(knowledge: Knowledge, sets: Mapping[str, Sequence], *, seed: int 
     demos = [d for fam in sets for d in sets[fam]]
     for demo in demos:
         fam = demo.family
+        evidence = set_evidence(knowledge, demo)
         per_fault: dict[str, dict] = {}
         for f in faults:
             if fam not in f.families:
@@ -217,7 +219,11 @@ def run_inject(knowledge: Knowledge, sets: Mapping[str, Sequence], *, seed: int 
             if why:
                 skipped.append((demo.name, f.id, why))
                 continue
-            faulty = inject(demo.profile, f.model, demo.expectations, tube_table=tube_table)
+            faulty = evidence.physics(f.id)     # the walks weigh answers with the same
+            if faulty is None:
+                raise FaultwiseError(f"the fault model of '{f.id}' cannot be computed on "
+                                     f"{demo.name}", file=f.where.file if f.where else None,
+                                     node=f.id, hint="run 'faultwise lint'")
             per_fault[f.id] = faulty
             nominal = {n: e.nominal for n, e in faulty.items()}
             rng = random.Random(f"{seed}:{demo.name}:{f.id}")

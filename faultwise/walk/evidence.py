@@ -20,7 +20,8 @@ The likelihood of the answers given a fault is the product over answered checks 
 changes, but not always everything: a weak converter need not pull the AVC line down). No
 fault is ever ruled out: a contradicted one only moves back in the order, because nominal
 predictions meet real parts with tolerances, and the graph's routes, not the weights,
-decide every conclusion. Physics uses the bundled tube table (only the class matters here).
+decide every conclusion. Physics uses the tube table of the knowledge's workspace, the one
+the set's bands were computed with.
 
 The same predictions say where a fault would be found: an investigation's check, asked of a
 set with this fault, gives the predicted outcome, and that outcome routes somewhere. A fault
@@ -37,7 +38,7 @@ from collections.abc import Iterable, Mapping
 from typing import TYPE_CHECKING
 
 from faultwise.expect.classify import classify
-from faultwise.graph.nodes import Check, Fault, Node
+from faultwise.graph.nodes import CLEARED, Check, Fault, Node
 
 if TYPE_CHECKING:
     from faultwise.graph.knowledge import Knowledge
@@ -59,6 +60,14 @@ class Evidence:
         self._physics: dict[str, Mapping | None] = {}
         self._predicted: dict[tuple[str, str], str | None] = {}
         self._reach: dict[tuple[str, str, str], float] = {}
+        self._tubes: tuple = ()          # (the workspace's tube table or None,) once looked up
+
+    def physics(self, fault_id: str) -> Mapping | None:
+        """The set's expectations with the fault's model injected (its readings as the broken
+        set gives them), or None: no model, or one that does not fit this set. Computed with
+        the tube table of the knowledge's workspace, as the set's own bands were."""
+        node = self.knowledge.nodes.get(fault_id)
+        return self._faulty(node) if isinstance(node, Fault) else None
 
     def _faulty(self, fault: Fault) -> Mapping | None:
         if fault.id not in self._physics:
@@ -66,8 +75,13 @@ class Evidence:
             if fault.model:
                 from faultwise.expect.fault_physics import inject
 
+                if not self._tubes:
+                    from faultwise.profile.tubes import workspace_tube_table
+
+                    self._tubes = (workspace_tube_table(self.knowledge.root),)
                 try:
-                    faulty = inject(self.profile, fault.model, self.expectations)
+                    faulty = inject(self.profile, fault.model, self.expectations,
+                                    tube_table=self._tubes[0])
                 except (ValueError, KeyError, ArithmeticError):
                     faulty = None      # a model that does not fit this set predicts nothing
             self._physics[fault.id] = faulty
@@ -118,8 +132,6 @@ class Evidence:
         return self._reach[key]
 
     def _reach_of(self, fault_id: str, target: str, family: str) -> float:
-        from faultwise.graph.nodes import CLEARED
-
         check = self.knowledge.nodes.get(target)
         if not isinstance(check, Check):
             return 1.0
