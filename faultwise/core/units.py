@@ -235,15 +235,19 @@ OVER_RANGE_WORDS = frozenset({"ol", "o.l", "o.l.", "open", "inf", "infinite", "i
 needle resting at infinity, or simply "open" (trade usage)."""
 
 
-def over_range(text: str, unit: str) -> bool:
-    """True when ``text`` is an over-range word (:data:`OVER_RANGE_WORDS`) and the reading is a
-    resistance: an open circuit, above any band. Other quantities keep asking for a number
+def reads_open(unit: str) -> bool:
+    """Whether a reading in ``unit`` can be an open circuit typed as a word: resistances only
     (an over-range volts reading means the meter needs a higher range, not an answer)."""
     try:
-        dimension = resolve_unit(unit).dimension
+        return resolve_unit(unit).dimension == "resistance"
     except ValueError:
         return False
-    return dimension == "resistance" and str(text or "").strip().lower() in OVER_RANGE_WORDS
+
+
+def over_range(text: str, unit: str) -> bool:
+    """True when ``text`` is an over-range word (:data:`OVER_RANGE_WORDS`) on a reading that
+    :func:`reads_open`: an open circuit, above any band."""
+    return reads_open(unit) and str(text or "").strip().lower() in OVER_RANGE_WORDS
 
 
 def parse_reading(text: str, unit: str) -> float:

@@ -12,6 +12,7 @@ from __future__ import annotations
 import copy
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
+from functools import partial
 from typing import TYPE_CHECKING
 
 from faultwise.core.errors import InputError, KnowledgeError, WalkError
@@ -293,8 +294,6 @@ class WalkDerivation:
             likelihood = self.evidence.weights(faults, answers)
         reach = None
         if self.evidence is not None:
-            from functools import partial
-
             reach = partial(self.evidence.reach, family=self.family)
         ranked = rank_investigations(self.knowledge, frame.suspects, self.symptom, self.family,
                                      frame.cleared, self.counts, applies=self._applies,

@@ -129,12 +129,10 @@ class Walk(WalkView):
 
             if over_range(text, expected.unit):
                 # an open circuit: above every band; JSON has no infinity, so no value
-                mark = {"assumed": True} if assumed else {}
                 typed = text.strip()
                 said = "over range" if typed.lower() == "open" else "over range: open"
-                return self._push(self._event(
-                    "answer", node=check.id, expect=check.expect, band=band_of(expected),
-                    raw=f"{typed} ({said})", value=None, outcome="high", **mark))
+                return self._push_reading(check, expected, f"{typed} ({said})", None, "high",
+                                          assumed=assumed)
             try:
                 value = parse_reading(text, expected.unit)
             except InputError as exc:
@@ -164,12 +162,20 @@ class Walk(WalkView):
         if not math.isfinite(value):
             raise InputError("the reading must be a finite number", node=check.id)
         raw = f"{value:g} {expected.unit}" if raw is None else raw
+        return self._push_reading(check, expected, raw, value, classify(value, expected),
+                                  meter=meter, assumed=assumed)
+
+    def _push_reading(self, check: Check, expected: Expected, raw: str, value: float | None,
+                      outcome: str, *, meter: Mapping | None = None,
+                      assumed: bool = False) -> dict:
+        """Record a measurement's answer: its band as shown, what was typed, the number (None
+        for an open circuit) and its class."""
         extra = {"meter": dict(meter)} if meter else {}
         if assumed:
             extra["assumed"] = True
         return self._push(self._event("answer", node=check.id, expect=check.expect,
                                       band=band_of(expected), raw=raw, value=value,
-                                      outcome=classify(value, expected), **extra))
+                                      outcome=outcome, **extra))
 
     def skip(self, reason: str = "") -> dict:
         """Record that the check could not be made; follow its `unable` route (default cleared)."""

@@ -130,9 +130,9 @@ class CheckPanel(Vertical):
             stage=check.stage))
         if prompt.is_measurement:
             exp = prompt.expected
-            from faultwise.core.units import over_range
+            from faultwise.core.units import reads_open
 
-            opened = " OL or open: an open circuit." if over_range("OL", exp.unit or "V") else ""
+            opened = " OL or open: an open circuit." if reads_open(exp.unit or "V") else ""
             set_text(self._instruction, Content.from_markup(
                 "Measure: $what. Type the reading (in $unit or with a prefix: 4k7, 150m, "
                 "2R2).$opened", what=exp.title, unit=exp.unit or "its unit", opened=opened))
