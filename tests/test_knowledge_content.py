@@ -47,7 +47,8 @@ def test_every_fault_is_complete(kn):
         assert fault.repair, fault.id
         assert fault.verify, fault.id
         assert fault.signature.readings or fault.signature.observations, fault.id
-        assert fault.priors and all(w > 0 for w in fault.priors.values()), fault.id
+        assert fault.priors and all(w >= 0 for w in fault.priors.values()), fault.id
+        assert any(w > 0 for w in fault.priors.values()), fault.id   # 0: reached, not a cause
         assert set(fault.priors) <= SYMPTOM_IDS, fault.id
 
 
