@@ -14,6 +14,7 @@ from pathlib import Path
 import pytest
 
 from faultwise.core.workspace import bundled_knowledge_dir
+from faultwise.expect.classify import classify
 from faultwise.graph.knowledge import load_knowledge
 from faultwise.shop.sweep import load_demo_sets
 from faultwise.walk import evidence, rank
@@ -194,3 +195,46 @@ def test_physics_uses_the_workspace_tube_table(tmp_path):
     assert own < bundled - 10.0          # the table matters (25 V more across the rectifier)
     got = evidence.Evidence(kb, profile, bands).physics("supply.open-first-filter-cap")
     assert got["supply.rectifier_out_v"].nominal == pytest.approx(own)
+
+
+def test_an_injection_ahead_of_an_unfed_stage_is_silent(bundled):
+    # Trade fact, common practice, no source: a tube with no plate or screen volts passes no
+    # signal, so a tone injected ahead of it is not heard. On the 230 V transformer set the
+    # second filter capacitor shorted leaves the first capacitor's B+ near normal (the filter
+    # resistor holds the short off the rectifier) but takes the filtered line, which feeds
+    # the first audio plate and the output screen, to nothing.
+    k, demos = bundled
+    demo = demos["demo-230v-transformer.yaml"]
+    ev = _evidence(bundled, "demo-230v-transformer.yaml")
+    f = k.nodes["supply.shorted-second-filter-cap"]
+    assert "audio.dlo-inject-lug" not in f.signature.observations
+    physics = ev.physics(f.id)
+    assert classify(physics["stage.detector.plate_v"].nominal,
+                    demo.expectations["stage.detector.plate_v"]) == "absent"
+    assert classify(physics["supply.rectifier_out_v"].nominal,
+                    demo.expectations["supply.rectifier_out_v"]) != "absent"
+    for check in ("audio.dlo-inject-lug", "audio.inject-output-grid", "if.inject-if-grid"):
+        assert ev.predicted(f.id, check) == "nothing", check
+    assert ev.observations(f)["audio.dlo-inject-lug"] == "nothing"
+    # A fault that leaves every stage fed predicts nothing from physics: its signature rules.
+    weak = k.nodes["oscillator.weak-converter"]
+    assert evidence.unfed_choice(k.nodes["audio.dlo-inject-lug"], ev.physics(weak.id),
+                                 demo.expectations) is None
+    assert ev.predicted(weak.id, "audio.dlo-inject-lug") is None
+    # Readings given as class words (a signature's) count too.
+    lug = k.nodes["audio.dlo-inject-lug"]
+    assert evidence.unfed_choice(lug, {"stage.output.screen_v": "absent"}, {}) == "nothing"
+    assert evidence.unfed_choice(lug, {"stage.output.screen_v": "low"}, {}) is None
+
+
+def test_the_injected_walk_hears_nothing_through_an_unfed_stage(bundled):
+    from faultwise.shop.sweep_inject import walk_fault
+
+    k, demos = bundled
+    demo = demos["demo-230v-transformer.yaml"]
+    ev = _evidence(bundled, "demo-230v-transformer.yaml")
+    f = k.nodes["supply.shorted-second-filter-cap"]
+    readings = {n: e.nominal for n, e in ev.physics(f.id).items()}
+    walk = walk_fault(k, demo, f, "dead-lights-on", readings)
+    assert ("audio.dlo-inject-lug", "nothing") in [(n, o) for n, o, _ in walk.path]
+    assert walk.concluded == f.id

@@ -476,3 +476,21 @@ def test_lint_from_a_checkout_that_was_never_installed(tmp_path):
                          env=env, capture_output=True, text=True, timeout=120)
     assert out.returncode == 1 and "Traceback" not in out.stderr
     assert "pip install ." in out.stderr and out.stderr.count("\n") == 1
+
+
+def test_unfed_must_name_a_choice_and_known_readings(tmp_path):
+    # 'unfed' is an observation's answer when a stage it listens through has no supply.
+    good = "    normal: same\n    unfed: {choice: same, readings: [output.plate_v]}\n"
+    kb = broken(tmp_path / "ok", "graph/antenna.yaml", "    normal: same\n", good)
+    assert lint(kb, names).errors == []
+    kb = broken(tmp_path / "a", "graph/antenna.yaml", "    normal: same\n",
+                "    normal: same\n    unfed: {choice: silent, readings: [output.plate_v]}\n")
+    found = only(lint(kb, names), "'unfed' choice 'silent' is not one of the check's choices")
+    assert found[0].node == "antenna.loop-check"
+    assert found[0].line == line_of(kb, "graph/antenna.yaml", "unfed:")
+    kb = broken(tmp_path / "b", "graph/antenna.yaml", "    normal: same\n",
+                "    normal: same\n    unfed: {choice: same, readings: [output.plate_mv]}\n")
+    only(lint(kb, names), "the 'unfed' reading 'output.plate_mv' is not an expectation name")
+    kb = broken(tmp_path / "c", "graph/antenna.yaml", "    normal: same\n",
+                "    normal: same\n    unfed: {choice: same, readings: output.plate_v}\n")
+    only(lint(kb, names), "'unfed' needs 'readings'")

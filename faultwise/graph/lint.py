@@ -130,6 +130,12 @@ class _Lint(LintRun):
             if not node.why:
                 self.at(node, "the check has no 'why'", "say what the result tells",
                         warning=True)
+            if node.unfed is not None and self.known is not None:
+                for name in node.unfed.readings:
+                    if not any(self.known[f](name) for f in node.families):
+                        self.at(node, f"the 'unfed' reading '{name}' is not an expectation "
+                                "name of the check's families", "use a name from "
+                                "knowledge/README.md, 'Expectation names'")
             if "no-minutes" in notes_by_node.get(node.id, ()):
                 self.at(node, "the check has no 'minutes'", "add its typical cost in minutes",
                         warning=True)

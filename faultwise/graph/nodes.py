@@ -41,6 +41,9 @@ class Check:
     it): the text a walk of that family shows instead (see :mod:`faultwise.graph.node_text`).
     ``when``: conditions on the set (key -> any of these values) for the check to apply;
     empty: it applies to every set of its families (see :mod:`faultwise.graph.applicability`).
+    ``unfed``: an observation that listens through stages (a signal injection, a click test)
+    names the readings that show those stages powered, and the choice the set gives when one
+    of them reads absent (see :func:`faultwise.walk.evidence.unfed_choice`).
     """
 
     id: str
@@ -57,6 +60,7 @@ class Check:
     cautions: tuple[str, ...] = ()
     unable: str | None = None
     closing: bool = False
+    unfed: Unfed | None = None
     when: Mapping[str, tuple[str, ...]] = field(default_factory=lambda: _frozen({}))
     variants: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
@@ -97,6 +101,17 @@ class Suspects:
     variants: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "suspects"
+
+
+@dataclass(frozen=True)
+class Unfed:
+    """An observation's answer on a set that has lost a stage's supply: ``choice`` when any
+    of ``readings`` (expectation names: a plate, screen or collector voltage, a stage's
+    current) reads absent. A tone injected ahead of a stage with no plate volts is not heard,
+    whatever a fault's signature leaves unsaid."""
+
+    choice: str
+    readings: tuple[str, ...]
 
 
 @dataclass(frozen=True)

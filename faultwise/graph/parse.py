@@ -16,7 +16,8 @@ from faultwise.graph.reader import (ID_RE, KnowledgeReader, Problems, is_number,
                                     key_text, read_yaml)
 from faultwise.graph.node_text import parse_variants
 from faultwise.graph.nodes import (CLEARED, FAMILIES, MEASURE_OUTCOMES, STAGES, Check, Escalate,
-                                   Fault, Investigation, Located, Node, Signature, Suspects)
+                                   Fault, Investigation, Located, Node, Signature, Suspects,
+                                   Unfed)
 
 GRAPH_FORMAT = "faultwise-graph/1"
 DEFAULT_MINUTES = 1.0        # cost of a check that does not say (lint warns)
@@ -25,7 +26,8 @@ OTHERWISE = "otherwise"      # outcome key that routes every outcome not listed
 _COMMON = ("id", "kind", "title", "stage", "families", "text_by_family")
 KEYS = {
     "check": frozenset(_COMMON + ("how", "why", "cautions", "minutes", "expect", "choices",
-                                  "normal", "outcomes", OTHERWISE, "unable", "closing", "when")),
+                                  "normal", "outcomes", OTHERWISE, "unable", "closing", "when",
+                                  "unfed")),
     "suspects": frozenset(_COMMON + ("why", "investigations", "exhausted")),
     "fault": frozenset(_COMMON + ("repair", "parts", "verify", "signature", "priors",
                                   "cautions", "notes", "when", "plain", "model")),
@@ -161,7 +163,38 @@ def _check(r: KnowledgeReader, base: dict) -> Check:
     return Check(**base, how=r.text("how"), why=r.text("why"), minutes=minutes,
                  outcomes=MappingProxyType(outcomes), normal=normal, expect=expect,
                  choices=MappingProxyType(choices), cautions=r.texts("cautions"),
-                 unable=r.text("unable") or None, closing=closing, when=_when(r))
+                 unable=r.text("unable") or None, closing=closing, when=_when(r),
+                 unfed=_unfed(r, choices))
+
+
+UNFED_KEYS = frozenset(("choice", "readings"))
+
+
+def _unfed(r: KnowledgeReader, choices: Mapping[str, str]) -> Unfed | None:
+    """``unfed: {choice: <a choice>, readings: [<expectation name>, ...]}`` (observations)."""
+    raw = r.raw.get("unfed")
+    if raw is None:
+        return None
+    hint = "write 'unfed: {choice: nothing, readings: [stage.output.plate_v]}'"
+    if not choices:
+        r.bad("unfed", "'unfed' belongs on an observation (a check with 'choices')", hint)
+        return None
+    if not isinstance(raw, dict):
+        r.bad("unfed", "'unfed' must be a mapping with 'choice' and 'readings'", hint)
+        return None
+    sub = KnowledgeReader(raw, r.file, r.node, r.p)
+    sub.unknown_keys(UNFED_KEYS, "'unfed'")
+    choice = sub.text("choice")
+    names = raw.get("readings")
+    if choice not in choices:
+        r.bad("unfed", f"'unfed' choice '{choice}' is not one of the check's choices",
+              "use one of " + ", ".join(choices))
+        return None
+    if (not isinstance(names, list) or not names
+            or not all(isinstance(n, str) and n.strip() for n in names)):
+        r.bad("unfed", "'unfed' needs 'readings': a list of expectation names", hint)
+        return None
+    return Unfed(choice=choice, readings=tuple(n.strip() for n in names))
 
 
 def _investigations(r: KnowledgeReader) -> tuple[Investigation, ...]:

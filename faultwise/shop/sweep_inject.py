@@ -158,8 +158,13 @@ def _diag_path(result: WalkResult) -> tuple:
 
 
 def walk_fault(knowledge: Knowledge, demo: DemoSet, fault: Fault, symptom: str, readings: Mapping) -> InjectWalk:
+    """Walk one broken set: its readings, and the observations they and its signature give
+    (a listening check whose stages the readings leave unfed is silent)."""
+    from faultwise.shop.sweep_walk import set_evidence
+
+    observations = set_evidence(knowledge, demo).observations(fault, readings)
     try:
-        r = _walk(knowledge, demo, symptom, readings, dict(fault.signature.observations))
+        r = _walk(knowledge, demo, symptom, readings, observations)
     except FaultwiseError as exc:
         return InjectWalk(demo.name, demo.family, fault.id, symptom, None, None, 0, 0.0,
                           error=str(exc))
@@ -286,7 +291,10 @@ def check_outcome(check: Check, fault: Fault | None, readings: Mapping | None,
         return value if isinstance(value, str) else classify(float(value), healthy[check.expect])
     if fault is None:
         return check.normal
-    return fault.signature.observations.get(check.id, check.normal)
+    from faultwise.walk.evidence import unfed_choice
+
+    said = unfed_choice(check, readings, healthy)
+    return said if said is not None else fault.signature.observations.get(check.id, check.normal)
 
 
 def set_problem(knowledge: Knowledge, demo: DemoSet, symptom: str, fault_ids: Sequence[str],

@@ -13,6 +13,9 @@ contradict keeps only a small part of its weight:
   not a general signature, is the oracle; otherwise its signature gives the class (or a
   number, classified against the set's band);
 - an observation check: the fault's signature gives the choice; silent means no prediction.
+  Physics comes first here too: a check that listens through stages (``unfed:``, a signal
+  injection or a click test) is silent on a broken set that reads one of those stages'
+  supplies absent, whatever the signature says (:func:`unfed_choice`).
 
 The likelihood of the answers given a fault is the product over answered checks of
 ``AGREE`` (prediction met), ``CONTRADICTED`` (prediction missed), or, with no prediction,
@@ -61,6 +64,7 @@ class Evidence:
         self._predicted: dict[tuple[str, str], str | None] = {}
         self._reach: dict[tuple[str, str, str], float] = {}
         self._tubes: tuple = ()          # (the workspace's tube table or None,) once looked up
+        self._unfed_checks: tuple[Check, ...] | None = None
 
     def physics(self, fault_id: str) -> Mapping | None:
         """The set's expectations with the fault's model injected (its readings as the broken
@@ -109,7 +113,10 @@ class Evidence:
             return None
         sig = fault.signature
         if not check.is_measurement:
-            return sig.observations.get(check.id)
+            faulty = self._faulty(fault)
+            said = unfed_choice(check, faulty if faulty is not None else sig.readings,
+                                self.expectations)
+            return said if said is not None else sig.observations.get(check.id)
         name = check.expect
         band = self.expectations.get(name)
         faulty = self._faulty(fault)
@@ -121,6 +128,27 @@ class Evidence:
         if isinstance(spec, (int, float)) and not isinstance(spec, bool) and band is not None:
             return classify(float(spec), band)
         return None
+
+    def observations(self, fault: Fault, readings: Mapping | None = None) -> dict[str, str]:
+        """The observation answers of a set with this fault: its signature's, with each
+        listening check whose stages the broken set leaves unfed giving its unfed choice.
+        ``readings``: the broken set's readings (default: its physics, or its signature's
+        readings when it has no model that fits)."""
+        if readings is None:
+            faulty = self._faulty(fault)
+            readings = faulty if faulty is not None else fault.signature.readings
+        out = dict(fault.signature.observations)
+        for check in self._listening():
+            said = unfed_choice(check, readings, self.expectations)
+            if said is not None:
+                out[check.id] = said
+        return out
+
+    def _listening(self) -> tuple[Check, ...]:
+        if self._unfed_checks is None:
+            self._unfed_checks = tuple(n for n in self.knowledge.nodes.values()
+                                       if isinstance(n, Check) and n.unfed is not None)
+        return self._unfed_checks
 
     def reach(self, fault_id: str, target: str, family: str) -> float:
         """How much of a fault's weight an investigation of ``target`` carries: 1 when the
@@ -162,3 +190,26 @@ class Evidence:
                     w *= AGREE if said == outcome else CONTRADICTED
             out[f] = w
         return out
+
+
+def unfed_choice(check: Check, readings: Mapping | None, healthy: Mapping) -> str | None:
+    """The choice an observation gives on a broken set that has lost the supply of a stage it
+    listens through (any of its ``unfed`` readings absent), or None: fed, or the check lists
+    none. ``readings``: the broken set's, by expectation name: an expectation (its nominal
+    is used) or a number, classified against the healthy band, or an outcome class word."""
+    if check.unfed is None or not readings:
+        return None
+    for name in check.unfed.readings:
+        value = readings.get(name)
+        if value is None or isinstance(value, bool):
+            continue
+        if isinstance(value, str):
+            outcome = value
+        else:
+            band = healthy.get(name)
+            if band is None:
+                continue
+            outcome = classify(float(getattr(value, "nominal", value)), band)
+        if outcome == "absent":
+            return check.unfed.choice
+    return None
