@@ -168,6 +168,26 @@ async def test_minutes_typed_after_the_outcome_replace_the_prefilled_ones(make_a
         assert (data["status"], data["minutes"]) == ("closed", 25)
 
 
+async def test_a_tab_before_the_minutes_does_not_append_to_the_prefilled_ones(make_app,
+                                                                               cases_dir, bands):
+    """Found walking a case in tmux: outcome 1, a habitual Tab, then 10 typed closed the
+    case with 110 minutes. Whatever Tab does to the focus, the first digit typed replaces
+    the prefilled minutes."""
+    app = make_app()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await walk_to_capacitor_fault(pilot, bands)
+        await verify_low_then_leakage(pilot, bands)
+        await pilot.press("2")
+        await pilot.pause()
+        await pilot.press("tab")                    # the focus moves on to the history
+        await pilot.pause()
+        await pilot.press("1", "0")                 # typing brings it back to the minutes
+        await pilot.press("enter")
+        await pilot.pause()
+        data = read_case(cases_dir)
+        assert (data["status"], data["minutes"]) == ("closed", 10)
+
+
 async def test_minutes_prefilled_and_checked(workspace, cases_dir, bands):
     clock = StepClock()
     app = clocked_app(workspace, clock)

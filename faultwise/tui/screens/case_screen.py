@@ -24,6 +24,7 @@ from faultwise.tui.screens.caution import CautionScreen
 from faultwise.tui.screens.readings import ReadingsScreen
 from faultwise.tui.screens.save_failed import SaveFailedScreen
 from faultwise.tui.screens.text_prompt import TextPromptScreen
+from faultwise.tui.widgets.bench_input import BenchInput
 from faultwise.tui.widgets.check_panel import CheckPanel
 from faultwise.tui.wording import bench_sentence, internal_error, printable, readable
 from faultwise.walk.results import Prompt
@@ -209,11 +210,19 @@ class CaseScreen(Screen):
         return field
 
     def type_into_field(self, text: str) -> bool:
-        """Put ``text`` into the current step's field (focusing it); False when none."""
-        field = self._focused_field()
+        """Put ``text`` into the current step's field as typing would (replacing a prefilled
+        value or a selection), then focus it; False when the screen has none."""
+        try:
+            field = self.current_field() if self.is_attached else None
+        except NoMatches:
+            field = None
         if field is None:
             return False
-        field.insert_text_at_cursor(text)
+        if isinstance(field, BenchInput):
+            field.type_text(text)
+        else:
+            field.insert_text_at_cursor(text)
+        field.focus()
         return True
 
     def submit_field(self) -> bool:

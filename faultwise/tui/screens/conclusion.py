@@ -222,9 +222,9 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         self.query_one("#close-caption", Static).update(Content.from_markup(
             "[b]Close the case[/b]: choose the outcome, then type the minutes spent.$w",
             w=warn))
-        minutes = self.query_one("#close-minutes", Input)
+        minutes = self.query_one("#close-minutes", BenchInput)
         if not minutes.value:
-            minutes.value = str(self.elapsed_minutes())
+            minutes.prefill(str(self.elapsed_minutes()))
         self.query_one("#close-outcome", Input).focus()
 
     def elapsed_minutes(self) -> int:
