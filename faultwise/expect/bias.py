@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-from faultwise.expect.context import Context, basis_num as _n
+from faultwise.expect.context import Context, basis_num as _n, role_word
 
 if TYPE_CHECKING:
     from faultwise.calc.tolerance import Spread
@@ -96,7 +96,7 @@ def add_bias(ctx: Context) -> None:
         for field, (what, unit, attr) in BIAS_FIELDS.items():
             bb = bands[attr]
             ctx.add(f"bias.{tr.role}.{field}",
-                    f"{tr.role.capitalize()} {tr.material} {tr.polarity.upper()} {what}", stage,
+                    f"{role_word(tr.role)} {tr.material} {tr.polarity.upper()} {what}", stage,
                     bb.nominal, bb.low, bb.high, unit, f"{head}; {tails[field]}; {band}", keys=keys)
         # standby: per battery end, the sum of each stage's min/max over its own corners
         draw = lambda d: d.ic_ma + d.divider_ma

@@ -40,6 +40,14 @@ class Expected:
                 "unit": self.unit, "basis": self.basis, "typical": self.typical}
 
 
+_ROLE_WORDS = {"if": "IF", "if2": "Second IF", "rf": "RF"}
+
+
+def role_word(role: str) -> str:
+    """A stage role as a label starts: 'IF', 'Second IF', 'Converter' (not 'If')."""
+    return _ROLE_WORDS.get(role, role.capitalize())
+
+
 def basis_num(x: float) -> str:
     """A number for a basis line: 4 significant digits, plain notation."""
     if x == 0:

@@ -19,7 +19,7 @@ from collections.abc import Callable, Mapping
 from dataclasses import replace
 from typing import TYPE_CHECKING
 
-from faultwise.expect.context import Context, basis_num as _n
+from faultwise.expect.context import Context, basis_num as _n, role_word
 
 if TYPE_CHECKING:
     from faultwise.calc.tolerance import Band, Spread
@@ -38,9 +38,6 @@ _WHAT = {"plate_v": ("plate", "V"), "screen_v": ("screen", "V"), "cathode_v": ("
 
 
 # How a role is written at the start of a title (IF is an abbreviation, not a word).
-_ROLE_WORD = {"if": "IF"}
-
-
 def role_kind(role: str, op: TypicalOperation) -> str:
     """converter | if | triode-audio | pentode-audio | output, from the role and the section."""
     if role in ("converter", "mixer", "oscillator"):
@@ -249,7 +246,7 @@ def _add_stage(ctx: Context, tube: Tube, op: TypicalOperation, op_typical: bool,
         lo, hi, n = sorted((abs(b.low), abs(b.high))) + [abs(b.nominal)]
         what, unit = _WHAT[field]
         zero_ok = field in ("grid_v",) or (field == "cathode_v" and not circuit.cathode_ohm)
-        role = _ROLE_WORD.get(tube.role, tube.role.capitalize())
+        role = role_word(tube.role)
         ctx.add(f"stage.{tube.role}.{field}", f"{role} tube {what} ({tube.type})",
                 stage_name, n, lo, hi, unit, f"{head}; {tails[field]}; {band}", keys=keys,
                 absent=0.0 if zero_ok and n < 1e-9 else None,
