@@ -137,13 +137,15 @@ def walk_signature(knowledge: Knowledge, fault_id: str, symptom: str, demo: Demo
 
     fault = knowledge.node(fault_id)
     readings = synthesise_readings(fault.signature, demo.expectations)
-    kwargs = {"expectations": demo.expectations, "counts": counts,
-              "evidence": set_evidence(knowledge, demo)}
+    evidence = set_evidence(knowledge, demo)
+    kwargs = {"expectations": demo.expectations, "counts": counts, "evidence": evidence}
     if order is not None:
         kwargs["order"] = order
     try:
+        # A listening check is silent where the signature's own readings leave a stage
+        # unfed, as in the injected sweep and the walk's predictions.
         result = auto_walk(knowledge, demo.profile, symptom, readings,
-                           dict(fault.signature.observations), **kwargs)
+                           evidence.observations(fault, readings), **kwargs)
     except FaultwiseError as exc:
         return SweepWalk(fault_id, symptom, demo.family, demo.name, None, None, 0, 0.0, 0.0,
                          error=str(exc))

@@ -113,10 +113,13 @@ class Evidence:
             return None
         sig = fault.signature
         if not check.is_measurement:
-            faulty = self._faulty(fault)
-            said = unfed_choice(check, faulty if faulty is not None else sig.readings,
-                                self.expectations)
-            return said if said is not None else sig.observations.get(check.id)
+            if check.unfed is not None:            # physics only where the check listens
+                faulty = self._faulty(fault)
+                said = unfed_choice(check, faulty if faulty is not None else sig.readings,
+                                    self.expectations)
+                if said is not None:
+                    return said
+            return sig.observations.get(check.id)
         name = check.expect
         band = self.expectations.get(name)
         faulty = self._faulty(fault)
