@@ -160,3 +160,42 @@ def test_coverage_200_faults_and_10_per_stage_per_family(k):
     titles = " ".join(f.title.lower() for f in faults)
     for kind in ("drifted", "leaky", "image", "cracked", "backwards", "slipping"):
         assert kind in titles, kind
+
+
+def test_a_resistor_is_condemned_only_after_both_its_ends_are_read(k):
+    """Trade fact, common practice, no source: a low reading at the far end of a feed
+    resistor blames the resistor only if the supply feeding it is right; a low B+ starves
+    every stage the same way. On the demo 300 mA set a dried first filter capacitor, with
+    readings drawn anywhere in its faulty band, used to end at 'oscillator feed resistor
+    drifted' from a low oscillator anode alone."""
+    from faultwise.graph.nodes import Check, Fault
+
+    feed = "oscillator.drifted-osc-feed-resistor"
+    ifbias = "if.tr-bias-resistor-drifted"
+    for node in k.nodes.values():
+        if isinstance(node, Check):
+            for outcome, target in node.outcomes.items():
+                if target == feed:
+                    assert node.expect == "supply.filtered_v", (node.id, outcome)
+                if target == ifbias:
+                    assert node.expect is None and "ohms" in node.how, (node.id, outcome)
+    source = k.nodes["oscillator.osc-feed-source"]
+    assert source.outcomes["low"] == "supply.low-b-suspects"
+    assert source.outcomes["normal"] == feed
+    assert isinstance(k.nodes[feed], Fault)
+    # The walk itself, on the injected sweep's band pass (seed 1962): readings drawn in the
+    # dried capacitor's faulty band read the oscillator anode low.
+    import random
+
+    from faultwise.shop.sweep import load_demo_sets
+    from faultwise.shop.sweep_inject import band_readings, walk_fault
+    from faultwise.shop.sweep_walk import set_evidence
+
+    demo = next(d for fam in load_demo_sets(SETS, KNOWLEDGE).values() for d in fam
+                if d.name == "demo-300ma-series.yaml")
+    fault = k.nodes["supply.open-first-filter-cap"]
+    faulty = set_evidence(k, demo).physics(fault.id)
+    drawn = band_readings(faulty, random.Random(f"1962:{demo.name}:{fault.id}"))
+    walk = walk_fault(k, demo, fault, "weak-reception", drawn)
+    assert ("oscillator.osc-feed-v", "low") in [(n, o) for n, o, _ in walk.path]
+    assert walk.concluded != feed
