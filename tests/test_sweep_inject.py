@@ -117,3 +117,19 @@ def test_known_misses_are_explained_and_checked(tmp_path):
     with pytest.raises(FaultwiseError, match="cannot reach"):
         load_known(load_knowledge(kb), kb)
     assert any("cannot reach" in e.message for e in lint(kb).errors)
+
+
+def test_readings_anywhere_in_a_faulty_band_never_blame_another_part():
+    """The second pass draws each reading anywhere in the broken set's band (seeded). A walk
+    may then end without a conclusion (the readings overlap the healthy band and the walk
+    says so), but it must never name a different part: at the bench that part would be
+    changed for nothing. Before the both-ends rule, a dried first capacitor ended at the
+    oscillator feed resistor or the first audio plate resistor, an open IF winding at the IF
+    bias resistor, and an under-biased output pair at an open output transistor."""
+    k = load_knowledge(KNOWLEDGE)
+    sets = load_demo_sets(KNOWLEDGE / "sets", KNOWLEDGE)
+    rep = run_inject(k, sets, band_pass=True, optimal=False)
+    assert len(rep.band_walks) == len(rep.walks) > 2000
+    blamed = [(w.set_name, w.fault, w.symptom, w.concluded) for w in rep.band_walks
+              if w.concluded is not None and w.concluded != w.fault]
+    assert blamed == []
