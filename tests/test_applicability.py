@@ -371,8 +371,6 @@ def _rectifier_tube_node(node) -> bool:
 def _walk_every_signature(kn, set_name):
     """auto_walk every applying fault's signature for every symptom of its priors, and the
     all-normal walk of every symptom; returns (results by fault, every node asked)."""
-    from faultwise.shop.sweep_walk import causes
-
     profile, ex = _set(set_name)
     faults = applying_faults(kn, profile, ex)
     asked, results = set(), {}
@@ -383,7 +381,7 @@ def _walk_every_signature(kn, set_name):
         asked |= {s.node for s in plain.steps}
         for fid in sorted(kn.faults_for(symptom, profile.family) & faults):
             fault = kn.nodes[fid]
-            if symptom not in causes(fault):          # a zero prior: reached, not a cause
+            if symptom not in fault.causes:          # a zero prior: reached, not a cause
                 continue
             readings = {k: representative_value(ex[k], v) if isinstance(v, str) else v
                         for k, v in fault.signature.readings.items() if k in ex}

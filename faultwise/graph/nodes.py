@@ -152,6 +152,13 @@ class Fault:
     variants: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "fault"
+
+    @property
+    def causes(self) -> tuple[str, ...]:
+        """The complaints this fault causes: its priors above zero. A zero prior marks a
+        complaint whose walk can reach the fault without the fault causing it (not swept,
+        weighted 0)."""
+        return tuple(sorted(s for s, weight in self.priors.items() if weight > 0))
     plain: str = ""
     model: Mapping[str, str] = field(default_factory=lambda: _frozen({}))   # fault_models
 

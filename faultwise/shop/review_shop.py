@@ -77,7 +77,7 @@ def never_reached(knowledge: Knowledge | None, cases: Iterable[Mapping]) -> list
     for node in knowledge.nodes.values():
         if node.kind == "fault" and node.id not in seen:
             out.append(UnreachedFault(node.id, node.title, node.stage, tuple(node.families),
-                                      tuple(sorted(node.priors))))
+                                      node.causes))
     return sorted(out, key=lambda f: f.fault)
 
 

@@ -197,7 +197,7 @@ def run_inject(knowledge: Knowledge, sets: Mapping[str, Sequence], *, seed: int 
     workspace's tube table): each fault is computed once per set."""
     from faultwise.graph.applicability import node_applies
     from faultwise.expect.fault_models import applies_to, parse_model
-    from faultwise.shop.sweep_walk import causes, set_evidence
+    from faultwise.shop.sweep_walk import set_evidence
 
     faults = modelled_faults(knowledge)
     parsed = {}
@@ -233,7 +233,7 @@ def run_inject(knowledge: Knowledge, sets: Mapping[str, Sequence], *, seed: int 
             nominal = {n: e.nominal for n, e in faulty.items()}
             rng = random.Random(f"{seed}:{demo.name}:{f.id}")
             drawn = band_readings(faulty, rng) if band_pass else None
-            for sym in causes(f):
+            for sym in f.causes:
                 s = knowledge.symptoms.get(sym)
                 if s is None or fam not in s.families or fam not in s.entry:
                     continue

@@ -48,13 +48,7 @@ def swept_faults(knowledge: Knowledge, symptom: str, family: str) -> list[str]:
     symptom (a zero prior says the walk can reach the fault but it does not cause this
     complaint, so no walk of the complaint is expected to end at it)."""
     return sorted(f for f in knowledge.faults_for(symptom, family)
-                  if has_signature(knowledge.nodes[f]) and symptom in causes(knowledge.nodes[f]))
-
-
-def causes(fault: Fault) -> list[str]:
-    """The complaints a fault is swept for: its priors above zero (a zero prior marks a
-    complaint whose walk can reach the fault without the fault causing it)."""
-    return sorted(s for s, weight in fault.priors.items() if weight > 0)
+                  if has_signature(knowledge.nodes[f]) and symptom in knowledge.nodes[f].causes)
 
 
 def has_signature(fault: Fault) -> bool:
@@ -74,7 +68,7 @@ def sweep_targets(knowledge: Knowledge, *, families: Iterable[str] = FAMILIES,
     for node in knowledge.nodes.values():
         if not isinstance(node, Fault) or not has_signature(node):
             continue
-        for sym in causes(node):
+        for sym in node.causes:
             if symptom is not None and sym != symptom:
                 continue
             for fam in node.families:
