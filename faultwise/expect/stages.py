@@ -37,7 +37,6 @@ _WHAT = {"plate_v": ("plate", "V"), "screen_v": ("screen", "V"), "cathode_v": ("
          "grid_v": ("control grid", "V"), "cathode_ma": ("cathode current", "mA")}
 
 
-# How a role is written at the start of a title (IF is an abbreviation, not a word).
 def role_kind(role: str, op: TypicalOperation) -> str:
     """converter | if | triode-audio | pentode-audio | output, from the role and the section."""
     if role in ("converter", "mixer", "oscillator"):

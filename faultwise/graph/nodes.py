@@ -152,6 +152,8 @@ class Fault:
     variants: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: _frozen({}))
     where: Located | None = None
     kind: str = "fault"
+    plain: str = ""
+    model: Mapping[str, str] = field(default_factory=lambda: _frozen({}))   # fault_models
 
     @property
     def causes(self) -> tuple[str, ...]:
@@ -159,8 +161,6 @@ class Fault:
         complaint whose walk can reach the fault without the fault causing it (not swept,
         weighted 0)."""
         return tuple(sorted(s for s, weight in self.priors.items() if weight > 0))
-    plain: str = ""
-    model: Mapping[str, str] = field(default_factory=lambda: _frozen({}))   # fault_models
 
 
 @dataclass(frozen=True)

@@ -168,19 +168,23 @@ class CaseScreen(Screen):
 
     # ------------------------------------------------------------------ focus
 
-    def current_field(self) -> Input | None:
-        """The Input the current step needs, or None (subclasses say which)."""
+    def current_field(self) -> BenchInput | None:
+        """The field the current step needs, or None (subclasses say which)."""
         return None
+
+    def _step_field(self) -> BenchInput | None:
+        """The current step's field; None when the screen has none (or is gone)."""
+        try:
+            return self.current_field() if self.is_attached else None
+        except NoMatches:
+            return None
 
     def focus_field(self) -> None:
         """Give the focus back to the field the current step needs (only while this screen
         is the one shown: a resume can come after the screen was switched away)."""
-        if not self.is_attached or self.app.screen is not self:
+        if self.app.screen is not self:
             return
-        try:
-            field = self.current_field()
-        except NoMatches:
-            return
+        field = self._step_field()
         if field is not None:
             field.focus()
 
@@ -199,37 +203,22 @@ class CaseScreen(Screen):
             event.stop()
             event.prevent_default()
 
-    def _focused_field(self) -> Input | None:
-        """The current step's field, focused; None when the screen has none (or is gone)."""
-        try:
-            field = self.current_field() if self.is_attached else None
-        except NoMatches:
-            field = None
-        if field is not None:
-            field.focus()
-        return field
-
     def type_into_field(self, text: str) -> bool:
         """Put ``text`` into the current step's field as typing would (replacing a prefilled
         value or a selection), then focus it; False when the screen has none."""
-        try:
-            field = self.current_field() if self.is_attached else None
-        except NoMatches:
-            field = None
+        field = self._step_field()
         if field is None:
             return False
-        if isinstance(field, BenchInput):
-            field.type_text(text)
-        else:
-            field.insert_text_at_cursor(text)
+        field.type_text(text)
         field.focus()
         return True
 
     def submit_field(self) -> bool:
         """Enter on the current step's field, for a key that reached a closing dialog."""
-        field = self._focused_field()
+        field = self._step_field()
         if field is None:
             return False
+        field.focus()
         field.action_submit()
         return True
 

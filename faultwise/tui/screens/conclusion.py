@@ -231,14 +231,15 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         """Whole minutes since the case was opened, at least 1 (the tech may correct it)."""
         return whole_minutes_since(self.case.data.get("opened"), self.bench.clock())
 
-    def current_field(self) -> Input | None:
+    def current_field(self) -> BenchInput | None:
         if self.query_one("#parts-form").display:
-            return self.query_one("#parts", Input)
+            return self.query_one("#parts", BenchInput)
         panel = self.query_one(CheckPanel)
         if panel.display:
             return panel.input
         if self.query_one("#close-form").display:
-            return self.query_one("#close-minutes" if self.outcome else "#close-outcome", Input)
+            return self.query_one("#close-minutes" if self.outcome else "#close-outcome",
+                                  BenchInput)
         return None
 
     # ------------------------------------------------------------------ input

@@ -14,7 +14,7 @@ from textual.app import ComposeResult, SystemCommand
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.content import Content
-from textual.widgets import Header, Input, Static
+from textual.widgets import Header, Static
 
 from faultwise.cases.store import OpenCase
 from faultwise.graph.knowledge import Knowledge
@@ -24,6 +24,7 @@ from faultwise.tui.screens.case_screen import CaseScreen
 from faultwise.tui.screens.explain import ExplainScreen
 from faultwise.tui.screens.text_prompt import TextPromptScreen
 from faultwise.tui.widgets.bench_footer import BenchFooter
+from faultwise.tui.widgets.bench_input import BenchInput
 from faultwise.tui.widgets.check_panel import CheckPanel
 from faultwise.tui.widgets.history import History
 from faultwise.tui.widgets.in_place import set_text
@@ -161,7 +162,7 @@ class WalkScreen(MeterKeys, CaseScreen):
                 t=title, w=self.readable(prompt.warning) or getattr(node, "advice", "") or ""))
             self.set_focus(None)
 
-    def current_field(self) -> Input | None:
+    def current_field(self) -> BenchInput | None:
         panel = self._check_panel
         prompt = self.walk.prompt()
         if prompt is None or prompt.kind != "check" or not panel.display:

@@ -49,11 +49,16 @@ class BenchInput(Input):
         self.cursor_position = len(text)
         self._prefilled = True
 
-    async def _on_key(self, event: events.Key) -> None:
-        if self._prefilled and (event.is_printable or event.key in _EDIT_KEYS):
+    def _claim_prefill(self, replace: bool) -> None:
+        """End the prefilled state; ``replace``: select the value so typing replaces it."""
+        if self._prefilled:
             self._prefilled = False
-            if event.is_printable:
+            if replace:
                 self.selection = Selection(0, len(self.value))
+
+    async def _on_key(self, event: events.Key) -> None:
+        if event.is_printable or event.key in _EDIT_KEYS:
+            self._claim_prefill(replace=event.is_printable)
         await super()._on_key(event)
 
     def type_text(self, text: str) -> None:
@@ -62,9 +67,7 @@ class BenchInput(Input):
         that focus must not select what was just typed (Input selects the whole value on
         focus), or the next key, which may already be on its way, would replace it. Selecting
         on focus comes back once the field loses the focus again."""
-        if self._prefilled:
-            self._prefilled = False
-            self.selection = Selection(0, len(self.value))
+        self._claim_prefill(replace=True)
         selection = self.selection
         if selection.is_empty:
             self.insert_text_at_cursor(text)
