@@ -230,11 +230,15 @@ def test_an_injection_ahead_of_an_unfed_stage_is_silent(bundled):
 def test_the_injected_walk_hears_nothing_through_an_unfed_stage(bundled):
     from faultwise.shop.sweep_inject import walk_fault
 
+    # A flat battery on the silicon portable cuts the IF stage off: the IF injection is
+    # heard as nothing from physics (the signature says nothing about it), and the walk
+    # still ends at the battery. It had ended at "IF transistor open".
     k, demos = bundled
-    demo = demos["demo-230v-transformer.yaml"]
-    ev = _evidence(bundled, "demo-230v-transformer.yaml")
-    f = k.nodes["supply.shorted-second-filter-cap"]
+    demo = demos["demo-si-npn-portable.yaml"]
+    ev = _evidence(bundled, "demo-si-npn-portable.yaml")
+    f = k.nodes["supply.tr-battery-flat"]
+    assert "if.tr-inject-if" not in f.signature.observations
     readings = {n: e.nominal for n, e in ev.physics(f.id).items()}
     walk = walk_fault(k, demo, f, "dead-lights-on", readings)
-    assert ("audio.dlo-inject-lug", "nothing") in [(n, o) for n, o, _ in walk.path]
+    assert ("if.tr-inject-if", "none") in [(n, o) for n, o, _ in walk.path]
     assert walk.concluded == f.id

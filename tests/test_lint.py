@@ -229,6 +229,25 @@ def test_route_into_a_node_of_another_family(tmp_path):
     assert f.node == "supply.b-plus" and "supply.open-heater" in f.message
 
 
+def test_a_list_may_name_an_investigation_of_fewer_families(tmp_path):
+    # The ranking leaves out an investigation that does not apply to the set's family
+    # (walk.rank.target_applies), so a shared list may name one while another serves the
+    # family; a list left with nothing for a family is still an error.
+    kb = broken(tmp_path / "a", "graph/supply.yaml", "    title: Rectifier emission\n",
+                "    title: Rectifier emission\n    families: [series-string]\n")
+    assert not [f for f in lint(kb, names).errors if "does not apply" in f.message
+                and f.node == "supply.low-b-suspects"]
+    kb2 = broken(tmp_path / "b", "graph/supply.yaml", "    title: Ripple at the first filter "
+                 "capacitor\n", "    title: Ripple at the first filter capacitor\n"
+                 "    families: [series-string]\n")
+    kb2_file = kb2 / "graph/supply.yaml"
+    kb2_file.write_text(kb2_file.read_text().replace(
+        "    title: Rectifier emission\n", "    title: Rectifier emission\n"
+        "    families: [series-string]\n"))
+    found = only(lint(kb2, names), "does not apply to transformer sets")
+    assert any(f.node == "supply.low-b-suspects" for f in found)
+
+
 def test_entry_of_another_family(tmp_path):
     kb = broken(tmp_path, "symptoms.yaml",
                 "transformer: supply.b-plus, transistor: supply.tr-battery}\n"

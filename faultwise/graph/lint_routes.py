@@ -5,7 +5,8 @@ routes left out) has none, named node by node. ``reachability``: every fault is 
 a symptom entry or a closing check, every other node from those or a fault's verify checks.
 ``family_reach``: a fault is reached by a walk of every family it claims. ``walks``: per
 symptom and family, every route from the entry leads to a node of that family (each
-(node, target, family) reported once), and no walk ends in ``cleared`` outside every
+(node, target, family) reported once; a suspects list may name an investigation of fewer
+families when another serves the family), and no walk ends in ``cleared`` outside every
 suspects list (a skipped check may). ``priors``: every fault a symptom's walk reaches has
 a prior for it. ``walks``, ``family_reach`` and ``priors`` run only on a graph without
 cycles.
@@ -21,6 +22,8 @@ from faultwise.graph.nodes import CLEARED, FAMILIES, Check, Fault, Suspects
 
 if TYPE_CHECKING:
     import networkx as nx
+
+    from faultwise.graph.knowledge import Knowledge
 
 
 def targets(run: LintRun) -> None:
@@ -110,12 +113,18 @@ def walks(run: LintRun) -> None:
 
 def _routes_apply(run: LintRun, entry: str, family: str, symptom: str,
                   reported: set[tuple[str, str, str]]) -> None:
-    """Every route a walk from ``entry`` can take leads to a node of ``family``."""
+    """Every route a walk from ``entry`` can take leads to a node of ``family``. A suspects
+    list may name an investigation of fewer families when another of its investigations
+    serves this one: the ranking leaves out what does not apply to the set
+    (:func:`faultwise.walk.rank.target_applies`)."""
     k, todo, seen = run.k, [entry], {entry}
     while todo:
         node = k.nodes[todo.pop()]
         for target, kind, outcome in edges_of(node):
             if kind == "verify" or target == CLEARED or target not in k.nodes:
+                continue
+            if kind == "suspect" and isinstance(node, Suspects) \
+                    and family not in k.nodes[target].families and _list_serves(k, node, family):
                 continue
             if family not in k.nodes[target].families:
                 if (node.id, target, family) in reported:
@@ -128,6 +137,12 @@ def _routes_apply(run: LintRun, entry: str, family: str, symptom: str,
             elif target not in seen:
                 seen.add(target)
                 todo.append(target)
+
+
+def _list_serves(k: Knowledge, node: Suspects, family: str) -> bool:
+    """Whether one of the list's investigations applies to the family."""
+    return any(inv.target in k.nodes and family in k.nodes[inv.target].families
+               for inv in node.investigations)
 
 
 def _escapes(run: LintRun, node_id: str, family: str, symptom: str,
