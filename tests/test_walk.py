@@ -523,3 +523,29 @@ def test_an_ohmmeter_over_range_reads_open_and_high():
     assert event["outcome"] == "high" and event["value"] is None and "OL" in event["raw"]
     json.dumps(walk.to_case_fields(), allow_nan=False)
     assert walk.conclusion is not None and walk.conclusion.id == "audio.tr-speaker-open"
+
+
+def test_a_state_copy_shares_no_container_with_the_original():
+    """Every event is derived on a copy of the state (a refused event must leave the walk as
+    it was), so the copy may share only what cannot change: every list, dict and suspects
+    frame of the copy is its own, whatever fields the state gains later."""
+    from dataclasses import fields
+
+    from faultwise.walk.derive import _MFrame, _State
+
+    st = _State(stack=[_MFrame("s", ["a"], "b")], memory={"c": "low"},
+                conclusion_stack=[_MFrame("t", ["d"])], close={"outcome": "repaired"})
+    for f in fields(_State):
+        value = getattr(st, f.name)
+        if isinstance(value, list) and not value:
+            value.append("x")
+        if isinstance(value, dict) and not value:
+            value["x"] = "y"
+    cp = st.copy()
+    assert cp == st
+    for f in fields(_State):
+        a, b = getattr(st, f.name), getattr(cp, f.name)
+        if isinstance(a, (list, dict)):
+            assert a is not b, f.name
+    assert cp.stack[0] is not st.stack[0] and cp.stack[0].cleared is not st.stack[0].cleared
+    assert cp.conclusion_stack[0].cleared is not st.conclusion_stack[0].cleared

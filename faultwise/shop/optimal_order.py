@@ -121,14 +121,15 @@ def optimal_minutes(problem: Problem, *, restrict_singles: bool = False,
     weight_of: dict[int, float] = {}
 
     def weight(mask: int) -> float:
-        if mask not in weight_of:
+        total = weight_of.get(mask)
+        if total is None:
             total, m = 0.0, mask
             while m:
                 low = m & -m
                 total += w[low.bit_length() - 1]
                 m ^= low
             weight_of[mask] = total
-        return weight_of[mask]
+        return total
 
     def left_alone(i: int, check: str) -> float:
         """Minutes still owed for hypothesis i left alone by ``check``."""
@@ -149,20 +150,29 @@ def optimal_minutes(problem: Problem, *, restrict_singles: bool = False,
             memo[state] = (0.0, None)
             return memo[state]
         total = weight(state)
-        live = []                  # (row, groups) of the checks that split this set
-        for row in rows:
-            groups = [g for g in (state & m for m in row[2]) if g]
-            if len(groups) > 1:
-                live.append((row, groups))
-        child_rows = [row for row, _ in live]
-        candidates = []
+        child_rows = []            # the checks that split this set
+        candidates = []            # (check, cost, groups) to weigh
         single_best = None         # (w/c, -cost, check) of the best single-fault test
-        for (c, cost, _), groups in live:
+        for row in rows:
+            c, cost, masks = row
+            if len(masks) == 2:             # most checks: two outcomes, a split in two
+                a = state & masks[0]
+                if not a or a == state:
+                    continue
+                groups = (a, state ^ a)
+            else:
+                groups = [g for g in (state & m for m in masks) if g]
+                if len(groups) < 2:
+                    continue
+            child_rows.append(row)
             if restrict_singles and len(groups) == 2:
-                singles = [g for g in groups if g & (g - 1) == 0 and weight(g) > 0]
-                if singles:
-                    f = max(singles, key=weight)
-                    key = (weight(f) / cost if cost > 0 else float("inf"), -cost, c)
+                # the heavier one-hypothesis side (of weight > 0), the first on a tie
+                f, fw = None, 0.0
+                for g in groups:
+                    if g & (g - 1) == 0 and w[g.bit_length() - 1] > fw:
+                        f, fw = g, w[g.bit_length() - 1]
+                if f is not None:
+                    key = (fw / cost if cost > 0 else float("inf"), -cost, c)
                     if single_best is None or key > single_best[0]:
                         single_best = (key, c, cost, groups)
                     continue
@@ -177,8 +187,11 @@ def optimal_minutes(problem: Problem, *, restrict_singles: bool = False,
             for g in groups:
                 gw = weight(g)
                 if gw > 0:
-                    owed = left_alone(g.bit_length() - 1, c) if g & (g - 1) == 0 else 0.0
-                    value += gw / total * (solve(g, child_rows)[0] + owed)
+                    if g & (g - 1) == 0:        # one hypothesis: nothing more to tell apart
+                        value += gw / total * left_alone(g.bit_length() - 1, c)
+                    else:
+                        hit = memo.get(g)       # looked up here: most children are solved
+                        value += gw / total * (hit or solve(g, child_rows))[0]
                     if value >= best:
                         break
             if value < best:

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import copy
 from collections.abc import Callable, Mapping
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from functools import partial
 from typing import TYPE_CHECKING
 
@@ -64,7 +64,16 @@ class _State:
     close: dict | None = None
 
     def copy(self) -> _State:
-        return copy.deepcopy(self)
+        """A copy whose containers are the copy's own (steps are frozen, so shared); the
+        walk derives every event on a copy, so a refused event leaves the state as it was."""
+        frames = lambda fs: [_MFrame(f.suspects, list(f.cleared), f.current) for f in fs]
+        return replace(
+            self, stack=frames(self.stack), memory=dict(self.memory),
+            conclusion_stack=frames(self.conclusion_stack), parts=list(self.parts),
+            queue=list(self.queue), verify_bad=list(self.verify_bad),
+            closing_answers=dict(self.closing_answers), steps=list(self.steps),
+            acknowledged=list(self.acknowledged), resumed=list(self.resumed),
+            close=copy.deepcopy(self.close))
 
 
 class WalkDerivation:
@@ -285,9 +294,14 @@ class WalkDerivation:
     def _ranked(self, frame: _MFrame, answers: Mapping[str, str]) -> list[Ranked]:
         """The frame's not-cleared investigations, best first (p/c weighted by what the
         ``answers`` so far say of each fault, :mod:`faultwise.walk.evidence`; or the
-        ``order`` hook)."""
+        ``order`` hook). The last ranking is kept: routing and the prompt's explanation ask for
+        the same one in turn, and everything else it reads is fixed for the walk."""
         from faultwise.walk.rank import rank_investigations
 
+        key = (frame.suspects, tuple(frame.cleared), frozenset(answers.items()))
+        memo = getattr(self, "_rank_memo", None)
+        if memo is not None and memo[0] == key:
+            return list(memo[1])
         likelihood = None
         if answers and self.evidence is not None:
             faults = self.knowledge.faults_under(frame.suspects, self.family)
@@ -300,6 +314,7 @@ class WalkDerivation:
                                      likelihood=likelihood, reach=reach)
         if self.order is not None:
             ranked = list(self.order(ranked, self.knowledge.node(frame.suspects)))
+        self._rank_memo = (key, tuple(ranked))
         return ranked
 
     def _next_in_frame(self, st: _State) -> str:
