@@ -213,6 +213,22 @@ def test_fault_without_parts_key_but_empty_list_is_fine(tmp_path):
     assert not any(f.node == "audio.cold-joint" for f in lint(KB, names).errors)  # parts: []
 
 
+@pytest.mark.parametrize("written, why", [
+    # an unquoted YAML flow list splits at every comma (YAML 1.1 flow sequences): the bench
+    # would offer two half parts, one with a bracket left open
+    ("[volume control (if it will not clean, or if worn)]", "brackets do not pair"),
+    ("[volume control, or a slide switch]", "starts with 'or'"),
+    # quoted, but alone in the bench's parts field it splits at the comma
+    ('["volume control, same value and taper"]', "would split it"),
+])
+def test_a_part_must_come_back_whole_from_the_bench(tmp_path, written, why):
+    kb = broken(tmp_path, "graph/audio.yaml", "    parts: [volume control (if it will not clean)]",
+                f"    parts: {written}")
+    found = only(lint(kb, names), "would not be recorded as one part")
+    assert {f.node for f in found} == {"audio.dirty-control"}
+    assert any(why in f.message for f in found)
+
+
 def test_missing_contract_symptom(tmp_path):
     kb = broken(tmp_path, "symptoms.yaml", "  - id: scratchy-controls\n", "  - id: scratchy\n")
     report = lint(kb, names)

@@ -159,6 +159,7 @@ class _Lint(LintRun):
             self._verify(node)
             self._signature(node)
             self._model(node)
+            self._parts(node)
             for sid in node.priors:
                 if sid not in k.symptoms:
                     self.at(node, f"'priors' names the unknown symptom '{sid}'",
@@ -188,6 +189,17 @@ class _Lint(LintRun):
             if covered and family not in covered:
                 self.at(node, f"no verify check applies to {family} sets",
                         "add one, or narrow the fault's 'families'")
+
+    def _parts(self, node: Fault) -> None:
+        """Each suggested part comes back whole from the bench's parts field."""
+        from faultwise.core.parts_list import part_problem
+
+        for part in node.parts:
+            why = part_problem(part)
+            if why:
+                self.at(node, f"the part '{part}' would not be recorded as one part: {why}",
+                        "quote the item and put its details in brackets: "
+                        "\"resistor of the marked value (for example 22 ohm 2 W)\"")
 
     def _model(self, node: Fault) -> None:
         """Every model entry names a target of the vocabulary with a change it takes."""

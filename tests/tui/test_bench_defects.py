@@ -332,7 +332,7 @@ def test_parts_text_splits_where_a_technician_means_it():
     # The suggested parts carry their own commas ("8 ohm, 65 mm" inside brackets, "630 V, as
     # the original"): ctrl+t puts them in the field separated by ';', and then only ';'
     # separates. Typed by hand without ';', commas outside brackets separate.
-    from faultwise.tui.screens.conclusion import split_parts
+    from faultwise.core.parts_list import split_parts
 
     assert split_parts("Loudspeaker of the same impedance and size (e.g. 8 ohm, 65 mm)") == \
         ["Loudspeaker of the same impedance and size (e.g. 8 ohm, 65 mm)"]

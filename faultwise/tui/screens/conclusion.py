@@ -22,6 +22,7 @@ from textual.widgets import Header, Input, Static
 
 from faultwise.cases.store import OpenCase
 from faultwise.core.errors import FaultwiseError
+from faultwise.core.parts_list import split_parts
 from faultwise.tui.context import Bench
 from faultwise.tui.meter_keys import MeterKeys
 from faultwise.tui.screens.case_screen import CaseScreen
@@ -42,24 +43,6 @@ OUTCOME_CHOICES = (("repaired", "repaired"), ("returned-unrepaired", "returned u
 
 
 MINUTES_RULE = "a whole number of minutes, 0 or more"
-
-
-def split_parts(text: str) -> list[str]:
-    """'50 uF 160 V electrolytic; 35W4' -> two parts. With a ';' in the text only ';'
-    separates (the suggested parts are put in the field that way: their own words may hold
-    commas); without one, commas outside brackets do ('8 ohm speaker (65 mm, round), 35W4')."""
-    if ";" in text:
-        pieces = text.split(";")
-    else:
-        pieces, depth, start = [], 0, 0
-        for i, ch in enumerate(text):
-            depth += ch in "([{"
-            depth -= ch in ")]}" and depth > 0
-            if ch == "," and depth == 0:
-                pieces.append(text[start:i])
-                start = i + 1
-        pieces.append(text[start:])
-    return [p.strip(" \t,") for p in pieces if p.strip(" \t,")]
 
 
 def whole_minutes_since(opened_iso: object, now: datetime) -> int:
