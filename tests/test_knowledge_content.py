@@ -151,3 +151,26 @@ def test_a_transistor_set_is_never_shown_a_tube_caution(kn):
             for cid in node.cautions:
                 shown = kn.cautions[cid]
                 assert "transistor" in shown.families or len(node.families) > 1, (node.id, cid)
+
+
+def test_verify_reads_the_unplugged_checks_before_powering_up(kn):
+    # Common practice, no source: after a repair the new part's ohms (and the absence of a
+    # short) are read with the set unplugged before it is brought up again; a verify list
+    # that powers the set first and only then reads ohms applies power to an unproven repair.
+    def unplugged(cid):
+        how = (kn.nodes[cid].how or "").lstrip().lower()
+        return how.startswith(("unplug", "power off, unplug", "set unplugged"))
+
+    def powered(cid):
+        how = (kn.nodes[cid].how or "").lstrip().lower()
+        return how.startswith(("set on", "set playing", "power on"))
+
+    late = []
+    for f in _faults(kn):
+        seen_powered = False
+        for cid in f.verify:
+            seen_powered = seen_powered or powered(cid)
+            if seen_powered and unplugged(cid):
+                late.append((f.id, f.verify))
+                break
+    assert not late, late
