@@ -159,11 +159,11 @@ def test_verify_reads_the_unplugged_checks_before_powering_up(kn):
     # that powers the set first and only then reads ohms applies power to an unproven repair.
     def unplugged(cid):
         how = (kn.nodes[cid].how or "").lstrip().lower()
-        return how.startswith(("unplug", "power off, unplug", "set unplugged"))
+        return how.startswith("unplug")
 
     def powered(cid):
         how = (kn.nodes[cid].how or "").lstrip().lower()
-        return how.startswith(("set on", "set playing", "power on"))
+        return how.startswith(("set on", "set playing"))
 
     late = []
     for f in _faults(kn):

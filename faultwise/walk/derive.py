@@ -40,6 +40,11 @@ class _MFrame:
     current: str | None = None
 
 
+def _copied(frames: list[_MFrame]) -> list[_MFrame]:
+    """Suspects frames the copy owns (their cleared lists change as the walk goes on)."""
+    return [_MFrame(f.suspects, list(f.cleared), f.current) for f in frames]
+
+
 @dataclass
 class _State:
     phase: str = "diagnose"
@@ -66,10 +71,9 @@ class _State:
     def copy(self) -> _State:
         """A copy whose containers are the copy's own (steps are frozen, so shared); the
         walk derives every event on a copy, so a refused event leaves the state as it was."""
-        frames = lambda fs: [_MFrame(f.suspects, list(f.cleared), f.current) for f in fs]
         return replace(
-            self, stack=frames(self.stack), memory=dict(self.memory),
-            conclusion_stack=frames(self.conclusion_stack), parts=list(self.parts),
+            self, stack=_copied(self.stack), memory=dict(self.memory),
+            conclusion_stack=_copied(self.conclusion_stack), parts=list(self.parts),
             queue=list(self.queue), verify_bad=list(self.verify_bad),
             closing_answers=dict(self.closing_answers), steps=list(self.steps),
             acknowledged=list(self.acknowledged), resumed=list(self.resumed),
@@ -88,6 +92,7 @@ class WalkDerivation:
     counts: dict[str, int]
     order: Callable[[list[Ranked], Suspects], list[Ranked]] | None
     _applies: Callable[[str], bool]
+    _rank_memo: tuple | None = None   # (key, ranking) of the last ranking (see _ranked)
 
     def _derive(self, events: list[dict]) -> _State:
         st = _State()
@@ -206,7 +211,7 @@ class WalkDerivation:
                             hint="resume works after the walk reached a fault")
         st.resumed.append(st.conclusion)
         st.came_from = (st.conclusion, "resumed")
-        st.stack = copy.deepcopy(st.conclusion_stack)
+        st.stack = _copied(st.conclusion_stack)
         st.conclusion = None
         st.conclusion_stack = []
         st.memory = {}
@@ -281,7 +286,7 @@ class WalkDerivation:
                 continue
             if isinstance(node, Fault):
                 st.conclusion = target
-                st.conclusion_stack = copy.deepcopy(st.stack)
+                st.conclusion_stack = _copied(st.stack)
                 st.phase = "repair"
                 st.node = None
                 return
@@ -299,9 +304,8 @@ class WalkDerivation:
         from faultwise.walk.rank import rank_investigations
 
         key = (frame.suspects, tuple(frame.cleared), frozenset(answers.items()))
-        memo = getattr(self, "_rank_memo", None)
-        if memo is not None and memo[0] == key:
-            return list(memo[1])
+        if self._rank_memo is not None and self._rank_memo[0] == key:
+            return list(self._rank_memo[1])
         likelihood = None
         if answers and self.evidence is not None:
             faults = self.knowledge.faults_under(frame.suspects, self.family)
