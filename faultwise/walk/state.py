@@ -201,7 +201,16 @@ class Walk(WalkView):
             e["n"] = i + 1
         self._state = self._derive(events)
         self._events = events
+        if dropped.get("type") == "answer" and dropped.get("phase") == "closing":
+            # a safety reading taken back stays on record: the set was measured so
+            self._events.append(self._event("note", text=self._undone_text(dropped)))
         return dropped
+
+    def _undone_text(self, event: Mapping[str, Any]) -> str:
+        node = self.knowledge.nodes.get(str(event.get("node")))
+        title = getattr(node, "title", None) or event.get("node")
+        return (f"Taken back: '{title}' read {event.get('raw') or event.get('outcome')} "
+                f"({event.get('outcome')}) at {event.get('at')}.")
 
     def note(self, text: str) -> dict:
         text = str(text or "").strip()

@@ -226,6 +226,14 @@ async def test_close_refused_without_leakage_check(make_app, cases_dir):
         await pilot.pause()
         assert "Cannot close as repaired" in str(app.screen.query_one("#close-error").render())
         assert read_case(cases_dir)["status"] == "open"
+        # the minutes typed on into the outcome field (found walking a case in tmux): the
+        # message names the bad choice and still says why repaired is refused
+        await type_text(pilot, "30")
+        await pilot.press("enter")
+        await pilot.pause()
+        shown = str(app.screen.query_one("#close-error").render())
+        assert "'130' is not one of the choices" in shown and "Cannot close as repaired" in shown
+        assert read_case(cases_dir)["status"] == "open"
         app.screen.query_one("#close-outcome").value = ""
         await pilot.press("2")
         await type_text(pilot, "15")

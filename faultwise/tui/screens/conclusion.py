@@ -92,6 +92,7 @@ class ConclusionScreen(MeterKeys, CaseScreen):
     def __init__(self, bench: Bench, case: OpenCase, walk: Walk) -> None:
         super().__init__(bench, case, walk, id="conclusion")
         self.outcome: str | None = None
+        self._last_choice: str | None = None   # the outcome last typed (a refusal kept in view)
 
     def compose(self) -> ComposeResult:
         yield Header()
@@ -256,16 +257,22 @@ class ConclusionScreen(MeterKeys, CaseScreen):
         try:
             outcome = resolve_choice(text, OUTCOME_CHOICES)
         except FaultwiseError as exc:
-            error.update(Content(str(exc)))
+            # typed on after a refused choice (the minutes, say): say the refusal again
+            error.update(Content(f"{exc} {self._refusal(self._last_choice)}".strip()))
             return
-        reason = self.walk.can_close(outcome)
-        if reason:
-            error.update(Content(f"Cannot close as {outcome}: {self.readable(reason)}."))
+        self._last_choice = outcome
+        if self.walk.can_close(outcome):
+            error.update(Content(self._refusal(outcome)))
             return
         if outcome == "repaired" and self.walk.verify_failed:
             self._confirm_repaired()
             return
         self._take_outcome(outcome)
+
+    def _refusal(self, outcome: str | None) -> str:
+        """Why the walk refuses to close as ``outcome`` now ('' when it does not)."""
+        reason = self.walk.can_close(outcome) if outcome else None
+        return f"Cannot close as {outcome}: {self.readable(reason)}." if reason else ""
 
     def _take_outcome(self, outcome: str) -> None:
         self.outcome = outcome
