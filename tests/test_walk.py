@@ -303,6 +303,9 @@ def test_closing_check_required_for_line_family(kb, ex):
     # record that the set was measured and failed before it was put right)
     [note] = [e for e in w.events if e["type"] == "note"]
     assert "Leakage" in note["text"] and "0.9 V" in note["text"] and "(high)" in note["text"]
+    w.answer("1.1")                    # typed bare: the note gives the unit
+    w.undo()
+    assert "read 1.1 V (high)" in [e for e in w.events if e["type"] == "note"][-1]["text"]
     w.answer("0.2 V")
     assert w.can_close("repaired") is None
     ev = w.close("repaired", 45)

@@ -209,8 +209,12 @@ class Walk(WalkView):
     def _undone_text(self, event: Mapping[str, Any]) -> str:
         node = self.knowledge.nodes.get(str(event.get("node")))
         title = getattr(node, "title", None) or event.get("node")
-        return (f"Taken back: '{title}' read {event.get('raw') or event.get('outcome')} "
-                f"({event.get('outcome')}) at {event.get('at')}.")
+        band = event.get("band")
+        read = str(event.get("raw") or event.get("outcome"))
+        unit = band.get("unit") if isinstance(band, Mapping) else None
+        if unit and not any(ch.isalpha() for ch in read):      # typed bare: '1.2' -> '1.2 V'
+            read = f"{read} {unit}"
+        return f"Taken back: '{title}' read {read} ({event.get('outcome')}) at {event.get('at')}."
 
     def note(self, text: str) -> dict:
         text = str(text or "").strip()
